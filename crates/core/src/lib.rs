@@ -1,0 +1,27 @@
+//! Pure statistics for patternproof: no files, no printing, no geometry
+//! beyond point coordinates. Every function here is checked against a
+//! published formula or an outside reference library in its tests.
+//!
+//! | module | what it computes |
+//! |---|---|
+//! | [`nearest`] | exact nearest-neighbour distances (R*-tree from `rstar`) |
+//! | [`clark_evans`] | the Clark & Evans (1954) ratio, its standard error, z and p |
+//! | [`normal`] | normal tail probabilities and critical values (`statrs`) |
+//! | [`call`] | the verdict of one row at a chosen α |
+//! | [`flip`] | closed-form window areas at which the uncorrected call changes |
+//!
+//! Points are `[x, y]` pairs in a projected, planar unit; the caller
+//! (the `io` crate) is responsible for projecting geographic input.
+
+pub mod call;
+pub mod clark_evans;
+pub mod flip;
+pub mod nearest;
+pub mod normal;
+
+pub use call::Call;
+pub use clark_evans::{CE_MEAN_FACTOR, CE_SE_FACTOR, ClarkEvans};
+pub use flip::FlipThresholds;
+
+/// A point in a projected plane, `[x, y]`.
+pub type Xy = [f64; 2];

@@ -1,0 +1,240 @@
+//! Study-area boundary readers: GeoJSON Polygon/MultiPolygon (holes kept)
+//! and WKT `POLYGON`/`MULTIPOLYGON` text.
+//!
+//! One file is one study area: all polygons in it together form the window
+//! (a site in two parts, a meadow with a pond cut out). Its name is the
+//! `name` property of a single feature, else the file stem.
+
+use crate::coords::CoordSystem;
+use crate::error::{InputError, read_text};
+use geo::{Geometry, MultiPolygon, Polygon};
+use geojson::GeoJson;
+use std::path::Path;
+use wkt::TryFromWkt;
+
+/// A boundary as read, before projection and validation.
+#[derive(Debug, Clone, PartialEq)]
+pub struct RawBoundary {
+    /// Name used in the window id `boundary:NAME`.
+    pub name: String,
+    /// The polygons, in file coordinates.
+    pub shape: MultiPolygon<f64>,
+    /// What the file itself says about its coordinates (GeoJSON only;
+    /// WKT carries no system and follows the points).
+    pub declared: Option<CoordSystem>,
+}
+
+/// Read one boundary file (GeoJSON by extension or a leading `{`, else WKT).
+pub fn read_boundary(path: &Path) -> Result<RawBoundary, InputError> {
+    let text = read_text(path)?;
+    if text.trim().is_empty() {
+        return Err(InputError::new(
+            path,
+            "the boundary file is empty",
+            "give a GeoJSON Polygon/MultiPolygon or WKT POLYGON text",
+        ));
+    }
+    let stem = path
+        .file_stem()
+        .and_then(|s| s.to_str())
+        .unwrap_or("boundary")
+        .to_string();
+    let ext = path
+        .extension()
+        .and_then(|e| e.to_str())
+        .unwrap_or("")
+        .to_ascii_lowercase();
+    if ext == "geojson" || ext == "json" || text.trim_start().starts_with('{') {
+        read_geojson(path, &text, stem)
+    } else {
+        read_wkt(path, &text, stem)
+    }
+}
+
+fn polygons_of(
+    path: &Path,
+    place: &str,
+    g: Geometry<f64>,
+    out: &mut Vec<Polygon<f64>>,
+) -> Result<(), InputError> {
+    match g {
+        Geometry::Polygon(p) => out.push(p),
+        Geometry::MultiPolygon(mp) => out.extend(mp.0),
+        Geometry::Rect(r) => out.push(r.to_polygon()),
+        other => {
+            let kind = match other {
+                Geometry::Point(_) | Geometry::MultiPoint(_) => "points",
+                Geometry::LineString(_) | Geometry::MultiLineString(_) | Geometry::Line(_) => {
+                    "lines"
+                }
+                _ => "another geometry type",
+            };
+            return Err(InputError::new(
+                path,
+                format!("a boundary must be polygons, this holds {kind}"),
+                "give the study area as a Polygon or MultiPolygon (close the ring: first point = last point)",
+            )
+            .at(place));
+        }
+    }
+    Ok(())
+}
+
+fn read_geojson(path: &Path, text: &str, stem: String) -> Result<RawBoundary, InputError> {
+    let gj: GeoJson = text.parse().map_err(|e| {
+        InputError::new(path, format!("not valid GeoJSON ({e})"), "check the file against RFC 7946; polygon rings need at least four positions, first = last")
+    })?;
+    let crs = match &gj {
+        GeoJson::FeatureCollection(fc) => fc
+            .foreign_members
+            .as_ref()
+            .and_then(|m| m.get("crs"))
+            .cloned(),
+        GeoJson::Feature(f) => f
+            .foreign_members
+            .as_ref()
+            .and_then(|m| m.get("crs"))
+            .cloned(),
+        GeoJson::Geometry(g) => g
+            .foreign_members
+            .as_ref()
+            .and_then(|m| m.get("crs"))
+            .cloned(),
+    };
+    let declared = match crs {
+        None => Some(CoordSystem::LonLat),
+        Some(c) => {
+            let name = c
+                .get("properties")
+                .and_then(|p| p.get("name"))
+                .and_then(|n| n.as_str())
+                .unwrap_or("")
+                .to_ascii_uppercase();
+            if name.contains("CRS84") || name.ends_with(":4326") {
+                Some(CoordSystem::LonLat)
+            } else if name.is_empty() {
+                None
+            } else {
+                Some(CoordSystem::Projected)
+            }
+        }
+    };
+    let features: Vec<(String, Option<geojson::Geometry>, Option<String>)> = match gj {
+        GeoJson::FeatureCollection(fc) => fc
+            .features
+            .into_iter()
+            .enumerate()
+            .map(|(i, f)| {
+                let name = f
+                    .property("name")
+                    .and_then(|v| v.as_str())
+                    .map(str::to_string);
+                (format!("feature {}", i + 1), f.geometry, name)
+            })
+            .collect(),
+        GeoJson::Feature(f) => {
+            let name = f
+                .property("name")
+                .and_then(|v| v.as_str())
+                .map(str::to_string);
+            vec![("feature 1".into(), f.geometry, name)]
+        }
+        GeoJson::Geometry(g) => vec![("geometry".into(), Some(g), None)],
+    };
+    let mut polys = Vec::new();
+    let mut names = Vec::new();
+    for (place, geometry, name) in features {
+        let Some(geometry) = geometry else {
+            return Err(InputError::new(
+                path,
+                "the feature has no geometry",
+                "remove it or give it a Polygon",
+            )
+            .at(place));
+        };
+        let g: Geometry<f64> = Geometry::try_from(geometry).map_err(|e| {
+            InputError::new(
+                path,
+                format!("cannot read the geometry ({e})"),
+                "check the polygon's rings",
+            )
+            .at(place.clone())
+        })?;
+        polygons_of(path, &place, g, &mut polys)?;
+        names.extend(name);
+    }
+    if polys.is_empty() {
+        return Err(InputError::new(
+            path,
+            "the file holds no polygon",
+            "give at least one Polygon or MultiPolygon feature",
+        ));
+    }
+    let name = if names.len() == 1 {
+        names.remove(0)
+    } else {
+        stem
+    };
+    Ok(RawBoundary {
+        name,
+        shape: MultiPolygon(polys),
+        declared,
+    })
+}
+
+fn read_wkt(path: &Path, text: &str, stem: String) -> Result<RawBoundary, InputError> {
+    let g = Geometry::<f64>::try_from_wkt_str(text.trim()).map_err(|e| {
+        InputError::new(
+            path,
+            format!("not readable as WKT ({e})"),
+            "write the boundary as POLYGON ((x y, x y, ...)) or MULTIPOLYGON (...), or use GeoJSON",
+        )
+    })?;
+    let mut polys = Vec::new();
+    polygons_of(path, "WKT text", g, &mut polys)?;
+    Ok(RawBoundary {
+        name: stem,
+        shape: MultiPolygon(polys),
+        declared: None,
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use geo::Area;
+    use std::io::Write;
+
+    fn file(ext: &str, body: &str) -> tempfile::NamedTempFile {
+        let mut f = tempfile::Builder::new().suffix(ext).tempfile().unwrap();
+        f.write_all(body.as_bytes()).unwrap();
+        f
+    }
+
+    /// Area of a 10×10 square with a 2×2 hole: 96 (arithmetic).
+    #[test]
+    fn wkt_polygon_with_hole() {
+        let f = file(
+            ".wkt",
+            "POLYGON ((0 0, 10 0, 10 10, 0 10, 0 0), (4 4, 6 4, 6 6, 4 6, 4 4))",
+        );
+        let b = read_boundary(f.path()).unwrap();
+        assert!((b.shape.unsigned_area() - 96.0).abs() < 1e-12);
+        assert_eq!(b.declared, None);
+    }
+
+    #[test]
+    fn geojson_feature_name_is_used() {
+        let body = r#"{"type":"FeatureCollection","features":[{"type":"Feature","properties":{"name":"north"},"geometry":{"type":"Polygon","coordinates":[[[0,0],[1,0],[1,1],[0,1],[0,0]]]}}]}"#;
+        let f = file(".geojson", body);
+        let b = read_boundary(f.path()).unwrap();
+        assert_eq!(b.name, "north");
+        assert_eq!(b.declared, Some(CoordSystem::LonLat));
+    }
+
+    #[test]
+    fn lines_are_not_boundaries() {
+        let f = file(".wkt", "LINESTRING (0 0, 1 1)");
+        assert!(read_boundary(f.path()).unwrap_err().what.contains("lines"));
+    }
+}

@@ -1,0 +1,277 @@
+//! Loading one analysis's inputs together: the points and every boundary,
+//! in one planar coordinate system.
+//!
+//! Lon/lat input is checked for range and projected with one equal-area
+//! projection centred on the points; boundaries follow the points' system
+//! (a boundary file that declares a different one is an error, not a guess).
+
+use crate::boundary::{RawBoundary, read_boundary};
+use crate::coords::{CoordChoice, CoordSystem, Projection, in_lat_range, in_lon_range};
+use crate::error::InputError;
+use crate::points::read_points;
+use geo::{Area, MapCoords, MultiPolygon, Validation};
+use patternproof_core::Xy;
+use std::collections::HashMap;
+use std::path::{Path, PathBuf};
+
+/// How to read the inputs.
+#[derive(Debug, Clone)]
+pub struct LoadOptions {
+    /// `--coords`.
+    pub coords: CoordChoice,
+    /// `--unit`: the unit of projected coordinates.
+    pub unit: String,
+    /// `--drop-duplicates`: remove exact repeats instead of keeping them.
+    pub drop_duplicates: bool,
+    /// An attribute to carry along per point (site field).
+    pub field: Option<String>,
+}
+
+impl Default for LoadOptions {
+    fn default() -> Self {
+        Self {
+            coords: CoordChoice::Auto,
+            unit: "m".into(),
+            drop_duplicates: false,
+            field: None,
+        }
+    }
+}
+
+/// A validated study-area boundary in the planar system.
+#[derive(Debug, Clone)]
+pub struct Boundary {
+    /// Name for the window id.
+    pub name: String,
+    /// The file it came from.
+    pub file: PathBuf,
+    /// Polygons in planar coordinates.
+    pub shape: MultiPolygon<f64>,
+}
+
+/// Points and boundaries ready for analysis.
+#[derive(Debug)]
+pub struct Dataset {
+    /// The point file.
+    pub points_file: PathBuf,
+    /// Planar coordinates, file order (duplicates dropped if asked).
+    pub points: Vec<Xy>,
+    /// Where each point came from.
+    pub places: Vec<String>,
+    /// Points read from the file.
+    pub n_read: usize,
+    /// Points that repeat an earlier point exactly.
+    pub duplicates: usize,
+    /// Whether the duplicates were removed.
+    pub duplicates_dropped: bool,
+    /// The coordinate system of the input.
+    pub system: CoordSystem,
+    /// The projection applied, for lon/lat input.
+    pub projection: Option<Projection>,
+    /// Distance unit of `points` (metre for projected lon/lat).
+    pub unit: String,
+    /// The boundaries, in the order given.
+    pub boundaries: Vec<Boundary>,
+    /// Things the user should know that did not stop the run.
+    pub warnings: Vec<String>,
+    /// The carried attribute, per point.
+    pub field_values: Option<Vec<String>>,
+}
+
+impl Dataset {
+    /// Read, check and project the points and boundaries.
+    pub fn load(
+        points_file: &Path,
+        boundary_files: &[PathBuf],
+        options: &LoadOptions,
+    ) -> Result<Self, InputError> {
+        let raw = read_points(points_file, options.coords, options.field.as_deref())?;
+        let mut warnings = Vec::new();
+        let n_read = raw.coords.len();
+        if n_read == 0 {
+            return Err(InputError::new(
+                points_file,
+                "the file holds no points",
+                "add at least two points (the nearest-neighbour test needs pairs)",
+            ));
+        }
+        let (points, projection, unit) = match raw.system {
+            CoordSystem::Projected => (raw.coords.clone(), None, options.unit.clone()),
+            CoordSystem::LonLat => {
+                for (c, place) in raw.coords.iter().zip(&raw.places) {
+                    if !in_lon_range(c[0]) || !in_lat_range(c[1]) {
+                        return Err(InputError::new(
+                            points_file,
+                            format!("({}, {}) is outside the lon/lat range (lon −180..180, lat −90..90)", c[0], c[1]),
+                            "if these are planar coordinates (metres on a local grid, UTM…), pass --coords projected",
+                        )
+                        .at(place.clone()));
+                    }
+                }
+                let projection = centred_projection(&raw.coords).ok_or_else(|| {
+                    InputError::new(
+                        points_file,
+                        "cannot set up the equal-area projection for these points",
+                        "check that the coordinates are lon/lat in degrees",
+                    )
+                })?;
+                let mut planar = Vec::with_capacity(n_read);
+                for (c, place) in raw.coords.iter().zip(&raw.places) {
+                    planar.push(projection.forward(c[0], c[1]).ok_or_else(|| {
+                        InputError::new(points_file, format!("cannot project ({}, {})", c[0], c[1]), "check the coordinate; points near the antipode of the data centre cannot be projected").at(place.clone())
+                    })?);
+                }
+                if options.unit != "m" {
+                    warnings.push(format!(
+                        "--unit {} ignored: lon/lat input is projected to metres",
+                        options.unit
+                    ));
+                }
+                (planar, Some(projection), "m".to_string())
+            }
+        };
+
+        let mut seen: HashMap<(u64, u64), usize> = HashMap::new();
+        let mut keep = Vec::with_capacity(n_read);
+        let mut duplicates = 0;
+        for (i, c) in raw.coords.iter().enumerate() {
+            // +0.0 and −0.0 are the same place.
+            let key = ((c[0] + 0.0).to_bits(), (c[1] + 0.0).to_bits());
+            if seen.insert(key, i).is_some() {
+                duplicates += 1;
+                if options.drop_duplicates {
+                    continue;
+                }
+            }
+            keep.push(i);
+        }
+        if duplicates > 0 {
+            warnings.push(if options.drop_duplicates {
+                format!("{duplicates} duplicate point(s) removed (--drop-duplicates)")
+            } else {
+                format!("{duplicates} point(s) repeat an earlier point exactly; kept at nearest-neighbour distance 0, which pulls R down (use --drop-duplicates to remove them)")
+            });
+        }
+        let points: Vec<Xy> = keep.iter().map(|&i| points[i]).collect();
+        let places: Vec<String> = keep.iter().map(|&i| raw.places[i].clone()).collect();
+        let field_values = raw
+            .field_values
+            .map(|v| keep.iter().map(|&i| v[i].clone()).collect());
+        if points.len() < 2 {
+            return Err(InputError::new(
+                points_file,
+                format!("only {} distinct point(s) to analyse", points.len()),
+                "the nearest-neighbour test needs at least two points",
+            ));
+        }
+
+        let mut boundaries = Vec::new();
+        for file in boundary_files {
+            let raw_b = read_boundary(file)?;
+            boundaries.push(planar_boundary(
+                file,
+                raw_b,
+                raw.system,
+                options.coords,
+                projection.as_ref(),
+                &mut warnings,
+            )?);
+        }
+        Ok(Self {
+            points_file: points_file.to_path_buf(),
+            points,
+            places,
+            n_read,
+            duplicates,
+            duplicates_dropped: options.drop_duplicates,
+            system: raw.system,
+            projection,
+            unit,
+            boundaries,
+            warnings,
+            field_values,
+        })
+    }
+}
+
+fn centred_projection(coords: &[[f64; 2]]) -> Option<Projection> {
+    let (mut lo_x, mut hi_x, mut lo_y, mut hi_y) = (f64::MAX, f64::MIN, f64::MAX, f64::MIN);
+    for c in coords {
+        lo_x = lo_x.min(c[0]);
+        hi_x = hi_x.max(c[0]);
+        lo_y = lo_y.min(c[1]);
+        hi_y = hi_y.max(c[1]);
+    }
+    Projection::centred_at((lo_x + hi_x) / 2.0, (lo_y + hi_y) / 2.0)
+}
+
+fn planar_boundary(
+    file: &Path,
+    raw: RawBoundary,
+    system: CoordSystem,
+    choice: CoordChoice,
+    projection: Option<&Projection>,
+    warnings: &mut Vec<String>,
+) -> Result<Boundary, InputError> {
+    match (raw.declared, system) {
+        (Some(CoordSystem::Projected), CoordSystem::LonLat) => {
+            return Err(InputError::new(file, "the boundary declares projected coordinates but the points are lon/lat", "give the boundary in the same coordinates as the points"));
+        }
+        (Some(CoordSystem::LonLat), CoordSystem::Projected) if choice == CoordChoice::Auto => warnings.push(format!(
+            "{}: GeoJSON without a 'crs' member is lon/lat by RFC 7946, but the points are projected; the boundary is read in the points' planar coordinates",
+            file.display()
+        )),
+        _ => {}
+    }
+    let shape = match projection {
+        None => raw.shape,
+        Some(proj) => {
+            let bad = std::cell::Cell::new(None);
+            let bad_ref = &bad;
+            let mapped = raw.shape.map_coords(|c| {
+                if !in_lon_range(c.x) || !in_lat_range(c.y) {
+                    if bad_ref.get().is_none() {
+                        bad_ref.set(Some((c.x, c.y)));
+                    }
+                    return c;
+                }
+                match proj.forward(c.x, c.y) {
+                    Some([x, y]) => geo::coord! { x: x, y: y },
+                    None => {
+                        if bad_ref.get().is_none() {
+                            bad_ref.set(Some((c.x, c.y)));
+                        }
+                        c
+                    }
+                }
+            });
+            if let Some((x, y)) = bad.get() {
+                return Err(InputError::new(
+                    file,
+                    format!("vertex ({x}, {y}) is not a projectable lon/lat"),
+                    "give the boundary in lon/lat degrees like the points",
+                ));
+            }
+            mapped
+        }
+    };
+    if let Err(problem) = shape.check_validation() {
+        return Err(InputError::new(
+            file,
+            format!("the boundary is not a valid polygon: {problem}"),
+            "repair it in a GIS (close rings, remove self-intersections, keep holes inside their shell) and try again",
+        ));
+    }
+    if !(shape.unsigned_area() > 0.0) {
+        return Err(InputError::new(
+            file,
+            "the boundary has zero area",
+            "give a polygon that encloses the study area",
+        ));
+    }
+    Ok(Boundary {
+        name: raw.name,
+        file: file.to_path_buf(),
+        shape,
+    })
+}

@@ -1,0 +1,24 @@
+//! Everything that touches the user's files: reading points and
+//! boundaries, deciding whether coordinates are projected or lon/lat, and
+//! projecting lon/lat to an equal-area plane before any distance is taken.
+//!
+//! | module | job |
+//! |---|---|
+//! | [`error`] | one error type that names the file, the place, what is wrong and what to do |
+//! | [`points`] | CSV and GeoJSON point readers |
+//! | [`boundary`] | GeoJSON and WKT polygon readers, with validity checks |
+//! | [`coords`] | the projected / lon-lat decision and the Lambert azimuthal equal-area projection |
+//! | [`dataset`] | loads points and boundaries together into one planar data set |
+//!
+//! Nothing here guesses silently: an ambiguous coordinate system stops with
+//! a message asking for `--coords`.
+
+pub mod boundary;
+pub mod coords;
+pub mod dataset;
+pub mod error;
+pub mod points;
+
+pub use coords::{CoordChoice, CoordSystem, Projection};
+pub use dataset::{Boundary, Dataset, LoadOptions};
+pub use error::InputError;

@@ -1,0 +1,457 @@
+//! Point readers: CSV (comma, semicolon or tab) and GeoJSON.
+//!
+//! CSV columns are chosen by header name: `x,y` or `easting,northing` for
+//! projected coordinates, `lon,lat` (also `lng`, `long`, `longitude`,
+//! `latitude`) for geographic ones. GeoJSON is RFC 7946 lon/lat unless it
+//! carries a legacy `crs` member naming something else. Every point keeps
+//! the place it came from (`line 12`, `feature 3`) so later checks can point
+//! back into the file.
+
+use crate::coords::{CoordChoice, CoordSystem};
+use crate::error::{InputError, read_text};
+use geojson::{GeoJson, GeometryValue};
+use std::path::Path;
+
+/// Points as read, before projection.
+#[derive(Debug, Clone, PartialEq)]
+pub struct RawPoints {
+    /// `[x, y]` or `[lon, lat]` in file order.
+    pub coords: Vec<[f64; 2]>,
+    /// Where each point came from, for messages.
+    pub places: Vec<String>,
+    /// How the coordinates are to be read.
+    pub system: CoordSystem,
+    /// One value per point of the requested attribute field, when asked for.
+    pub field_values: Option<Vec<String>>,
+}
+
+const PROJECTED_PAIRS: [(&str, &str); 2] = [("x", "y"), ("easting", "northing")];
+const LON_NAMES: [&str; 4] = ["lon", "lng", "long", "longitude"];
+const LAT_NAMES: [&str; 2] = ["lat", "latitude"];
+
+/// Read a point file, choosing the reader from the extension
+/// (`.geojson`/`.json` → GeoJSON, anything else → CSV). `field` names an
+/// optional attribute (CSV column or GeoJSON property) to carry along.
+pub fn read_points(
+    path: &Path,
+    choice: CoordChoice,
+    field: Option<&str>,
+) -> Result<RawPoints, InputError> {
+    let text = read_text(path)?;
+    if text.trim().is_empty() {
+        return Err(InputError::new(
+            path,
+            "the file is empty",
+            "give a CSV with a header row (x,y / easting,northing / lon,lat) or a GeoJSON FeatureCollection of points",
+        ));
+    }
+    let ext = path
+        .extension()
+        .and_then(|e| e.to_str())
+        .unwrap_or("")
+        .to_ascii_lowercase();
+    if ext == "geojson" || ext == "json" || text.trim_start().starts_with('{') {
+        read_geojson_points(path, &text, choice, field)
+    } else {
+        read_csv_points(path, &text, choice, field)
+    }
+}
+
+fn sniff_delimiter(text: &str) -> u8 {
+    let header = text.lines().next().unwrap_or("");
+    let candidates = [b',', b';', b'\t'];
+    let mut best = b',';
+    let mut best_count = 0;
+    for c in candidates {
+        let count = header.bytes().filter(|b| *b == c).count();
+        if count > best_count {
+            best = c;
+            best_count = count;
+        }
+    }
+    best
+}
+
+fn find(headers: &[String], names: &[&str]) -> Option<usize> {
+    headers.iter().position(|h| names.contains(&h.as_str()))
+}
+
+fn read_csv_points(
+    path: &Path,
+    text: &str,
+    choice: CoordChoice,
+    field: Option<&str>,
+) -> Result<RawPoints, InputError> {
+    let delimiter = sniff_delimiter(text);
+    let mut reader = csv::ReaderBuilder::new()
+        .delimiter(delimiter)
+        .flexible(false)
+        .trim(csv::Trim::All)
+        .from_reader(text.as_bytes());
+    let headers: Vec<String> = reader
+        .headers()
+        .map_err(|e| {
+            InputError::new(
+                path,
+                format!("cannot read the header row ({e})"),
+                "the first line must name the columns",
+            )
+        })?
+        .iter()
+        .map(|h| h.trim_start_matches('\u{feff}').trim().to_ascii_lowercase())
+        .collect();
+
+    let projected = PROJECTED_PAIRS
+        .iter()
+        .find_map(|(a, b)| Some((find(&headers, &[a])?, find(&headers, &[b])?)));
+    let lonlat = find(&headers, &LON_NAMES).zip(find(&headers, &LAT_NAMES));
+    let shown = headers.join(", ");
+    let (cols, system) = match (choice, projected, lonlat) {
+        (CoordChoice::Auto, Some(p), None) => (p, CoordSystem::Projected),
+        (CoordChoice::Auto, None, Some(l)) => (l, CoordSystem::LonLat),
+        (CoordChoice::Auto, Some(_), Some(_)) => {
+            return Err(InputError::new(
+                path,
+                format!("the header has both projected and lon/lat columns ({shown})"),
+                "say which to use with --coords projected or --coords lonlat",
+            )
+            .at("line 1"));
+        }
+        (CoordChoice::Projected, Some(p), _) => (p, CoordSystem::Projected),
+        (CoordChoice::LonLat, _, Some(l)) => (l, CoordSystem::LonLat),
+        (CoordChoice::LonLat, Some(p), None) => (p, CoordSystem::LonLat),
+        (CoordChoice::Projected, None, Some(_)) => {
+            return Err(InputError::new(
+                path,
+                format!("--coords projected was given but the columns are named as lon/lat ({shown})"),
+                "rename the columns to x,y (or easting,northing) if they really are planar, or use --coords lonlat",
+            )
+            .at("line 1"));
+        }
+        (_, None, None) => {
+            return Err(InputError::new(
+                path,
+                format!("no coordinate columns found in the header ({shown})"),
+                "name the columns x,y or easting,northing (projected) or lon,lat / longitude,latitude (geographic)",
+            )
+            .at("line 1"));
+        }
+    };
+    let field_col = match field {
+        Some(name) => Some(
+            find(&headers, &[name.to_ascii_lowercase().as_str()]).ok_or_else(|| {
+                InputError::new(
+                    path,
+                    format!("there is no column named '{name}' (columns: {shown})"),
+                    "check the field name",
+                )
+                .at("line 1")
+            })?,
+        ),
+        None => None,
+    };
+
+    let lenient_decimal_comma = delimiter != b',';
+    let mut coords = Vec::new();
+    let mut places = Vec::new();
+    let mut values = Vec::new();
+    for record in reader.records() {
+        let record = record.map_err(|e| {
+            let line = e.position().map(|p| p.line()).unwrap_or(0);
+            InputError::new(
+                path,
+                format!("malformed row ({e})"),
+                "every row needs as many fields as the header",
+            )
+            .at(format!("line {line}"))
+        })?;
+        let line = record.position().map(|p| p.line()).unwrap_or(0);
+        let place = format!("line {line}");
+        let x = parse_number(
+            path,
+            &place,
+            &headers[cols.0],
+            record.get(cols.0).unwrap_or(""),
+            lenient_decimal_comma,
+        )?;
+        let y = parse_number(
+            path,
+            &place,
+            &headers[cols.1],
+            record.get(cols.1).unwrap_or(""),
+            lenient_decimal_comma,
+        )?;
+        if let Some(c) = field_col {
+            values.push(record.get(c).unwrap_or("").to_string());
+        }
+        coords.push([x, y]);
+        places.push(place);
+    }
+    Ok(RawPoints {
+        coords,
+        places,
+        system,
+        field_values: field_col.map(|_| values),
+    })
+}
+
+fn parse_number(
+    path: &Path,
+    place: &str,
+    column: &str,
+    raw: &str,
+    decimal_comma: bool,
+) -> Result<f64, InputError> {
+    let parsed = raw.parse::<f64>().ok().or_else(|| {
+        if decimal_comma && raw.matches(',').count() == 1 && !raw.contains('.') {
+            raw.replace(',', ".").parse::<f64>().ok()
+        } else {
+            None
+        }
+    });
+    match parsed {
+        Some(v) if v.is_finite() => Ok(v),
+        Some(_) => Err(InputError::new(
+            path,
+            format!("column '{column}' holds '{raw}', which is not a finite number"),
+            "remove or fix the row; missing or infinite coordinates cannot be placed",
+        )
+        .at(place)),
+        None => Err(InputError::new(
+            path,
+            format!("column '{column}' holds '{raw}', which is not a number"),
+            "coordinates must be plain decimal numbers (e.g. 512.25); fix or remove the row",
+        )
+        .at(place)),
+    }
+}
+
+/// Does a legacy GeoJSON `crs` member name a lon/lat system?
+fn crs_is_lonlat(crs: &serde_json::Value) -> Option<bool> {
+    let name = crs
+        .get("properties")?
+        .get("name")?
+        .as_str()?
+        .to_ascii_uppercase();
+    Some(name.contains("CRS84") || name.ends_with(":4326") || name.ends_with("::4326"))
+}
+
+fn read_geojson_points(
+    path: &Path,
+    text: &str,
+    choice: CoordChoice,
+    field: Option<&str>,
+) -> Result<RawPoints, InputError> {
+    let gj: GeoJson = text.parse().map_err(|e| {
+        InputError::new(
+            path,
+            format!("not valid GeoJSON ({e})"),
+            "check the file against RFC 7946 (a FeatureCollection of Point or MultiPoint features)",
+        )
+    })?;
+    let (features, crs) = match gj {
+        GeoJson::FeatureCollection(fc) => {
+            let crs = fc
+                .foreign_members
+                .as_ref()
+                .and_then(|m| m.get("crs"))
+                .cloned();
+            (fc.features, crs)
+        }
+        GeoJson::Feature(f) => {
+            let crs = f
+                .foreign_members
+                .as_ref()
+                .and_then(|m| m.get("crs"))
+                .cloned();
+            (vec![f], crs)
+        }
+        GeoJson::Geometry(g) => {
+            let crs = g
+                .foreign_members
+                .as_ref()
+                .and_then(|m| m.get("crs"))
+                .cloned();
+            (
+                vec![geojson::Feature {
+                    geometry: Some(g),
+                    ..Default::default()
+                }],
+                crs,
+            )
+        }
+    };
+    let declared = match &crs {
+        None => Some(true),
+        Some(c) => crs_is_lonlat(c),
+    };
+    let system = match (choice, declared) {
+        (CoordChoice::Projected, _) => CoordSystem::Projected,
+        (CoordChoice::LonLat, _) => CoordSystem::LonLat,
+        (CoordChoice::Auto, Some(true)) => CoordSystem::LonLat,
+        (CoordChoice::Auto, Some(false)) => CoordSystem::Projected,
+        (CoordChoice::Auto, None) => {
+            return Err(InputError::new(
+                path,
+                "the legacy 'crs' member cannot be read as a named system",
+                "say how to read the coordinates with --coords projected or --coords lonlat",
+            ));
+        }
+    };
+    let mut coords = Vec::new();
+    let mut places = Vec::new();
+    let mut values = Vec::new();
+    for (i, f) in features.iter().enumerate() {
+        let place = format!("feature {}", i + 1);
+        let Some(geometry) = &f.geometry else {
+            return Err(InputError::new(
+                path,
+                "the feature has no geometry",
+                "remove it or give it a Point geometry",
+            )
+            .at(place));
+        };
+        let value = match field {
+            None => None,
+            Some(name) => Some(
+                f.properties
+                    .as_ref()
+                    .and_then(|p| p.get(name))
+                    .map(|v| {
+                        v.as_str()
+                            .map(str::to_string)
+                            .unwrap_or_else(|| v.to_string())
+                    })
+                    .ok_or_else(|| {
+                        InputError::new(
+                            path,
+                            format!("the feature has no property '{name}'"),
+                            "give every feature that property",
+                        )
+                        .at(place.clone())
+                    })?,
+            ),
+        };
+        let positions: Vec<&geojson::Position> = match &geometry.value {
+            GeometryValue::Point { coordinates } => vec![coordinates],
+            GeometryValue::MultiPoint { coordinates } => coordinates.iter().collect(),
+            other => {
+                return Err(InputError::new(
+                    path,
+                    format!("the feature is a {}, not a point", other.type_name()),
+                    "point files may hold only Point and MultiPoint features; put study-area polygons in a --boundary file",
+                )
+                .at(place));
+            }
+        };
+        for pos in positions {
+            let s = pos.as_slice();
+            if s.len() < 2 || !s[0].is_finite() || !s[1].is_finite() {
+                return Err(InputError::new(
+                    path,
+                    "a position needs two finite numbers",
+                    "fix the coordinates",
+                )
+                .at(place));
+            }
+            coords.push([s[0], s[1]]);
+            places.push(place.clone());
+            if let Some(v) = &value {
+                values.push(v.clone());
+            }
+        }
+    }
+    Ok(RawPoints {
+        coords,
+        places,
+        system,
+        field_values: field.map(|_| values),
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use std::io::Write;
+
+    fn file(ext: &str, body: &str) -> tempfile::NamedTempFile {
+        let mut f = tempfile::Builder::new().suffix(ext).tempfile().unwrap();
+        f.write_all(body.as_bytes()).unwrap();
+        f
+    }
+
+    #[test]
+    fn csv_picks_columns_by_name_and_delimiter() {
+        let f = file(".csv", "id;Easting;Northing\n1;10,5;20\n2;11;21\n");
+        let p = read_points(f.path(), CoordChoice::Auto, None).unwrap();
+        assert_eq!(p.coords, vec![[10.5, 20.0], [11.0, 21.0]]);
+        assert_eq!(p.system, CoordSystem::Projected);
+        assert_eq!(p.places[1], "line 3");
+    }
+
+    #[test]
+    fn csv_lonlat_columns_are_geographic() {
+        let f = file(".csv", "lat\tlon\n50.1\t8.2\n");
+        let p = read_points(f.path(), CoordChoice::Auto, None).unwrap();
+        assert_eq!(p.coords, vec![[8.2, 50.1]]);
+        assert_eq!(p.system, CoordSystem::LonLat);
+    }
+
+    #[test]
+    fn small_planar_values_are_never_read_as_degrees() {
+        let f = file(".csv", "x,y\n12.0,45.0\n13.0,46.0\n");
+        assert_eq!(
+            read_points(f.path(), CoordChoice::Auto, None)
+                .unwrap()
+                .system,
+            CoordSystem::Projected
+        );
+    }
+
+    #[test]
+    fn bad_number_names_line_and_column() {
+        let f = file(".csv", "x,y\n1,2\n3,abc\n");
+        let e = read_points(f.path(), CoordChoice::Auto, None).unwrap_err();
+        assert_eq!(e.location.as_deref(), Some("line 3"));
+        assert!(e.what.contains("'y'") && e.what.contains("abc"), "{e}");
+        let f = file(".csv", "x,y\n1,NaN\n");
+        assert!(
+            read_points(f.path(), CoordChoice::Auto, None)
+                .unwrap_err()
+                .what
+                .contains("not a finite number")
+        );
+    }
+
+    #[test]
+    fn ambiguous_or_unknown_headers_stop() {
+        let f = file(".csv", "x,y,lon,lat\n1,2,3,4\n");
+        assert!(
+            read_points(f.path(), CoordChoice::Auto, None)
+                .unwrap_err()
+                .hint
+                .contains("--coords")
+        );
+        let f = file(".csv", "a,b\n1,2\n");
+        assert!(read_points(f.path(), CoordChoice::Auto, None).is_err());
+    }
+
+    #[test]
+    fn geojson_legacy_crs_means_projected() {
+        let body = r#"{"type":"FeatureCollection","crs":{"type":"name","properties":{"name":"urn:ogc:def:crs:EPSG::32632"}},
+          "features":[{"type":"Feature","properties":{"plot":"a"},"geometry":{"type":"MultiPoint","coordinates":[[500000,5500000],[500010,5500000]]}}]}"#;
+        let f = file(".geojson", body);
+        let p = read_points(f.path(), CoordChoice::Auto, Some("plot")).unwrap();
+        assert_eq!(p.system, CoordSystem::Projected);
+        assert_eq!(p.coords.len(), 2);
+        assert_eq!(p.field_values.unwrap(), vec!["a", "a"]);
+    }
+
+    #[test]
+    fn geojson_rejects_polygons_in_point_file() {
+        let body = r#"{"type":"FeatureCollection","features":[{"type":"Feature","properties":null,"geometry":{"type":"Polygon","coordinates":[[[0,0],[1,0],[1,1],[0,0]]]}}]}"#;
+        let f = file(".geojson", body);
+        let e = read_points(f.path(), CoordChoice::Auto, None).unwrap_err();
+        assert_eq!(e.location.as_deref(), Some("feature 1"));
+    }
+}
