@@ -1,1 +1,30 @@
+//! The audit: one data set, every defensible study area × every edge
+//! handling, side by side.
+//!
+//! | module | job |
+//! |---|---|
+//! | [`window`] | builds the study-area variants (`bbox`, `hull`, `hull+D`, `concave`, `boundary`, `area`) |
+//! | [`edge`] | the edge-handling choices as one enum |
+//! | [`sampling`] | exact uniform points in a polygon with holes (for simulations) |
+//! | [`streams`] | per-simulation random streams derived from one seed |
+//! | [`simulation`] | CSR patterns in a window and the statistics taken on each |
+//! | [`sweep`] | the loop over windows × edges that yields the verdict table |
+//! | [`flip`] | where the call changes: area and buffer thresholds per edge handling |
+//! | [`robustness`] | counts, unanimity, what flips the call, the plain-language verdict |
+//!
+//! A new edge correction is one more [`edge::Edge`] variant, one arm in
+//! [`sweep`], and its tests; a new window kind is one more
+//! [`window::WindowKind`] and a builder in [`window`].
 
+pub mod edge;
+pub mod flip;
+pub mod robustness;
+pub mod sampling;
+pub mod simulation;
+pub mod streams;
+pub mod sweep;
+pub mod window;
+
+pub use edge::Edge;
+pub use sweep::{Audit, AuditOptions, ResultRow, run_audit};
+pub use window::{BufferRule, Window, WindowKind};

@@ -9,15 +9,23 @@
 //! | [`normal`] | normal tail probabilities and critical values (`statrs`) |
 //! | [`call`] | the verdict of one row at a chosen α |
 //! | [`flip`] | closed-form window areas at which the uncorrected call changes |
+//! | [`donnelly`] | Donnelly's (1978) edge-corrected mean and standard error |
+//! | [`guard_zone`] | moments of the guard-zone (border) test |
+//! | [`toroidal`] | nearest-neighbour distances on a torus |
+//! | [`monte_carlo`] | rank p-values and quantiles for simulation tests |
 //!
 //! Points are `[x, y]` pairs in a projected, planar unit; the caller
 //! (the `io` crate) is responsible for projecting geographic input.
 
 pub mod call;
 pub mod clark_evans;
+pub mod donnelly;
 pub mod flip;
+pub mod guard_zone;
+pub mod monte_carlo;
 pub mod nearest;
 pub mod normal;
+pub mod toroidal;
 
 pub use call::Call;
 pub use clark_evans::{CE_MEAN_FACTOR, CE_SE_FACTOR, ClarkEvans};

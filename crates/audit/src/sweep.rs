@@ -1,0 +1,469 @@
+//! The sweep: every window × every edge handling, one row each.
+//!
+//! For each window the covered points are taken, their statistics measured
+//! once ([`crate::simulation::measure`]), and the CSR simulations run once;
+//! each edge handling then turns those numbers into a row. Rows that a
+//! choice cannot produce (a torus on a non-rectangle, a simulation without
+//! an outline) go to `skipped` with the reason, so the table never shows a
+//! number that does not mean anything.
+
+use crate::edge::Edge;
+use crate::flip::{FlipEntry, flip_entries};
+use crate::robustness::{Summary, summarise};
+use crate::sampling::Sampler;
+use crate::simulation::{Measure, PatternStats, measure, simulate};
+use crate::window::{NamedShape, Window, WindowKind, WindowOptions, build_windows};
+use patternproof_core::monte_carlo::{quantile, two_sided_rank_p};
+use patternproof_core::nearest::{mean, nearest_distances};
+use patternproof_core::normal::two_sided_critical;
+use patternproof_core::{Call, ClarkEvans, Xy, donnelly, guard_zone};
+use serde::Serialize;
+
+/// Fewest focal points for which the guard-zone row is reported; below it
+/// the row says so instead of giving a number (our choice: with fewer than
+/// five focal distances the normal approximation is not worth printing).
+pub const MIN_FOCAL: usize = 5;
+
+/// Everything the sweep needs besides the data.
+#[derive(Debug, Clone)]
+pub struct AuditOptions {
+    /// How the windows are built.
+    pub windows: WindowOptions,
+    /// Significance level, two-sided.
+    pub alpha: f64,
+    /// Edge handlings to sweep, in table order.
+    pub edges: Vec<Edge>,
+    /// Guard width for `border`; default the observed mean NN distance.
+    pub guard: Option<f64>,
+    /// Number of CSR simulations per window.
+    pub sims: usize,
+    /// Seed of all random streams.
+    pub seed: u64,
+}
+
+impl Default for AuditOptions {
+    fn default() -> Self {
+        Self {
+            windows: WindowOptions::default(),
+            alpha: 0.05,
+            edges: Edge::ALL.to_vec(),
+            guard: None,
+            sims: 999,
+            seed: 1,
+        }
+    }
+}
+
+/// One row of the verdict table.
+#[derive(Debug, Clone, Serialize)]
+pub struct ResultRow {
+    /// Window id.
+    pub window: String,
+    /// Edge handling.
+    pub edge: Edge,
+    /// Points covered by the window.
+    pub n_used: usize,
+    /// Focal points (guard zone only).
+    pub focal: Option<usize>,
+    /// Observed mean nearest-neighbour distance (focal points for `border`,
+    /// torus distances for `toroidal`).
+    pub mean_nn: Option<f64>,
+    /// Expected mean under CSR (simulated mean for `simulation`).
+    pub expected_nn: Option<f64>,
+    /// mean_nn / expected_nn.
+    pub ratio: Option<f64>,
+    /// Standard error of the mean (standard deviation of the simulated
+    /// means for `simulation`).
+    pub se: Option<f64>,
+    /// Standardised difference.
+    pub z: Option<f64>,
+    /// Two-sided p (rank p for `simulation`).
+    pub p: Option<f64>,
+    /// The call at α; `None` when the row has no number.
+    pub call: Option<Call>,
+    /// Caveats for this row.
+    pub note: Option<String>,
+    /// Share of the window's CSR simulations this analytic test calls
+    /// significant at α: its real false-alarm rate here.
+    pub size_under_csr: Option<f64>,
+    /// Simulations behind the row (`simulation` only).
+    pub sims: Option<usize>,
+    /// Seed (`simulation` only).
+    pub seed: Option<u64>,
+    /// Mean of the simulated mean distances.
+    pub sim_mean: Option<f64>,
+    /// 2.5 % quantile of the simulated mean distances.
+    pub sim_q025: Option<f64>,
+    /// 97.5 % quantile of the simulated mean distances.
+    pub sim_q975: Option<f64>,
+}
+
+impl ResultRow {
+    fn empty(window: &str, edge: Edge, n_used: usize) -> Self {
+        Self {
+            window: window.to_string(),
+            edge,
+            n_used,
+            focal: None,
+            mean_nn: None,
+            expected_nn: None,
+            ratio: None,
+            se: None,
+            z: None,
+            p: None,
+            call: None,
+            note: None,
+            size_under_csr: None,
+            sims: None,
+            seed: None,
+            sim_mean: None,
+            sim_q025: None,
+            sim_q975: None,
+        }
+    }
+
+    fn with_test(mut self, t: ClarkEvans, alpha: f64) -> Self {
+        self.mean_nn = Some(t.mean_nn);
+        self.expected_nn = Some(t.expected);
+        self.ratio = Some(t.ratio);
+        self.se = Some(t.se);
+        self.z = Some(t.z);
+        self.p = Some(t.p);
+        self.call = Some(Call::from_p(t.p, t.z, alpha));
+        self
+    }
+}
+
+/// A (window, edge) pair that has no row, and why.
+#[derive(Debug, Clone, Serialize)]
+pub struct Skipped {
+    /// Window id.
+    pub window: String,
+    /// Edge handling.
+    pub edge: Edge,
+    /// Why there is no row.
+    pub reason: String,
+}
+
+/// The full result of one audit.
+#[derive(Debug, Clone, Serialize)]
+pub struct Audit {
+    /// Points analysed.
+    pub n: usize,
+    /// Observed mean nearest-neighbour distance of all points.
+    pub mean_nn: f64,
+    /// Two-sided critical value at α.
+    pub z_crit: f64,
+    /// Significance level.
+    pub alpha: f64,
+    /// Guard width used by `border`.
+    pub guard: f64,
+    /// Whether the guard width was the default (the mean NN distance).
+    pub guard_is_default: bool,
+    /// Simulations per window.
+    pub sims: usize,
+    /// Seed.
+    pub seed: u64,
+    /// Edge handlings swept.
+    pub edges: Vec<Edge>,
+    /// The windows, in table order.
+    pub windows: Vec<Window>,
+    /// The verdict table.
+    pub results: Vec<ResultRow>,
+    /// Pairs without a row.
+    pub skipped: Vec<Skipped>,
+    /// Notes on windows that could not be built.
+    pub notes: Vec<String>,
+    /// Flip thresholds, one entry per analytic edge handling.
+    pub flip: Vec<FlipEntry>,
+    /// Counts, unanimity and the plain-language verdict.
+    pub summary: Summary,
+    /// Simulated mean distances per window (for pictures), same order as
+    /// `windows`; empty where there was no simulation.
+    #[serde(skip)]
+    pub simulated_means: Vec<Vec<f64>>,
+}
+
+/// Run the sweep. `None` when fewer than two points are given or α is not
+/// in (0, 1). `tick` is called once per simulated pattern (progress bars).
+pub fn run_audit(
+    points: &[Xy],
+    boundaries: &[NamedShape],
+    options: &AuditOptions,
+    tick: &(dyn Fn() + Sync),
+) -> Option<Audit> {
+    let z_crit = two_sided_critical(options.alpha)?;
+    let all_nn = mean(&nearest_distances(points)?)?;
+    let (windows, notes) = build_windows(points, all_nn, boundaries, &options.windows);
+    let guard = options.guard.unwrap_or(all_nn);
+    let mut results = Vec::new();
+    let mut skipped = Vec::new();
+    let mut simulated_means = Vec::new();
+
+    for w in &windows {
+        let (rows, skips, sim_means) = window_rows(points, w, guard, options, tick);
+        results.extend(rows);
+        skipped.extend(skips);
+        simulated_means.push(sim_means);
+    }
+    let flip = flip_entries(points.len(), all_nn, z_crit, &windows, &options.edges);
+    let summary = summarise(&results, &windows, options.alpha);
+    Some(Audit {
+        n: points.len(),
+        mean_nn: all_nn,
+        z_crit,
+        alpha: options.alpha,
+        guard,
+        guard_is_default: options.guard.is_none(),
+        sims: options.sims,
+        seed: options.seed,
+        edges: options.edges.clone(),
+        windows,
+        results,
+        skipped,
+        notes,
+        flip,
+        summary,
+        simulated_means,
+    })
+}
+
+fn window_rows(
+    points: &[Xy],
+    w: &Window,
+    guard: f64,
+    options: &AuditOptions,
+    tick: &(dyn Fn() + Sync),
+) -> (Vec<ResultRow>, Vec<Skipped>, Vec<f64>) {
+    let alpha = options.alpha;
+    let mut rows = Vec::new();
+    let mut skips = Vec::new();
+    let skip = |edge: Edge, reason: &str| Skipped {
+        window: w.id.clone(),
+        edge,
+        reason: reason.to_string(),
+    };
+    let used: Vec<Xy> = w.inside.iter().map(|&i| points[i]).collect();
+    let n = used.len();
+    if n < 2 {
+        for &e in &options.edges {
+            skips.push(skip(e, &format!("only {n} point(s) inside the window")));
+        }
+        return (rows, skips, Vec::new());
+    }
+    let wants = |e: Edge| options.edges.contains(&e);
+    let m = Measure {
+        shape: if wants(Edge::Border) {
+            w.shape.as_ref()
+        } else {
+            None
+        },
+        guard: wants(Edge::Border).then_some(guard),
+        rectangle: if wants(Edge::Toroidal) {
+            w.rectangle
+        } else {
+            None
+        },
+    };
+    let Some(observed) = measure(&used, m) else {
+        return (rows, skips, Vec::new());
+    };
+    let sims: Vec<PatternStats> = match (&w.shape, options.sims) {
+        (Some(shape), k) if k > 0 => match Sampler::new(shape) {
+            Some(sampler) => simulate(&sampler, n, k, options.seed, &w.id, m, tick),
+            None => Vec::new(),
+        },
+        _ => Vec::new(),
+    };
+    let outside_note = (w.points_outside > 0).then(|| {
+        format!(
+            "{} point(s) outside this window are left out",
+            w.points_outside
+        )
+    });
+    let is_rect = w.rectangle.is_some();
+    let perimeter = w.perimeter;
+    let area = w.area;
+
+    for &edge in &options.edges {
+        let mut notes: Vec<String> = outside_note.iter().cloned().collect();
+        let row = ResultRow::empty(&w.id, edge, n);
+        let row = match edge {
+            Edge::None => {
+                let Some(t) = ClarkEvans::uncorrected(observed.mean_nn, n, area) else {
+                    skips.push(skip(edge, "the window has no positive area"));
+                    continue;
+                };
+                let mut r = row.with_test(t, alpha);
+                r.size_under_csr = false_alarm_rate(
+                    &sims,
+                    |s| ClarkEvans::uncorrected(s.mean_nn, n, area),
+                    alpha,
+                );
+                r
+            }
+            Edge::Donnelly => {
+                let Some(p) = perimeter else {
+                    skips.push(skip(
+                        edge,
+                        "a bare area has no perimeter for Donnelly's correction",
+                    ));
+                    continue;
+                };
+                let Some(t) = donnelly::test(observed.mean_nn, n, area, p) else {
+                    skips.push(skip(edge, "the window has no positive area"));
+                    continue;
+                };
+                if !is_rect {
+                    notes
+                        .push("approximation: Donnelly's formula was fitted for rectangles".into());
+                }
+                if n < donnelly::DONNELLY_MIN_N {
+                    notes.push(format!(
+                        "n = {n} is below the n ≥ 7 the formula was fitted for"
+                    ));
+                }
+                let mut r = row.with_test(t, alpha);
+                r.size_under_csr =
+                    false_alarm_rate(&sims, |s| donnelly::test(s.mean_nn, n, area, p), alpha);
+                r
+            }
+            Edge::Border => {
+                let Some((mean_focal, focal)) = observed.border else {
+                    skips.push(skip(edge, "a bare area has no outline for a guard zone"));
+                    continue;
+                };
+                let mut r = if focal < MIN_FOCAL {
+                    notes.push(format!(
+                        "only {focal} point(s) lie at least {guard:.4} from the outline; fewer than {MIN_FOCAL} focal points give no usable test (narrow the guard with --guard)"
+                    ));
+                    row
+                } else {
+                    match guard_zone::test(mean_focal, focal, n, area) {
+                        Some(t) => row.with_test(t, alpha),
+                        None => row,
+                    }
+                };
+                r.focal = Some(focal);
+                if focal >= MIN_FOCAL {
+                    r.size_under_csr = false_alarm_rate(
+                        &sims,
+                        |s| {
+                            s.border.and_then(|(mf, k)| {
+                                if k >= MIN_FOCAL {
+                                    guard_zone::test(mf, k, n, area)
+                                } else {
+                                    None
+                                }
+                            })
+                        },
+                        alpha,
+                    );
+                }
+                r
+            }
+            Edge::Toroidal => {
+                let Some(t_mean) = observed.torus_mean else {
+                    skips.push(skip(
+                        edge,
+                        if w.kind == WindowKind::Area {
+                            "a bare area has no outline to wrap"
+                        } else {
+                            "torus distances need an axis-aligned rectangle"
+                        },
+                    ));
+                    continue;
+                };
+                let Some(t) = ClarkEvans::uncorrected(t_mean, n, area) else {
+                    continue;
+                };
+                let mut r = row.with_test(t, alpha);
+                r.size_under_csr = false_alarm_rate(
+                    &sims,
+                    |s| {
+                        s.torus_mean
+                            .and_then(|tm| ClarkEvans::uncorrected(tm, n, area))
+                    },
+                    alpha,
+                );
+                r
+            }
+            Edge::Simulation => {
+                if sims.is_empty() {
+                    skips.push(skip(
+                        edge,
+                        if w.shape.is_none() {
+                            "a bare area has no outline to simulate in"
+                        } else {
+                            "no simulations were run (--sims 0)"
+                        },
+                    ));
+                    continue;
+                }
+                let means: Vec<f64> = sims.iter().map(|s| s.mean_nn).collect();
+                simulation_row(row, observed.mean_nn, &means, options)
+            }
+        };
+        let mut row = row;
+        if !notes.is_empty() {
+            row.note = Some(notes.join("; "));
+        }
+        rows.push(row);
+    }
+    (rows, skips, sims.iter().map(|s| s.mean_nn).collect())
+}
+
+fn simulation_row(
+    mut row: ResultRow,
+    observed: f64,
+    means: &[f64],
+    options: &AuditOptions,
+) -> ResultRow {
+    let k = means.len() as f64;
+    let sim_mean = means.iter().sum::<f64>() / k;
+    let sd =
+        (means.iter().map(|m| (m - sim_mean).powi(2)).sum::<f64>() / (k - 1.0).max(1.0)).sqrt();
+    let p = two_sided_rank_p(observed, means);
+    row.mean_nn = Some(observed);
+    row.expected_nn = Some(sim_mean);
+    row.ratio = Some(observed / sim_mean);
+    if sd > 0.0 {
+        row.se = Some(sd);
+        row.z = Some((observed - sim_mean) / sd);
+    }
+    row.p = Some(p);
+    row.call = Some(Call::from_p(p, observed - sim_mean, options.alpha));
+    row.sims = Some(means.len());
+    row.seed = Some(options.seed);
+    row.sim_mean = Some(sim_mean);
+    row.sim_q025 = quantile(means, 0.025);
+    row.sim_q975 = quantile(means, 0.975);
+    let smallest = 2.0 / (k + 1.0);
+    if smallest > options.alpha {
+        row.note = Some(format!(
+            "{} simulations cannot reach p ≤ {}: the smallest two-sided rank p is {smallest:.3}",
+            means.len(),
+            options.alpha
+        ));
+    }
+    row
+}
+
+/// Share of simulated CSR patterns that `test` calls significant at α.
+fn false_alarm_rate(
+    sims: &[PatternStats],
+    test: impl Fn(&PatternStats) -> Option<ClarkEvans>,
+    alpha: f64,
+) -> Option<f64> {
+    let mut used = 0usize;
+    let mut rejected = 0usize;
+    for s in sims {
+        if let Some(t) = test(s) {
+            used += 1;
+            if t.p <= alpha {
+                rejected += 1;
+            }
+        }
+    }
+    (used > 0).then(|| rejected as f64 / used as f64)
+}

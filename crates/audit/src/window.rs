@@ -1,0 +1,440 @@
+//! Study-area variants ("windows").
+//!
+//! Every window is a value with an id, a kind, its area and perimeter, and
+//! how many points fall outside it. Geometry comes from `geo`: bounding
+//! rectangle, convex hull, concave hull, round-joined buffer (its default
+//! join: arcs cut into segments of 0.2 rad), area, perimeter.
+//!
+//! Defaults, chosen so every data set gets the same family:
+//! * buffers: 0.5×, 1× and 2× the observed mean nearest-neighbour distance,
+//!   the spacing at which a surveyor plausibly draws a margin around the
+//!   outermost finds;
+//! * concave hull: `geo`'s concavity 2.0 (its default; smaller values cut
+//!   deeper), no length threshold.
+
+use geo::algorithm::Buffer;
+use geo::{
+    Area, BoundingRect, ConcaveHull, ConvexHull, Coord, Euclidean, Intersects, Length, LineString,
+    MultiPoint, MultiPolygon, Point, Polygon, Rect as GeoRect,
+};
+use patternproof_core::Xy;
+use patternproof_core::toroidal::Rect;
+use serde::Serialize;
+
+/// What a window is made from.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum WindowKind {
+    /// Axis-aligned bounding rectangle of the points.
+    Bbox,
+    /// Convex hull of the points.
+    Hull,
+    /// Convex hull buffered outward (round joins).
+    BufferedHull,
+    /// Concave hull of the points.
+    Concave,
+    /// A user-supplied boundary.
+    Boundary,
+    /// A bare area value (`--area`): no outline.
+    Area,
+}
+
+/// How buffer distances are chosen.
+#[derive(Debug, Clone, PartialEq)]
+pub enum BufferRule {
+    /// Multiples of the observed mean nearest-neighbour distance.
+    MeanNnMultiples(Vec<f64>),
+    /// Fixed distances in the data's unit.
+    Distances(Vec<f64>),
+}
+
+impl Default for BufferRule {
+    fn default() -> Self {
+        BufferRule::MeanNnMultiples(vec![0.5, 1.0, 2.0])
+    }
+}
+
+/// One study-area variant.
+#[derive(Debug, Clone, Serialize)]
+pub struct Window {
+    /// `bbox`, `hull`, `hull+12.5`, `concave`, `boundary`, `boundary:NAME`, `area`.
+    pub id: String,
+    /// What it is made from.
+    pub kind: WindowKind,
+    /// Buffer distance for `hull+D`.
+    pub buffer: Option<f64>,
+    /// Area in the unit squared.
+    pub area: f64,
+    /// Perimeter (all rings, holes included); `None` for a bare area.
+    pub perimeter: Option<f64>,
+    /// Points not covered by the window (not used in its rows).
+    pub points_outside: usize,
+    /// Where the window came from, for boundaries.
+    pub source: Option<String>,
+    /// The outline in planar coordinates; `None` for a bare area.
+    #[serde(skip)]
+    pub shape: Option<MultiPolygon<f64>>,
+    /// The rectangle, when the window is an axis-aligned rectangle
+    /// (torus distances are defined only there).
+    #[serde(skip)]
+    pub rectangle: Option<Rect>,
+    /// Indices of the points the window covers.
+    #[serde(skip)]
+    pub inside: Vec<usize>,
+}
+
+/// A user boundary handed to the window builder.
+#[derive(Debug, Clone)]
+pub struct NamedShape {
+    /// Name for `boundary:NAME`.
+    pub name: String,
+    /// Where it came from.
+    pub source: String,
+    /// The polygons.
+    pub shape: MultiPolygon<f64>,
+}
+
+/// Settings for building windows.
+#[derive(Debug, Clone)]
+pub struct WindowOptions {
+    /// Buffer distances for the `hull+D` family.
+    pub buffers: BufferRule,
+    /// `--area`.
+    pub area: Option<f64>,
+    /// Concavity passed to `geo`'s concave hull.
+    pub concavity: f64,
+}
+
+impl Default for WindowOptions {
+    fn default() -> Self {
+        Self {
+            buffers: BufferRule::default(),
+            area: None,
+            concavity: 2.0,
+        }
+    }
+}
+
+/// Area of all polygons.
+pub fn shape_area(shape: &MultiPolygon<f64>) -> f64 {
+    shape.unsigned_area()
+}
+
+/// Perimeter: the length of every ring, exterior and interior.
+pub fn shape_perimeter(shape: &MultiPolygon<f64>) -> f64 {
+    shape
+        .iter()
+        .map(|p| {
+            Euclidean.length(p.exterior())
+                + p.interiors()
+                    .iter()
+                    .map(|r| Euclidean.length(r))
+                    .sum::<f64>()
+        })
+        .sum()
+}
+
+/// The windows of one data set, in table order, and notes on any that
+/// could not be built.
+pub fn build_windows(
+    points: &[Xy],
+    mean_nn: f64,
+    boundaries: &[NamedShape],
+    options: &WindowOptions,
+) -> (Vec<Window>, Vec<String>) {
+    let mut windows = Vec::new();
+    let mut notes = Vec::new();
+    let multipoint: MultiPoint<f64> = points.iter().map(|p| Point::new(p[0], p[1])).collect();
+
+    match multipoint.bounding_rect() {
+        Some(r) if r.width() > 0.0 && r.height() > 0.0 => {
+            let rect = Rect {
+                min: [r.min().x, r.min().y],
+                max: [r.max().x, r.max().y],
+            };
+            windows.push(from_shape(
+                "bbox",
+                WindowKind::Bbox,
+                None,
+                None,
+                MultiPolygon::new(vec![r.to_polygon()]),
+                Some(rect),
+                points,
+            ));
+        }
+        _ => notes.push(
+            "bbox skipped: the points lie on one line, so the bounding rectangle has zero area"
+                .into(),
+        ),
+    }
+
+    let hull = multipoint.convex_hull();
+    if hull.unsigned_area() > 0.0 {
+        let hull_shape = MultiPolygon::new(vec![hull.clone()]);
+        windows.push(from_shape(
+            "hull",
+            WindowKind::Hull,
+            None,
+            None,
+            hull_shape,
+            None,
+            points,
+        ));
+        let distances: Vec<f64> = match &options.buffers {
+            BufferRule::MeanNnMultiples(m) => m.iter().map(|k| k * mean_nn).collect(),
+            BufferRule::Distances(d) => d.clone(),
+        };
+        for d in distances {
+            if !(d > 0.0 && d.is_finite()) {
+                notes.push(format!(
+                    "hull+{d} skipped: a buffer must be a positive distance"
+                ));
+                continue;
+            }
+            let buffered = hull.buffer(d);
+            windows.push(from_shape(
+                &format!("hull+{}", short_number(d)),
+                WindowKind::BufferedHull,
+                Some(d),
+                None,
+                buffered,
+                None,
+                points,
+            ));
+        }
+        let concave = multipoint.concave_hull_with_options(
+            geo::algorithm::concave_hull::ConcaveHullOptions {
+                concavity: options.concavity,
+                length_threshold: 0.0,
+            },
+        );
+        if concave.unsigned_area() > 0.0 {
+            windows.push(from_shape(
+                "concave",
+                WindowKind::Concave,
+                None,
+                None,
+                MultiPolygon::new(vec![concave]),
+                None,
+                points,
+            ));
+        } else {
+            notes.push("concave skipped: the concave hull has zero area".into());
+        }
+    } else {
+        notes.push("hull, hull+D and concave skipped: the points are collinear or identical, so the convex hull has zero area".into());
+    }
+
+    let single = boundaries.len() == 1;
+    for b in boundaries {
+        let id = if single {
+            "boundary".to_string()
+        } else {
+            format!("boundary:{}", b.name)
+        };
+        let rect = axis_rectangle(&b.shape);
+        let mut w = from_shape(
+            &id,
+            WindowKind::Boundary,
+            None,
+            Some(b.source.clone()),
+            b.shape.clone(),
+            rect,
+            points,
+        );
+        if windows.iter().any(|o| o.id == w.id) {
+            w.id = format!("{}#{}", w.id, windows.len());
+        }
+        windows.push(w);
+    }
+
+    if let Some(a) = options.area {
+        windows.push(Window {
+            id: "area".into(),
+            kind: WindowKind::Area,
+            buffer: None,
+            area: a,
+            perimeter: None,
+            points_outside: 0,
+            source: Some("--area".into()),
+            shape: None,
+            rectangle: None,
+            inside: (0..points.len()).collect(),
+        });
+    }
+    (windows, notes)
+}
+
+fn from_shape(
+    id: &str,
+    kind: WindowKind,
+    buffer: Option<f64>,
+    source: Option<String>,
+    shape: MultiPolygon<f64>,
+    rectangle: Option<Rect>,
+    points: &[Xy],
+) -> Window {
+    // Intersects counts points on the outline as inside: hull vertices are
+    // data points and must be covered by their own hull.
+    let inside: Vec<usize> = points
+        .iter()
+        .enumerate()
+        .filter(|(_, p)| shape.intersects(&Coord { x: p[0], y: p[1] }))
+        .map(|(i, _)| i)
+        .collect();
+    Window {
+        id: id.to_string(),
+        kind,
+        buffer,
+        area: shape_area(&shape),
+        perimeter: Some(shape_perimeter(&shape)),
+        points_outside: points.len() - inside.len(),
+        source,
+        shape: Some(shape),
+        rectangle,
+        inside,
+    }
+}
+
+/// The rectangle, when `shape` is one axis-aligned rectangle without holes.
+fn axis_rectangle(shape: &MultiPolygon<f64>) -> Option<Rect> {
+    if shape.0.len() != 1 || !shape.0[0].interiors().is_empty() {
+        return None;
+    }
+    let r: GeoRect<f64> = shape.bounding_rect()?;
+    let fits = shape.0[0]
+        .exterior()
+        .coords()
+        .all(|c| (c.x == r.min().x || c.x == r.max().x) && (c.y == r.min().y || c.y == r.max().y));
+    let same_area = (shape.unsigned_area() - r.unsigned_area()).abs() <= 1e-9 * r.unsigned_area();
+    (fits && same_area).then_some(Rect {
+        min: [r.min().x, r.min().y],
+        max: [r.max().x, r.max().y],
+    })
+}
+
+/// Distance from `p` to the nearest edge of any ring of `shape`.
+pub fn distance_to_outline(shape: &MultiPolygon<f64>, p: Xy) -> f64 {
+    use geo::Distance;
+    let point = Point::new(p[0], p[1]);
+    let ring = |r: &LineString<f64>| Euclidean.distance(&point, r);
+    shape
+        .iter()
+        .flat_map(|poly: &Polygon<f64>| std::iter::once(poly.exterior()).chain(poly.interiors()))
+        .map(ring)
+        .fold(f64::INFINITY, f64::min)
+}
+
+/// A buffer distance written compactly for an id: up to 3 significant
+/// decimals, no trailing zeros.
+pub fn short_number(x: f64) -> String {
+    let s = if x.abs() >= 100.0 {
+        format!("{x:.0}")
+    } else if x.abs() >= 10.0 {
+        format!("{x:.1}")
+    } else {
+        format!("{x:.2}")
+    };
+    if s.contains('.') {
+        s.trim_end_matches('0').trim_end_matches('.').to_string()
+    } else {
+        s
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn grid(k: usize, step: f64) -> Vec<Xy> {
+        let mut v = Vec::new();
+        for i in 0..k {
+            for j in 0..k {
+                v.push([i as f64 * step, j as f64 * step]);
+            }
+        }
+        v
+    }
+
+    /// A 5 × 5 grid with step 2 spans 8 × 8: bbox and hull are the same
+    /// square (area 64, perimeter 32, by hand); every point is covered.
+    #[test]
+    fn grid_windows_by_hand() {
+        let pts = grid(5, 2.0);
+        let (w, notes) = build_windows(&pts, 2.0, &[], &WindowOptions::default());
+        assert!(notes.is_empty(), "{notes:?}");
+        let bbox = &w[0];
+        assert_eq!(bbox.id, "bbox");
+        assert!((bbox.area - 64.0).abs() < 1e-12);
+        assert!((bbox.perimeter.unwrap() - 32.0).abs() < 1e-12);
+        assert_eq!(bbox.points_outside, 0);
+        assert!(bbox.rectangle.is_some());
+        let hull = &w[1];
+        assert!((hull.area - 64.0).abs() < 1e-9);
+        assert_eq!(hull.points_outside, 0);
+        let ids: Vec<&str> = w.iter().map(|x| x.id.as_str()).collect();
+        assert_eq!(
+            ids,
+            ["bbox", "hull", "hull+1", "hull+2", "hull+4", "concave"]
+        );
+    }
+
+    /// Steiner's formula (METHODS.md): buffered area A + P·D + π·D², less
+    /// at most the arc-segmentation loss π·D²·(1 − sin θ/θ) at θ = 0.2 rad.
+    #[test]
+    fn buffered_hull_area_follows_steiner() {
+        let pts = grid(5, 2.0);
+        let (w, _) = build_windows(&pts, 2.0, &[], &WindowOptions::default());
+        for win in w.iter().filter(|x| x.kind == WindowKind::BufferedHull) {
+            let d = win.buffer.unwrap();
+            let steiner = 64.0 + 32.0 * d + std::f64::consts::PI * d * d;
+            let slack = std::f64::consts::PI * d * d * (1.0 - 0.2f64.sin() / 0.2) + 1e-9;
+            assert!(
+                win.area <= steiner + 1e-9 && win.area >= steiner - slack,
+                "{} {} {}",
+                win.id,
+                win.area,
+                steiner
+            );
+        }
+    }
+
+    /// Collinear points: the hull has zero area, so hull, hull+D and concave
+    /// are skipped with a note; a diagonal line still has a bounding
+    /// rectangle, a horizontal one does not.
+    #[test]
+    fn collinear_points_skip_area_windows_with_a_note() {
+        let diagonal: Vec<Xy> = (0..10).map(|i| [i as f64, 2.0 * i as f64]).collect();
+        let (w, notes) = build_windows(&diagonal, 2.2, &[], &WindowOptions::default());
+        assert_eq!(w.len(), 1);
+        assert_eq!(w[0].id, "bbox");
+        assert!((w[0].area - 9.0 * 18.0).abs() < 1e-12);
+        assert_eq!(notes.len(), 1);
+        let flat: Vec<Xy> = (0..10).map(|i| [i as f64, 3.0]).collect();
+        let (w, notes) = build_windows(&flat, 1.0, &[], &WindowOptions::default());
+        assert!(w.is_empty());
+        assert_eq!(notes.len(), 2);
+    }
+
+    #[test]
+    fn outline_distance_includes_holes() {
+        let outer = LineString::from(vec![
+            (0.0, 0.0),
+            (10.0, 0.0),
+            (10.0, 10.0),
+            (0.0, 10.0),
+            (0.0, 0.0),
+        ]);
+        let hole = LineString::from(vec![
+            (4.0, 4.0),
+            (6.0, 4.0),
+            (6.0, 6.0),
+            (4.0, 6.0),
+            (4.0, 4.0),
+        ]);
+        let shape = MultiPolygon::new(vec![Polygon::new(outer, vec![hole])]);
+        assert!((distance_to_outline(&shape, [3.0, 5.0]) - 1.0).abs() < 1e-12);
+        assert!((distance_to_outline(&shape, [1.0, 5.0]) - 1.0).abs() < 1e-12);
+        assert!(axis_rectangle(&shape).is_none());
+    }
+}
