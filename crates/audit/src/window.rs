@@ -39,18 +39,39 @@ pub enum WindowKind {
     Area,
 }
 
-/// How buffer distances are chosen.
-#[derive(Debug, Clone, PartialEq)]
+/// One buffer distance of the `hull+D` family.
+#[derive(Debug, Clone, Copy, PartialEq)]
 pub enum BufferRule {
-    /// Multiples of the observed mean nearest-neighbour distance.
-    MeanNnMultiples(Vec<f64>),
-    /// Fixed distances in the data's unit.
-    Distances(Vec<f64>),
+    /// A multiple of the observed mean nearest-neighbour distance.
+    MeanNnMultiple(f64),
+    /// A fixed distance in the data's unit.
+    Distance(f64),
 }
 
-impl Default for BufferRule {
-    fn default() -> Self {
-        BufferRule::MeanNnMultiples(vec![0.5, 1.0, 2.0])
+impl BufferRule {
+    /// The default family: 0.5×, 1× and 2× the mean nearest-neighbour distance.
+    pub fn defaults() -> Vec<BufferRule> {
+        vec![
+            BufferRule::MeanNnMultiple(0.5),
+            BufferRule::MeanNnMultiple(1.0),
+            BufferRule::MeanNnMultiple(2.0),
+        ]
+    }
+
+    /// The distance for a data set with mean nearest-neighbour distance `mean_nn`.
+    pub fn distance(self, mean_nn: f64) -> f64 {
+        match self {
+            BufferRule::MeanNnMultiple(k) => k * mean_nn,
+            BufferRule::Distance(d) => d,
+        }
+    }
+
+    /// As written on the command line: `0.5x` or `12`.
+    pub fn describe(self) -> String {
+        match self {
+            BufferRule::MeanNnMultiple(k) => format!("{k}x"),
+            BufferRule::Distance(d) => format!("{d}"),
+        }
     }
 }
 
@@ -98,7 +119,7 @@ pub struct NamedShape {
 #[derive(Debug, Clone)]
 pub struct WindowOptions {
     /// Buffer distances for the `hull+D` family.
-    pub buffers: BufferRule,
+    pub buffers: Vec<BufferRule>,
     /// `--area`.
     pub area: Option<f64>,
     /// Concavity passed to `geo`'s concave hull.
@@ -108,7 +129,7 @@ pub struct WindowOptions {
 impl Default for WindowOptions {
     fn default() -> Self {
         Self {
-            buffers: BufferRule::default(),
+            buffers: BufferRule::defaults(),
             area: None,
             concavity: 2.0,
         }
@@ -180,10 +201,11 @@ pub fn build_windows(
             None,
             points,
         ));
-        let distances: Vec<f64> = match &options.buffers {
-            BufferRule::MeanNnMultiples(m) => m.iter().map(|k| k * mean_nn).collect(),
-            BufferRule::Distances(d) => d.clone(),
-        };
+        let distances: Vec<f64> = options
+            .buffers
+            .iter()
+            .map(|b| b.distance(mean_nn))
+            .collect();
         for d in distances {
             if !(d > 0.0 && d.is_finite()) {
                 notes.push(format!(

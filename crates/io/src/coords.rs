@@ -89,6 +89,15 @@ impl Projection {
         (p.0.is_finite() && p.1.is_finite()).then_some([p.0, p.1])
     }
 
+    /// Back from metres to lon/lat degrees (for writing windows in the
+    /// input's own system).
+    pub fn inverse(&self, x: f64, y: f64) -> Option<[f64; 2]> {
+        let mut p = (x, y, 0.0);
+        proj4rs::transform::transform(&self.dst, &self.src, &mut p).ok()?;
+        let (lon, lat) = (p.0.to_degrees(), p.1.to_degrees());
+        (lon.is_finite() && lat.is_finite()).then_some([lon, lat])
+    }
+
     /// A proj-style description for reports.
     pub fn describe(&self) -> String {
         format!(
@@ -115,6 +124,17 @@ mod tests {
     /// At the centre the projection is the origin, and it is defined for
     /// points a few degrees away (sanity check; the numeric comparison with
     /// pyproj lives in the reference test of the `tests` crate).
+    #[test]
+    fn inverse_undoes_forward() {
+        let p = Projection::centred_at(10.0, 50.0).unwrap();
+        let xy = p.forward(11.5, 49.2).unwrap();
+        let back = p.inverse(xy[0], xy[1]).unwrap();
+        assert!(
+            (back[0] - 11.5).abs() < 1e-9 && (back[1] - 49.2).abs() < 1e-9,
+            "{back:?}"
+        );
+    }
+
     #[test]
     fn centre_maps_to_origin() {
         let p = Projection::centred_at(10.0, 50.0).unwrap();

@@ -1,1 +1,23 @@
+//! Writers: one result struct ([`document::AuditReport`]) and several
+//! renderings of it, so the JSON, the tables and the map never disagree.
+//!
+//! | module | writes |
+//! |---|---|
+//! | [`document`] | the versioned `report.json` document (schema in `docs/report-schema.md`) |
+//! | [`numbers`] | rounding for human readers (JSON keeps full precision) |
+//! | [`table`] | `verdict.csv` and the terminal table |
+//! | [`markdown`] | `verdict.md` |
+//! | [`outlines`] | `windows.geojson` |
+//! | [`folder`] | the output folder, written aside and renamed into place |
+//!
+//! Every writer takes any `io::Write`, so tests render into a `Vec<u8>`.
 
+pub mod document;
+pub mod folder;
+pub mod markdown;
+pub mod numbers;
+pub mod outlines;
+pub mod table;
+
+pub use document::{AuditReport, InputSummary, SCHEMA};
+pub use folder::{OutputFolder, write_folder};

@@ -1,0 +1,227 @@
+//! `patternproof audit`: load, sweep, write the report folder, print.
+
+use crate::args::{AuditArgs, CoordsArg, InputArgs};
+use crate::fail::Failure;
+use crate::progress::Progress;
+use patternproof_audit::window::{NamedShape, WindowOptions};
+use patternproof_audit::{AuditOptions, BufferRule, Edge, run_audit};
+use patternproof_io::{CoordChoice, Dataset, LoadOptions};
+use patternproof_report::document::BoundarySource;
+use patternproof_report::{
+    AuditReport, InputSummary, OutputFolder, markdown, outlines, table, write_folder,
+};
+
+/// Run the command.
+pub fn run(a: &AuditArgs) -> Result<(), Failure> {
+    let buffers = parse_buffers(&a.buffers)?;
+    let edges = parse_edges(&a.edges)?;
+    check_alpha(a.alpha)?;
+    if let Some(area) = a.area
+        && !(area > 0.0 && area.is_finite())
+    {
+        return Err(Failure::Input(format!(
+            "--area {area}: the area must be a positive number (in the unit squared)\n  what to do: give the study area the analysis used, e.g. --area 12500"
+        )));
+    }
+    if let Some(g) = a.guard
+        && !(g >= 0.0 && g.is_finite())
+    {
+        return Err(Failure::Input(format!(
+            "--guard {g}: the guard width must be a non-negative distance\n  what to do: give a width in the data's unit, or leave it out for the default"
+        )));
+    }
+    if !(a.concavity > 0.0 && a.concavity.is_finite()) {
+        return Err(Failure::Input(format!(
+            "--concavity {}: must be a positive number\n  what to do: leave it out for geo's default 2.0",
+            a.concavity
+        )));
+    }
+    let data = load(&a.input)?;
+    let shapes = named_shapes(&data);
+    let options = AuditOptions {
+        windows: WindowOptions {
+            buffers: buffers.clone(),
+            area: a.area,
+            concavity: a.concavity,
+        },
+        alpha: a.alpha,
+        edges,
+        guard: a.guard,
+        sims: a.sims,
+        seed: a.seed,
+    };
+    let windows_with_outline = 4 + buffers.len() + shapes.len();
+    let progress = Progress::new(
+        (a.sims * windows_with_outline) as u64,
+        a.quiet,
+        "simulating CSR",
+    );
+    let audit =
+        run_audit(&data.points, &shapes, &options, &|| progress.tick()).ok_or_else(|| {
+            Failure::Internal("the sweep could not start although the input was checked".into())
+        })?;
+    progress.finish();
+
+    let report = AuditReport::new(
+        audit,
+        input_summary(&data),
+        buffers
+            .iter()
+            .map(|b| b.describe())
+            .collect::<Vec<_>>()
+            .join(","),
+        a.concavity,
+    );
+    let mut folder = OutputFolder::default();
+    let mut buf = Vec::new();
+    report.write_json(&mut buf).map_err(internal)?;
+    folder.add("report.json", buf);
+    let mut buf = Vec::new();
+    table::write_csv(&report, &mut buf).map_err(internal)?;
+    folder.add("verdict.csv", buf);
+    let mut buf = Vec::new();
+    markdown::write_markdown(&report, &mut buf).map_err(internal)?;
+    folder.add("verdict.md", buf);
+    let mut buf = Vec::new();
+    let unproject = data
+        .projection
+        .as_ref()
+        .map(|p| move |x: f64, y: f64| p.inverse(x, y));
+    let unproject_ref: Option<&dyn Fn(f64, f64) -> Option<[f64; 2]>> = unproject
+        .as_ref()
+        .map(|f| f as &dyn Fn(f64, f64) -> Option<[f64; 2]>);
+    outlines::write_outlines(&report, unproject_ref, &mut buf).map_err(internal)?;
+    folder.add("windows.geojson", buf);
+    write_folder(&a.out, &folder).map_err(|e| Failure::Input(e.to_string()))?;
+
+    print_summary(&report, &a.out, &folder);
+    Ok(())
+}
+
+fn internal(e: std::io::Error) -> Failure {
+    Failure::Internal(format!("could not render the report in memory: {e}"))
+}
+
+/// Load points and boundaries with the shared input flags.
+pub fn load(input: &InputArgs) -> Result<Dataset, Failure> {
+    let coords = match input.coords {
+        CoordsArg::Auto => CoordChoice::Auto,
+        CoordsArg::Projected => CoordChoice::Projected,
+        CoordsArg::Lonlat => CoordChoice::LonLat,
+    };
+    Ok(Dataset::load(
+        &input.points,
+        &input.boundaries,
+        &LoadOptions {
+            coords,
+            unit: input.unit.clone(),
+            drop_duplicates: input.drop_duplicates,
+            field: None,
+        },
+    )?)
+}
+
+/// The boundaries as the audit wants them.
+pub fn named_shapes(data: &Dataset) -> Vec<NamedShape> {
+    data.boundaries
+        .iter()
+        .map(|b| NamedShape {
+            name: b.name.clone(),
+            source: b.file.display().to_string(),
+            shape: b.shape.clone(),
+        })
+        .collect()
+}
+
+/// What the report says about the input.
+pub fn input_summary(data: &Dataset) -> InputSummary {
+    InputSummary {
+        points_file: data.points_file.display().to_string(),
+        n: data.points.len(),
+        n_read: data.n_read,
+        duplicates: data.duplicates,
+        duplicates_dropped: data.duplicates_dropped,
+        coords: data.system.as_str().to_string(),
+        projection: data.projection.as_ref().map(|p| p.describe()),
+        unit: data.unit.clone(),
+        boundaries: data
+            .boundaries
+            .iter()
+            .map(|b| BoundarySource {
+                name: b.name.clone(),
+                file: b.file.display().to_string(),
+            })
+            .collect(),
+        warnings: data.warnings.clone(),
+    }
+}
+
+/// `--buffers 0.5x,1x,2x` or `--buffers 5,10`.
+pub fn parse_buffers(words: &[String]) -> Result<Vec<BufferRule>, Failure> {
+    words
+        .iter()
+        .map(|w| {
+            let w = w.trim();
+            let (num, multiple) = match w.strip_suffix('x') {
+                Some(n) => (n, true),
+                None => (w, false),
+            };
+            match num.parse::<f64>() {
+                Ok(v) if v > 0.0 && v.is_finite() => Ok(if multiple { BufferRule::MeanNnMultiple(v) } else { BufferRule::Distance(v) }),
+                _ => Err(Failure::Input(format!(
+                    "--buffers: `{w}` is not a positive distance\n  what to do: give distances in the unit (e.g. 5,10) or multiples of the mean nearest-neighbour distance (e.g. 0.5x,1x)"
+                ))),
+            }
+        })
+        .collect()
+}
+
+/// `--edges none,donnelly,…`.
+pub fn parse_edges(words: &[String]) -> Result<Vec<Edge>, Failure> {
+    let mut out = Vec::new();
+    for w in words {
+        let e = Edge::parse(w).ok_or_else(|| {
+            Failure::Input(format!(
+                "--edges: `{w}` is not an edge handling\n  what to do: choose from none, donnelly, border, toroidal, simulation"
+            ))
+        })?;
+        if !out.contains(&e) {
+            out.push(e);
+        }
+    }
+    Ok(out)
+}
+
+/// α strictly between 0 and 1.
+pub fn check_alpha(alpha: f64) -> Result<(), Failure> {
+    if alpha > 0.0 && alpha < 1.0 {
+        Ok(())
+    } else {
+        Err(Failure::Input(format!(
+            "--alpha {alpha}: the significance level must lie strictly between 0 and 1\n  what to do: use e.g. --alpha 0.05"
+        )))
+    }
+}
+
+fn print_summary(report: &AuditReport, out: &std::path::Path, folder: &OutputFolder) {
+    for w in &report.input.warnings {
+        eprintln!("patternproof: warning: {w}");
+    }
+    println!("{}", table::terminal_table(report, None));
+    for n in &report.window_notes {
+        println!("note: {n}");
+    }
+    println!("\nWhere the call flips:");
+    for line in table::flip_lines(report) {
+        println!("  {line}");
+    }
+    println!("\nVerdict: {}.", report.summary.verdict);
+    for c in &report.summary.cautions {
+        println!("  caution: {c}");
+    }
+    println!(
+        "\nwrote {} to {}",
+        folder.names().collect::<Vec<_>>().join(", "),
+        out.display()
+    );
+}

@@ -1,0 +1,41 @@
+//! The binary's one error type: what went wrong and which exit code it
+//! earns.
+
+use std::fmt;
+
+/// A failure to report to the user.
+#[derive(Debug)]
+pub enum Failure {
+    /// Bad input or usage: exit 2.
+    Input(String),
+    /// Something that should not happen: exit 1.
+    Internal(String),
+}
+
+impl Failure {
+    /// The process exit code.
+    pub fn exit_code(&self) -> u8 {
+        match self {
+            Failure::Input(_) => 2,
+            Failure::Internal(_) => 1,
+        }
+    }
+}
+
+impl fmt::Display for Failure {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Failure::Input(m) => f.write_str(m),
+            Failure::Internal(m) => write!(
+                f,
+                "{m}\n  this is a bug in patternproof; please report it with the command you ran"
+            ),
+        }
+    }
+}
+
+impl From<patternproof_io::InputError> for Failure {
+    fn from(e: patternproof_io::InputError) -> Self {
+        Failure::Input(e.to_string())
+    }
+}

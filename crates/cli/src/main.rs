@@ -1,0 +1,28 @@
+//! The `patternproof` binary: parses the command line, runs one command,
+//! prints one clear message on failure.
+//!
+//! Exit codes: 0 done; 2 bad input or usage (the message names the file,
+//! where, what is wrong and what to do); 1 an internal failure (a bug:
+//! please report it).
+
+mod args;
+mod audit_cmd;
+mod fail;
+mod progress;
+
+use clap::Parser;
+use std::process::ExitCode;
+
+fn main() -> ExitCode {
+    let cli = args::Cli::parse();
+    let result = match cli.command {
+        args::Command::Audit(a) => audit_cmd::run(&a),
+    };
+    match result {
+        Ok(()) => ExitCode::SUCCESS,
+        Err(e) => {
+            eprintln!("patternproof: error: {e}");
+            ExitCode::from(e.exit_code())
+        }
+    }
+}

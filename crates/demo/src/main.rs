@@ -1,0 +1,148 @@
+//! Writes patternproof's demo data: an invented restored meadow, surveyed
+//! on a local grid in metres, with the burrows of a ground-nesting bee.
+//!
+//! The scenario is made up. The site outline is an irregular polygon with
+//! a pond cut out; burrows come in aggregations (a Thomas cluster process:
+//! parents uniform in the site, offspring normally scattered around them)
+//! plus scattered single nests, and none lie in the pond. The survey grid's
+//! origin is the site's south-west corner, so every coordinate lies between
+//! 0 and 180: exactly the kind of planar data a careless reader might take
+//! for degrees.
+//!
+//! Usage: `cargo run -p patternproof-demo -- [OUT_DIR]` (default
+//! `demo-data`). Same seed, same bytes.
+
+use geo::{Contains, LineString, Point, Polygon};
+use rand::{RngExt, SeedableRng};
+use rand_chacha::ChaCha8Rng;
+use std::fmt::Write as _;
+use std::path::{Path, PathBuf};
+
+/// The seed of the published demo files.
+const SEED: u64 = 20_261_202;
+
+fn main() {
+    let out: PathBuf = std::env::args_os()
+        .nth(1)
+        .map(PathBuf::from)
+        .unwrap_or_else(|| "demo-data".into());
+    if let Err(e) = write_all(&out) {
+        eprintln!("patternproof-demo: error: {e}");
+        std::process::exit(2);
+    }
+}
+
+fn write_all(out: &Path) -> std::io::Result<()> {
+    std::fs::create_dir_all(out)?;
+    let site = meadow_outline();
+    let pond = pond_outline();
+    let region = Polygon::new(site.clone(), vec![pond.clone()]);
+    let burrows = burrows(&region, SEED);
+
+    let mut csv = String::from("burrow,x,y\n");
+    for (i, p) in burrows.iter().enumerate() {
+        let _ = writeln!(csv, "B{:03},{:.2},{:.2}", i + 1, p[0], p[1]);
+    }
+    std::fs::write(out.join("meadow-burrows.csv"), csv)?;
+
+    let ring = |r: &LineString<f64>| -> serde_json::Value {
+        serde_json::Value::Array(
+            r.coords()
+                .map(|c| serde_json::json!([round2(c.x), round2(c.y)]))
+                .collect(),
+        )
+    };
+    let boundary = serde_json::json!({
+        "type": "FeatureCollection",
+        "crs": { "type": "name", "properties": { "name": "local survey grid, metres" } },
+        "features": [{
+            "type": "Feature",
+            "properties": { "name": "meadow", "note": "invented site; the pond is a hole" },
+            "geometry": { "type": "Polygon", "coordinates": [ring(&site), ring(&pond)] }
+        }]
+    });
+    let mut text = serde_json::to_string_pretty(&boundary).map_err(std::io::Error::other)?;
+    text.push('\n');
+    std::fs::write(out.join("meadow-boundary.geojson"), text)?;
+    println!(
+        "wrote {} burrows and the site outline to {}",
+        burrows.len(),
+        out.display()
+    );
+    Ok(())
+}
+
+fn round2(x: f64) -> f64 {
+    (x * 100.0).round() / 100.0
+}
+
+/// An irregular field edge, counter-clockwise, metres.
+fn meadow_outline() -> LineString<f64> {
+    LineString::from(vec![
+        (0.0, 12.0),
+        (38.0, 0.0),
+        (96.0, 4.0),
+        (150.0, 0.0),
+        (176.0, 22.0),
+        (172.0, 70.0),
+        (180.0, 104.0),
+        (140.0, 118.0),
+        (84.0, 112.0),
+        (40.0, 120.0),
+        (8.0, 96.0),
+        (14.0, 54.0),
+        (0.0, 12.0),
+    ])
+}
+
+/// The pond, clockwise (a hole), roughly an ellipse of 34 × 22 m.
+fn pond_outline() -> LineString<f64> {
+    let (cx, cy, rx, ry) = (108.0, 62.0, 17.0, 11.0);
+    let k = 16;
+    let mut v: Vec<(f64, f64)> = (0..k)
+        .map(|i| {
+            let t = -(i as f64) * std::f64::consts::TAU / k as f64;
+            (round2(cx + rx * t.cos()), round2(cy + ry * t.sin()))
+        })
+        .collect();
+    v.push(v[0]);
+    LineString::from(v)
+}
+
+/// Thomas process (parents uniform, offspring N(parent, σ²) each axis)
+/// plus scattered single nests, all kept inside the site and out of the pond.
+fn burrows(region: &Polygon<f64>, seed: u64) -> Vec<[f64; 2]> {
+    let mut rng = ChaCha8Rng::seed_from_u64(seed);
+    let inside = |p: [f64; 2]| region.contains(&Point::new(p[0], p[1]));
+    let uniform = |rng: &mut ChaCha8Rng| loop {
+        let p = [rng.random::<f64>() * 180.0, rng.random::<f64>() * 120.0];
+        if inside(p) {
+            return p;
+        }
+    };
+    let mut out = Vec::new();
+    let (parents, per_parent, sigma) = (11, 9, 3.5);
+    for _ in 0..parents {
+        let c = uniform(&mut rng);
+        let k = per_parent - 3 + (rng.random::<f64>() * 7.0) as usize;
+        let mut made = 0;
+        while made < k {
+            // Box–Muller for a standard normal pair.
+            let (u1, u2): (f64, f64) = (rng.random::<f64>().max(1e-12), rng.random());
+            let r = (-2.0 * u1.ln()).sqrt() * sigma;
+            let p = [
+                c[0] + r * (std::f64::consts::TAU * u2).cos(),
+                c[1] + r * (std::f64::consts::TAU * u2).sin(),
+            ];
+            if inside(p) {
+                out.push([round2(p[0]), round2(p[1])]);
+                made += 1;
+            }
+        }
+    }
+    for _ in 0..45 {
+        let p = uniform(&mut rng);
+        out.push([round2(p[0]), round2(p[1])]);
+    }
+    out
+}

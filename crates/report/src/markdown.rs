@@ -1,0 +1,116 @@
+//! `verdict.md`: the table, the flip thresholds and the verdict in a form
+//! that pastes into a manuscript's supplement or a review.
+
+use crate::document::AuditReport;
+use crate::numbers::{opt, p_value, percent, sig};
+use crate::table::{call_word, flip_lines};
+use std::io;
+
+/// Write `verdict.md`.
+pub fn write_markdown<W: io::Write>(report: &AuditReport, mut out: W) -> io::Result<()> {
+    let u = &report.input.unit;
+    let i = &report.input;
+    writeln!(out, "# Nearest-neighbour audit of `{}`\n", i.points_file)?;
+    writeln!(out, "**Verdict:** {}.\n", report.summary.verdict)?;
+    writeln!(
+        out,
+        "{} points analysed ({} read, {} duplicate(s){}); coordinates {}; distances in {u}, areas in {u}²; α = {} (two-sided, critical |z| = {:.4}); observed mean nearest-neighbour distance {} {u}.\n",
+        i.n,
+        i.n_read,
+        i.duplicates,
+        if i.duplicates_dropped {
+            " removed"
+        } else {
+            " kept"
+        },
+        i.coords,
+        report.alpha,
+        report.settings.z_crit,
+        sig(report.mean_nn, 5),
+    )?;
+    if let Some(p) = &i.projection {
+        writeln!(out, "Projection: {p}.\n")?;
+    }
+    writeln!(out, "## Windows\n")?;
+    writeln!(
+        out,
+        "| id | kind | buffer {u} | area {u}² | perimeter {u} | points outside |"
+    )?;
+    writeln!(out, "|---|---|--:|--:|--:|--:|")?;
+    for w in &report.windows {
+        writeln!(
+            out,
+            "| `{}` | {} | {} | {} | {} | {} |",
+            w.id,
+            serde_json::to_value(w.kind)
+                .ok()
+                .and_then(|v| v.as_str().map(String::from))
+                .unwrap_or_default(),
+            opt(w.buffer, 4),
+            sig(w.area, 5),
+            opt(w.perimeter, 5),
+            w.points_outside
+        )?;
+    }
+    for n in &report.window_notes {
+        writeln!(out, "\n- {n}")?;
+    }
+    writeln!(out, "\n## Verdict table\n")?;
+    writeln!(
+        out,
+        "| window | edge | n | d̄ {u} | E[d] {u} | R | z | p | call | false alarms under CSR | note |"
+    )?;
+    writeln!(out, "|---|---|--:|--:|--:|--:|--:|--:|---|--:|---|")?;
+    for r in &report.results {
+        let n = match r.focal {
+            Some(f) => format!("{f}/{}", r.n_used),
+            None => r.n_used.to_string(),
+        };
+        writeln!(
+            out,
+            "| `{}` | {} | {} | {} | {} | {} | {} | {} | {} | {} | {} |",
+            r.window,
+            r.edge,
+            n,
+            opt(r.mean_nn, 4),
+            opt(r.expected_nn, 4),
+            r.ratio.map_or("—".into(), |x| format!("{x:.3}")),
+            r.z.map_or("—".into(), |x| format!("{x:.2}")),
+            r.p.map_or("—".into(), p_value),
+            call_word(r.call),
+            r.size_under_csr.map_or("—".into(), percent),
+            r.note.clone().unwrap_or_default().replace('|', "/"),
+        )?;
+    }
+    if !report.skipped.is_empty() {
+        writeln!(out, "\nNot computed:\n")?;
+        for s in &report.skipped {
+            writeln!(out, "- `{}` with `{}`: {}", s.window, s.edge, s.reason)?;
+        }
+    }
+    writeln!(
+        out,
+        "\n`border` rows show focal/total points. `simulation` rows: E[d] is the mean of {} simulated CSR patterns in the exact window (seed {}), p the two-sided rank p-value. \"False alarms under CSR\" is the share of those simulated patterns the row's analytic test would call significant at α.\n",
+        report.settings.sims, report.settings.seed
+    )?;
+    writeln!(out, "## Where the call flips\n")?;
+    for line in flip_lines(report) {
+        writeln!(out, "- {line}")?;
+    }
+    writeln!(out, "\n## Cautions\n")?;
+    for c in &report.cautions {
+        writeln!(out, "- {c}")?;
+    }
+    if !i.warnings.is_empty() {
+        writeln!(out, "\n## Input warnings\n")?;
+        for wn in &i.warnings {
+            writeln!(out, "- {wn}")?;
+        }
+    }
+    writeln!(
+        out,
+        "\n---\npatternproof {} · schema {}",
+        report.tool_version, report.schema
+    )?;
+    Ok(())
+}
