@@ -61,6 +61,13 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
             Failure::Internal("the sweep could not start although the input was checked".into())
         })?;
     progress.finish();
+    if audit.results.is_empty() {
+        return Err(Failure::Input(format!(
+            "{}: no window could be tested ({})\n  what to do: the points are identical or collinear, so no study area can be drawn from them; give the surveyed outline with --boundary or the study area with --area",
+            a.input.points.display(),
+            audit.notes.join("; ")
+        )));
+    }
 
     let report = AuditReport::new(
         audit,

@@ -1,0 +1,137 @@
+#!/usr/bin/env python3
+"""Write reference/values.json: independent reference values computed with
+general-purpose libraries (numpy, scipy, shapely, pyproj), read back by the
+Rust integration test crates/cli/tests/reference.rs.
+
+The point sets are generated here with numpy's seeded generator and stored
+in the JSON, so the Rust side uses exactly the same coordinates.
+"""
+
+import json
+import math
+import platform
+import sys
+from pathlib import Path
+
+import numpy as np
+import pyproj
+import scipy
+import shapely
+from scipy.spatial import cKDTree
+from scipy.stats import norm
+from shapely.geometry import MultiPoint
+
+SEED = 20240611
+BUFFERS = [1.0, 5.0]
+Z_VALUES = [-4.28525, -1.959964, 0.3, 2.5]
+LAEA = "+proj=laea +lat_0=50 +lon_0=10 +x_0=0 +y_0=0 +ellps=WGS84 +units=m +no_defs"
+LONLAT_POINTS = [(10.0, 50.0), (11.5, 49.2), (8.3, 51.7), (12.0, 50.0)]
+CELL = {"lon_min": 10.0, "lon_max": 11.0, "lat_min": 50.0, "lat_max": 51.0}
+PER_SIDE = 100
+
+
+def point_sets(rng):
+    uniform = np.column_stack([rng.uniform(0, 100, 50), rng.uniform(0, 60, 50)])
+    centres = np.column_stack([rng.uniform(10, 90, 5), rng.uniform(10, 50, 5)])
+    labels = rng.integers(0, 5, 200)
+    clustered = centres[labels] + rng.normal(0.0, 3.0, (200, 2))
+    small = np.column_stack([rng.uniform(0, 40, 30), rng.uniform(0, 25, 30)])
+    return [("uniform50", uniform), ("clustered200", clustered), ("small30", small)]
+
+
+def describe_set(name, pts):
+    tree = cKDTree(pts)
+    dist, _ = tree.query(pts, k=2)
+    mean_nn = float(dist[:, 1].mean())
+    hull = MultiPoint([tuple(p) for p in pts]).convex_hull
+    area, perim = float(hull.area), float(hull.length)
+    buffers = []
+    for d in BUFFERS:
+        buffers.append(
+            {
+                "distance": d,
+                "shapely_area": float(hull.buffer(d, quad_segs=64).area),
+                "steiner_area": area + perim * d + math.pi * d * d,
+            }
+        )
+    return {
+        "name": name,
+        "points": [[float(x), float(y)] for x, y in pts],
+        "mean_nn": mean_nn,
+        "hull_area": area,
+        "hull_perimeter": perim,
+        "buffers": buffers,
+    }
+
+
+def cell_ring():
+    """Closed lon/lat ring around the cell, PER_SIDE points per side,
+    counter-clockwise: south parallel east, east meridian north,
+    north parallel west, west meridian south."""
+    lo0, lo1 = CELL["lon_min"], CELL["lon_max"]
+    la0, la1 = CELL["lat_min"], CELL["lat_max"]
+    t = [i / PER_SIDE for i in range(PER_SIDE)]
+    ring = []
+    ring += [(lo0 + (lo1 - lo0) * s, la0) for s in t]
+    ring += [(lo1, la0 + (la1 - la0) * s) for s in t]
+    ring += [(lo1 - (lo1 - lo0) * s, la1) for s in t]
+    ring += [(lo0, la1 - (la1 - la0) * s) for s in t]
+    ring.append(ring[0])
+    return ring
+
+
+def main():
+    out_path = Path(__file__).resolve().parent / "values.json"
+    rng = np.random.default_rng(SEED)
+    sets = [describe_set(n, p) for n, p in point_sets(rng)]
+
+    normal = {
+        "z": Z_VALUES,
+        "two_sided_p": [float(2.0 * norm.sf(abs(z))) for z in Z_VALUES],
+        "critical_alpha": 0.05,
+        "critical": float(norm.isf(0.025)),
+    }
+
+    transformer = pyproj.Transformer.from_crs("EPSG:4326", LAEA, always_xy=True)
+    forward = []
+    for lon, lat in LONLAT_POINTS:
+        x, y = transformer.transform(lon, lat)
+        forward.append({"lon": lon, "lat": lat, "x": float(x), "y": float(y)})
+
+    ring = cell_ring()
+    geod = pyproj.Geod(ellps="WGS84")
+    g_area, g_perim = geod.polygon_area_perimeter([p[0] for p in ring], [p[1] for p in ring])
+
+    values = {
+        "generator": "reference/make_reference.py",
+        "seed": SEED,
+        "versions": {
+            "python": platform.python_version(),
+            "numpy": np.__version__,
+            "scipy": scipy.__version__,
+            "shapely": shapely.__version__,
+            "pyproj": pyproj.__version__,
+            "proj": pyproj.proj_version_str,
+        },
+        "point_sets": sets,
+        "normal": normal,
+        "projection": {
+            "proj_string": LAEA,
+            "lon0": 10.0,
+            "lat0": 50.0,
+            "forward": forward,
+            "cell": {
+                **CELL,
+                "per_side": PER_SIDE,
+                "ring": [[lon, lat] for lon, lat in ring],
+                "geodesic_area_m2": abs(float(g_area)),
+                "geodesic_perimeter_m": float(g_perim),
+            },
+        },
+    }
+    out_path.write_text(json.dumps(values, indent=1) + "\n")
+    print(f"wrote {out_path}", file=sys.stderr)
+
+
+if __name__ == "__main__":
+    main()

@@ -1,0 +1,11 @@
+#!/usr/bin/env bash
+# Rebuild reference/values.json with the pinned reference libraries.
+# Exits non-zero on any failure; callers fall back to the committed values.json.
+set -euo pipefail
+here="$(cd "$(dirname "${BASH_SOURCE[0]}")" && pwd)"
+venv="$here/.venv"
+if [ ! -x "$venv/bin/python" ]; then
+    python3 -m venv "$venv"
+fi
+"$venv/bin/python" -m pip install --quiet --disable-pip-version-check -r "$here/requirements.txt"
+"$venv/bin/python" "$here/make_reference.py"
