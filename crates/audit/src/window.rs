@@ -402,7 +402,8 @@ mod tests {
     }
 
     /// Steiner's formula (METHODS.md): buffered area A + P·D + π·D², less
-    /// at most the arc-segmentation loss π·D²·(1 − sin θ/θ) at θ = 0.2 rad.
+    /// at most the arc-segmentation loss π·D²·(1 − sin θ/θ); geo joins with
+    /// chords of up to about 0.4 rad (floor(angle/0.2) chords per corner).
     #[test]
     fn buffered_hull_area_follows_steiner() {
         let pts = grid(5, 2.0);
@@ -410,7 +411,7 @@ mod tests {
         for win in w.iter().filter(|x| x.kind == WindowKind::BufferedHull) {
             let d = win.buffer.unwrap();
             let steiner = 64.0 + 32.0 * d + std::f64::consts::PI * d * d;
-            let slack = std::f64::consts::PI * d * d * (1.0 - 0.2f64.sin() / 0.2) + 1e-9;
+            let slack = std::f64::consts::PI * d * d * (1.0 - 0.4f64.sin() / 0.4) + 1e-9;
             assert!(
                 win.area <= steiner + 1e-9 && win.area >= steiner - slack,
                 "{} {} {}",
