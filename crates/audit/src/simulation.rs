@@ -139,19 +139,31 @@ mod csr_sanity {
     #[test]
     fn mean_ratio_on_a_torus_is_one() {
         let sq = MultiPolygon::new(vec![Polygon::new(
-            LineString::from(vec![(0.0, 0.0), (30.0, 0.0), (30.0, 20.0), (0.0, 20.0), (0.0, 0.0)]),
+            LineString::from(vec![
+                (0.0, 0.0),
+                (30.0, 0.0),
+                (30.0, 20.0),
+                (0.0, 20.0),
+                (0.0, 0.0),
+            ]),
             vec![],
         )]);
         let sampler = Sampler::new(&sq).unwrap();
         let m = Measure {
             shape: None,
             guard: None,
-            rectangle: Some(Rect { min: [0.0, 0.0], max: [30.0, 20.0] }),
+            rectangle: Some(Rect {
+                min: [0.0, 0.0],
+                max: [30.0, 20.0],
+            }),
         };
         let n = 200;
         let stats = simulate(&sampler, n, 400, 2026, "torus-sanity", m, &|| {});
         let expected = 0.5 * (600.0 / n as f64).sqrt();
-        let r: Vec<f64> = stats.iter().map(|s| s.torus_mean.unwrap() / expected).collect();
+        let r: Vec<f64> = stats
+            .iter()
+            .map(|s| s.torus_mean.unwrap() / expected)
+            .collect();
         let k = r.len() as f64;
         let mean = r.iter().sum::<f64>() / k;
         let sd = (r.iter().map(|x| (x - mean).powi(2)).sum::<f64>() / (k - 1.0)).sqrt();
