@@ -178,7 +178,7 @@ fn donnelly_buffer(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use patternproof_core::ClarkEvans;
+    use patternproof_core::NnRatioTest;
 
     /// The scaled-family closed form reproduces Donnelly's z = −z_c exactly
     /// at the threshold (Donnelly 1978 formulas evaluated directly).
@@ -208,7 +208,7 @@ mod tests {
         assert!((t.z + zc).abs() < 1e-9);
         let f = FlipThresholds::new(n, d, zc).unwrap();
         let plain = buffer_for_area(a, p, f.clustered_above_area.unwrap()).unwrap();
-        let t = ClarkEvans::uncorrected(d, n, a + p * plain + pi * plain * plain).unwrap();
+        let t = NnRatioTest::uncorrected(d, n, a + p * plain + pi * plain * plain).unwrap();
         assert!((t.z + zc).abs() < 1e-9);
     }
 }

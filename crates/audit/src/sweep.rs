@@ -16,7 +16,7 @@ use crate::window::{NamedShape, Window, WindowKind, WindowOptions, build_windows
 use patternproof_core::monte_carlo::{quantile, two_sided_rank_p};
 use patternproof_core::nearest::{mean, nearest_distances};
 use patternproof_core::normal::two_sided_critical;
-use patternproof_core::{Call, ClarkEvans, Xy, donnelly, guard_zone};
+use patternproof_core::{Call, NnRatioTest, Xy, donnelly, guard_zone};
 use serde::Serialize;
 
 /// Fewest focal points for which the guard-zone row is reported; below it
@@ -122,7 +122,7 @@ impl ResultRow {
         }
     }
 
-    fn with_test(mut self, t: ClarkEvans, alpha: f64) -> Self {
+    fn with_test(mut self, t: NnRatioTest, alpha: f64) -> Self {
         self.mean_nn = Some(t.mean_nn);
         self.expected_nn = Some(t.expected);
         self.ratio = Some(t.ratio);
@@ -290,14 +290,14 @@ fn window_rows(
         let row = ResultRow::empty(&w.id, edge, n);
         let row = match edge {
             Edge::None => {
-                let Some(t) = ClarkEvans::uncorrected(observed.mean_nn, n, area) else {
+                let Some(t) = NnRatioTest::uncorrected(observed.mean_nn, n, area) else {
                     skips.push(skip(edge, "the window has no positive area"));
                     continue;
                 };
                 let mut r = row.with_test(t, alpha);
                 r.size_under_csr = false_alarm_rate(
                     &sims,
-                    |s| ClarkEvans::uncorrected(s.mean_nn, n, area),
+                    |s| NnRatioTest::uncorrected(s.mean_nn, n, area),
                     alpha,
                 );
                 r
@@ -374,7 +374,7 @@ fn window_rows(
                     ));
                     continue;
                 };
-                let Some(t) = ClarkEvans::uncorrected(t_mean, n, area) else {
+                let Some(t) = NnRatioTest::uncorrected(t_mean, n, area) else {
                     continue;
                 };
                 let mut r = row.with_test(t, alpha);
@@ -382,7 +382,7 @@ fn window_rows(
                     &sims,
                     |s| {
                         s.torus_mean
-                            .and_then(|tm| ClarkEvans::uncorrected(tm, n, area))
+                            .and_then(|tm| NnRatioTest::uncorrected(tm, n, area))
                     },
                     alpha,
                 );
@@ -452,7 +452,7 @@ fn simulation_row(
 /// Share of simulated CSR patterns that `test` calls significant at α.
 fn false_alarm_rate(
     sims: &[PatternStats],
-    test: impl Fn(&PatternStats) -> Option<ClarkEvans>,
+    test: impl Fn(&PatternStats) -> Option<NnRatioTest>,
     alpha: f64,
 ) -> Option<f64> {
     let mut used = 0usize;
@@ -481,22 +481,44 @@ mod tests {
     #[test]
     fn csr_in_a_small_square_shows_the_edge_bias() {
         let sq = MultiPolygon::new(vec![Polygon::new(
-            LineString::from(vec![(0.0, 0.0), (10.0, 0.0), (10.0, 10.0), (0.0, 10.0), (0.0, 0.0)]),
+            LineString::from(vec![
+                (0.0, 0.0),
+                (10.0, 0.0),
+                (10.0, 10.0),
+                (0.0, 10.0),
+                (0.0, 0.0),
+            ]),
             vec![],
         )]);
         let sampler = Sampler::new(&sq).unwrap();
-        let m = Measure { shape: None, guard: None, rectangle: None };
+        let m = Measure {
+            shape: None,
+            guard: None,
+            rectangle: None,
+        };
         let (n, k) = (30, 2_000);
         let stats = simulate(&sampler, n, k, 5, "small-square", m, &|| {});
         let sim_mean = stats.iter().map(|s| s.mean_nn).sum::<f64>() / k as f64;
         let plain = 0.5 * (100.0f64 / n as f64).sqrt();
         let corrected = donnelly::expected_mean(n, 100.0, 40.0);
-        assert!((corrected - sim_mean).abs() < (plain - sim_mean).abs(), "sim {sim_mean}, plain {plain}, Donnelly {corrected}");
-        let rate = false_alarm_rate(&stats, |s| ClarkEvans::uncorrected(s.mean_nn, n, 100.0), 0.05).unwrap();
+        assert!(
+            (corrected - sim_mean).abs() < (plain - sim_mean).abs(),
+            "sim {sim_mean}, plain {plain}, Donnelly {corrected}"
+        );
+        let rate = false_alarm_rate(
+            &stats,
+            |s| NnRatioTest::uncorrected(s.mean_nn, n, 100.0),
+            0.05,
+        )
+        .unwrap();
         // Binomial tolerance: 0.05 + 3·sqrt(0.05·0.95/2000) = 0.0646.
         assert!(rate > 0.0646, "uncorrected false-alarm rate {rate}");
-        let d_rate = false_alarm_rate(&stats, |s| donnelly::test(s.mean_nn, n, 100.0, 40.0), 0.05).unwrap();
-        assert!((d_rate - 0.05).abs() < 0.03, "Donnelly false-alarm rate {d_rate}");
+        let d_rate =
+            false_alarm_rate(&stats, |s| donnelly::test(s.mean_nn, n, 100.0, 40.0), 0.05).unwrap();
+        assert!(
+            (d_rate - 0.05).abs() < 0.03,
+            "Donnelly false-alarm rate {d_rate}"
+        );
     }
 
     /// The Monte Carlo test holds its size (Besag & Diggle 1977): over 300
@@ -506,11 +528,21 @@ mod tests {
     #[test]
     fn simulation_test_holds_its_size() {
         let sq = MultiPolygon::new(vec![Polygon::new(
-            LineString::from(vec![(0.0, 0.0), (10.0, 0.0), (10.0, 10.0), (0.0, 10.0), (0.0, 0.0)]),
+            LineString::from(vec![
+                (0.0, 0.0),
+                (10.0, 0.0),
+                (10.0, 10.0),
+                (0.0, 10.0),
+                (0.0, 0.0),
+            ]),
             vec![],
         )]);
         let sampler = Sampler::new(&sq).unwrap();
-        let m = Measure { shape: None, guard: None, rectangle: None };
+        let m = Measure {
+            shape: None,
+            guard: None,
+            rectangle: None,
+        };
         let observed = simulate(&sampler, 30, 300, 8, "observed", m, &|| {});
         let mut rejected = 0;
         for (i, o) in observed.iter().enumerate() {

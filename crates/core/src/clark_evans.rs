@@ -1,4 +1,4 @@
-//! The Clark & Evans (1954) nearest-neighbour ratio test.
+//! The Clark & Evans (1954) test: observed against expected nearest-neighbour spacing.
 //!
 //! Clark, P. J. & Evans, F. C. (1954). Distance to nearest neighbor as a
 //! measure of spatial relationships in populations. *Ecology* 35:445–453.
@@ -33,10 +33,10 @@ pub const CE_SE_FACTOR: f64 = 0.261_361_600_438_531_7;
 /// One evaluated nearest-neighbour test: observed mean, its null moments and
 /// the standardised difference.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
-pub struct ClarkEvans {
+pub struct NnRatioTest {
     /// Observed mean nearest-neighbour distance d̄.
     pub mean_nn: f64,
-    /// Expected mean distance under the null.
+    /// Expected mean spacing under the null (CSR).
     pub expected: f64,
     /// d̄ / E.
     pub ratio: f64,
@@ -48,16 +48,16 @@ pub struct ClarkEvans {
     pub p: f64,
 }
 
-impl ClarkEvans {
+impl NnRatioTest {
     /// The plain (uncorrected) test for `n` points with mean distance
     /// `mean_nn` in a window of `area`.
     ///
     /// Returns `None` when `n < 2` or the area is not a positive finite number.
     ///
     /// ```
-    /// use patternproof_core::ClarkEvans;
+    /// use patternproof_core::NnRatioTest;
     /// // 100 points, d̄ = 0.05 in the unit square: exactly the CSR expectation.
-    /// let t = ClarkEvans::uncorrected(0.05, 100, 1.0).unwrap();
+    /// let t = NnRatioTest::uncorrected(0.05, 100, 1.0).unwrap();
     /// assert!((t.ratio - 1.0).abs() < 1e-12 && t.z.abs() < 1e-9);
     /// ```
     pub fn uncorrected(mean_nn: f64, n: usize, area: f64) -> Option<Self> {
@@ -112,8 +112,8 @@ mod tests {
     /// METHODS.md): the area cancels.
     #[test]
     fn z_depends_on_ratio_and_n_only() {
-        let a = ClarkEvans::uncorrected(3.0, 64, 5_000.0).unwrap();
-        let b = ClarkEvans::uncorrected(3.0 * 2.0, 64, 20_000.0).unwrap();
+        let a = NnRatioTest::uncorrected(3.0, 64, 5_000.0).unwrap();
+        let b = NnRatioTest::uncorrected(3.0 * 2.0, 64, 20_000.0).unwrap();
         assert!((a.ratio - b.ratio).abs() < 1e-12);
         assert!((a.z - b.z).abs() < 1e-9);
         assert!((a.z - z_from_ratio(a.ratio, 64)).abs() < 1e-9);
@@ -124,7 +124,7 @@ mod tests {
     /// d̄ = 4.5 → E = 6.25, SE = 0.261362·100/64 = 0.408378, z = −4.28525.
     #[test]
     fn worked_example() {
-        let t = ClarkEvans::uncorrected(4.5, 64, 10_000.0).unwrap();
+        let t = NnRatioTest::uncorrected(4.5, 64, 10_000.0).unwrap();
         assert!((t.expected - 6.25).abs() < 1e-12);
         assert!((t.ratio - 0.72).abs() < 1e-12);
         assert!((t.se - 0.408_377_5).abs() < 1e-6);
@@ -133,8 +133,8 @@ mod tests {
 
     #[test]
     fn rejects_degenerate_input() {
-        assert!(ClarkEvans::uncorrected(1.0, 1, 1.0).is_none());
-        assert!(ClarkEvans::uncorrected(1.0, 10, 0.0).is_none());
-        assert!(ClarkEvans::uncorrected(1.0, 10, f64::NAN).is_none());
+        assert!(NnRatioTest::uncorrected(1.0, 1, 1.0).is_none());
+        assert!(NnRatioTest::uncorrected(1.0, 10, 0.0).is_none());
+        assert!(NnRatioTest::uncorrected(1.0, 10, f64::NAN).is_none());
     }
 }

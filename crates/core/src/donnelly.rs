@@ -15,7 +15,7 @@
 //! The fit was made for rectangles and n ≥ 7. For other shapes the audit
 //! uses the window's own perimeter and marks the row as an approximation.
 
-use crate::clark_evans::ClarkEvans;
+use crate::clark_evans::NnRatioTest;
 
 /// Smallest n inside the range Donnelly fitted.
 pub const DONNELLY_MIN_N: usize = 7;
@@ -40,11 +40,11 @@ pub fn standard_error(n: usize, area: f64, perimeter: f64) -> f64 {
 /// let t = donnelly::test(0.05222, 100, 1.0, 4.0).unwrap();
 /// assert!(t.z.abs() < 1e-9);
 /// ```
-pub fn test(mean_nn: f64, n: usize, area: f64, perimeter: f64) -> Option<ClarkEvans> {
+pub fn test(mean_nn: f64, n: usize, area: f64, perimeter: f64) -> Option<NnRatioTest> {
     if n < 2 || !(area > 0.0 && area.is_finite() && perimeter > 0.0 && perimeter.is_finite()) {
         return None;
     }
-    ClarkEvans::from_moments(
+    NnRatioTest::from_moments(
         mean_nn,
         expected_mean(n, area, perimeter),
         standard_error(n, area, perimeter),
@@ -73,7 +73,7 @@ mod tests {
     /// perimeter term), so for the same data it moves z towards `clustered`.
     #[test]
     fn correction_lengthens_the_expectation() {
-        let plain = ClarkEvans::uncorrected(5.0, 49, 5000.0).unwrap();
+        let plain = NnRatioTest::uncorrected(5.0, 49, 5000.0).unwrap();
         let corrected = test(5.0, 49, 5000.0, 300.0).unwrap();
         assert!(corrected.expected > plain.expected);
         assert!(corrected.z < plain.z);

@@ -33,7 +33,7 @@ pub struct FlipThresholds {
 }
 
 impl FlipThresholds {
-    /// Thresholds for `n` points with observed mean distance `mean_nn`.
+    /// Thresholds for `n` points with observed mean nearest-neighbour distance `mean_nn`.
     ///
     /// Returns `None` for `n < 2`, a non-positive mean distance (all points
     /// coincide), or a non-positive critical value.
@@ -90,7 +90,7 @@ pub fn steiner_area(area: f64, perimeter: f64, d: f64) -> f64 {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::ClarkEvans;
+    use crate::NnRatioTest;
 
     /// Closed form (METHODS.md): at each threshold the plain test's z equals
     /// ∓z_c exactly, and the call is on the expected side just beyond it.
@@ -99,15 +99,15 @@ mod tests {
         let (n, d) = (64, 4.5);
         let f = FlipThresholds::new(n, d, 1.959_964).unwrap();
         let ac = f.clustered_above_area.unwrap();
-        let zc = ClarkEvans::uncorrected(d, n, ac).unwrap().z;
+        let zc = NnRatioTest::uncorrected(d, n, ac).unwrap().z;
         assert!((zc + 1.959_964).abs() < 1e-9);
-        let zd = ClarkEvans::uncorrected(d, n, f.dispersed_below_area)
+        let zd = NnRatioTest::uncorrected(d, n, f.dispersed_below_area)
             .unwrap()
             .z;
         assert!((zd - 1.959_964).abs() < 1e-9);
-        assert!(ClarkEvans::uncorrected(d, n, ac * 1.001).unwrap().z < -1.959_964);
+        assert!(NnRatioTest::uncorrected(d, n, ac * 1.001).unwrap().z < -1.959_964);
         assert!(
-            ClarkEvans::uncorrected(d, n, f.dispersed_below_area * 0.999)
+            NnRatioTest::uncorrected(d, n, f.dispersed_below_area * 0.999)
                 .unwrap()
                 .z
                 > 1.959_964

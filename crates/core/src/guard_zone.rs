@@ -8,7 +8,7 @@
 //! have the CSR mean 0.5·sqrt(A/n) and the mean of m of them has standard
 //! error 0.26136·sqrt(A/n)/sqrt(m).
 
-use crate::clark_evans::{CE_MEAN_FACTOR, CE_SE_FACTOR, ClarkEvans};
+use crate::clark_evans::{CE_MEAN_FACTOR, CE_SE_FACTOR, NnRatioTest};
 
 /// The guard-zone test: `mean_focal` over `m` focal points, `n` points in a
 /// window of `area`. `None` when m = 0, n < 2 or the area is degenerate.
@@ -17,15 +17,15 @@ use crate::clark_evans::{CE_MEAN_FACTOR, CE_SE_FACTOR, ClarkEvans};
 /// use patternproof_core::guard_zone;
 /// // With every point focal (m = n) it is the plain Clark–Evans test.
 /// let g = guard_zone::test(0.04, 100, 100, 1.0).unwrap();
-/// let p = patternproof_core::ClarkEvans::uncorrected(0.04, 100, 1.0).unwrap();
+/// let p = patternproof_core::NnRatioTest::uncorrected(0.04, 100, 1.0).unwrap();
 /// assert!((g.z - p.z).abs() < 1e-12);
 /// ```
-pub fn test(mean_focal: f64, m: usize, n: usize, area: f64) -> Option<ClarkEvans> {
+pub fn test(mean_focal: f64, m: usize, n: usize, area: f64) -> Option<NnRatioTest> {
     if m == 0 || n < 2 || !(area > 0.0 && area.is_finite()) {
         return None;
     }
     let spacing = (area / n as f64).sqrt();
-    ClarkEvans::from_moments(
+    NnRatioTest::from_moments(
         mean_focal,
         CE_MEAN_FACTOR * spacing,
         CE_SE_FACTOR * spacing / (m as f64).sqrt(),

@@ -28,7 +28,7 @@ pub mod normal;
 pub mod toroidal;
 
 pub use call::Call;
-pub use clark_evans::{CE_MEAN_FACTOR, CE_SE_FACTOR, ClarkEvans};
+pub use clark_evans::{CE_MEAN_FACTOR, CE_SE_FACTOR, NnRatioTest};
 pub use flip::FlipThresholds;
 
 /// A point in a projected plane, `[x, y]`.
