@@ -9,8 +9,7 @@
 
 use crate::sampling::Sampler;
 use crate::streams::stream;
-use crate::window::distance_to_outline;
-use geo::MultiPolygon;
+use crate::window::Outline;
 use patternproof_core::Xy;
 use patternproof_core::nearest::{mean, nearest_distances, nearest_distances_of};
 use patternproof_core::toroidal::{Rect, torus_nearest_distances};
@@ -19,8 +18,8 @@ use rayon::prelude::*;
 /// What to measure on each pattern.
 #[derive(Debug, Clone, Copy)]
 pub struct Measure<'a> {
-    /// Window outline, for the guard zone.
-    pub shape: Option<&'a MultiPolygon<f64>>,
+    /// Window outline, indexed, for the guard zone.
+    pub outline: Option<&'a Outline>,
     /// Guard width for the border method; `None` skips it.
     pub guard: Option<f64>,
     /// The rectangle, for torus distances; `None` skips them.
@@ -42,10 +41,10 @@ pub struct PatternStats {
 pub fn measure(points: &[Xy], m: Measure<'_>) -> Option<PatternStats> {
     let d = nearest_distances(points)?;
     let mean_nn = mean(&d)?;
-    let border = match (m.shape, m.guard) {
-        (Some(shape), Some(w)) => {
+    let border = match (m.outline, m.guard) {
+        (Some(outline), Some(w)) => {
             let focal: Vec<usize> = (0..points.len())
-                .filter(|&i| distance_to_outline(shape, points[i]) >= w)
+                .filter(|&i| outline.clear_of(points[i], w))
                 .collect();
             let fd = nearest_distances_of(points, &focal)?;
             Some((mean(&fd).unwrap_or(f64::NAN), focal.len()))
@@ -90,7 +89,7 @@ pub fn simulate(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use geo::{LineString, Polygon};
+    use geo::{LineString, MultiPolygon, Polygon};
 
     /// The same seed gives bit-identical results on 1 and 2 threads.
     #[test]
@@ -107,7 +106,7 @@ mod tests {
         )]);
         let sampler = Sampler::new(&sq).unwrap();
         let m = Measure {
-            shape: Some(&sq),
+            outline: Some(&Outline::new(&sq)),
             guard: Some(2.0),
             rectangle: Some(Rect {
                 min: [0.0, 0.0],
@@ -128,7 +127,7 @@ mod tests {
 #[cfg(test)]
 mod csr_sanity {
     use super::*;
-    use geo::{LineString, Polygon};
+    use geo::{LineString, MultiPolygon, Polygon};
 
     /// Clark & Evans (1954): under CSR the mean nearest-neighbour distance
     /// is 0.5·sqrt(A/n); on a torus there is no edge bias, so the mean R
@@ -150,7 +149,7 @@ mod csr_sanity {
         )]);
         let sampler = Sampler::new(&sq).unwrap();
         let m = Measure {
-            shape: None,
+            outline: None,
             guard: None,
             rectangle: Some(Rect {
                 min: [0.0, 0.0],

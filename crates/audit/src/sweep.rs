@@ -12,7 +12,7 @@ use crate::flip::{FlipEntry, flip_entries};
 use crate::robustness::{Summary, summarise};
 use crate::sampling::Sampler;
 use crate::simulation::{Measure, PatternStats, measure, simulate};
-use crate::window::{NamedShape, Window, WindowKind, WindowOptions, build_windows};
+use crate::window::{NamedShape, Outline, Window, WindowKind, WindowOptions, build_windows};
 use patternproof_core::monte_carlo::{quantile, two_sided_rank_p};
 use patternproof_core::nearest::{mean, nearest_distances};
 use patternproof_core::normal::two_sided_critical;
@@ -252,12 +252,13 @@ fn window_rows(
         return (rows, skips, Vec::new());
     }
     let wants = |e: Edge| options.edges.contains(&e);
+    let outline = if wants(Edge::Border) {
+        w.shape.as_ref().map(Outline::new)
+    } else {
+        None
+    };
     let m = Measure {
-        shape: if wants(Edge::Border) {
-            w.shape.as_ref()
-        } else {
-            None
-        },
+        outline: outline.as_ref(),
         guard: wants(Edge::Border).then_some(guard),
         rectangle: if wants(Edge::Toroidal) {
             w.rectangle
@@ -492,7 +493,7 @@ mod tests {
         )]);
         let sampler = Sampler::new(&sq).unwrap();
         let m = Measure {
-            shape: None,
+            outline: None,
             guard: None,
             rectangle: None,
         };
@@ -539,7 +540,7 @@ mod tests {
         )]);
         let sampler = Sampler::new(&sq).unwrap();
         let m = Measure {
-            shape: None,
+            outline: None,
             guard: None,
             rectangle: None,
         };

@@ -17,6 +17,9 @@ use rstar::primitives::GeomWithData;
 
 type Indexed = GeomWithData<Xy, usize>;
 
+/// Point count from which queries are spread over threads.
+pub const PARALLEL_FROM: usize = 4096;
+
 /// Distance from every point to its nearest other point, in input order.
 ///
 /// Returns `None` when there are fewer than two points (no neighbour exists).
@@ -30,13 +33,15 @@ pub fn nearest_distances(points: &[Xy]) -> Option<Vec<f64>> {
         return None;
     }
     let tree = build_tree(points);
-    Some(
-        points
-            .par_iter()
-            .enumerate()
-            .map(|(i, p)| nearest_other(&tree, i, *p))
-            .collect(),
-    )
+    // Small patterns (every simulated one) stay on one thread: splitting
+    // a few hundred queries costs more than it saves, and the caller
+    // already runs simulations in parallel.
+    let query = |(i, p): (usize, &Xy)| nearest_other(&tree, i, *p);
+    Some(if points.len() < PARALLEL_FROM {
+        points.iter().enumerate().map(query).collect()
+    } else {
+        points.par_iter().enumerate().map(query).collect()
+    })
 }
 
 /// Nearest-neighbour distance of each focal point, neighbours taken from all
@@ -47,12 +52,12 @@ pub fn nearest_distances_of(points: &[Xy], focal: &[usize]) -> Option<Vec<f64>> 
         return None;
     }
     let tree = build_tree(points);
-    Some(
-        focal
-            .par_iter()
-            .map(|&i| nearest_other(&tree, i, points[i]))
-            .collect(),
-    )
+    let query = |&i: &usize| nearest_other(&tree, i, points[i]);
+    Some(if focal.len() < PARALLEL_FROM {
+        focal.iter().map(query).collect()
+    } else {
+        focal.par_iter().map(query).collect()
+    })
 }
 
 /// Arithmetic mean of a slice; `None` when it is empty.
