@@ -121,7 +121,7 @@ fn burrows(region: &Polygon<f64>, seed: u64) -> Vec<[f64; 2]> {
         }
     };
     let mut out = Vec::new();
-    let (parents, per_parent, sigma) = (11, 9, 3.5);
+    let (parents, per_parent, sigma) = (10, 6, 5.0);
     for _ in 0..parents {
         let c = uniform(&mut rng);
         let k = per_parent - 3 + (rng.random::<f64>() * 7.0) as usize;
@@ -140,7 +140,7 @@ fn burrows(region: &Polygon<f64>, seed: u64) -> Vec<[f64; 2]> {
             }
         }
     }
-    for _ in 0..45 {
+    for _ in 0..80 {
         let p = uniform(&mut rng);
         out.push([round2(p[0]), round2(p[1])]);
     }
