@@ -80,6 +80,41 @@ def cell_ring():
     return ring
 
 
+SIM_N = 40
+SIM_PATTERNS = 20000
+SIM_SHELL = [(0, 0), (100, 0), (100, 30), (60, 30), (60, 60), (0, 60), (0, 0)]
+SIM_HOLE = [(20, 20), (20, 40), (40, 40), (40, 20), (20, 20)]
+
+
+def csr_simulation(rng):
+    """Mean nearest-neighbour distance of CSR patterns in an L-shaped window
+    with a square hole, sampled by rejection from the bounding box (an
+    independent method from the triangle sampling under test)."""
+    from shapely.geometry import Polygon
+    window = Polygon(SIM_SHELL, [SIM_HOLE])
+    means = np.empty(SIM_PATTERNS)
+    for k in range(SIM_PATTERNS):
+        pts = np.empty((0, 2))
+        while len(pts) < SIM_N:
+            cand = rng.uniform([0, 0], [100, 60], size=(2 * SIM_N, 2))
+            keep = shapely.contains_xy(window, cand[:, 0], cand[:, 1])
+            pts = np.vstack([pts, cand[keep]])
+        pts = pts[:SIM_N]
+        d, _ = cKDTree(pts).query(pts, k=2)
+        means[k] = d[:, 1].mean()
+    return {
+        "n": SIM_N,
+        "patterns": SIM_PATTERNS,
+        "shell": [list(map(float, c)) for c in SIM_SHELL],
+        "hole": [list(map(float, c)) for c in SIM_HOLE],
+        "area": float(window.area),
+        "mean_of_means": float(means.mean()),
+        "sd_of_means": float(means.std(ddof=1)),
+        "q025": float(np.quantile(means, 0.025)),
+        "q975": float(np.quantile(means, 0.975)),
+    }
+
+
 def main():
     out_path = Path(__file__).resolve().parent / "values.json"
     rng = np.random.default_rng(SEED)
@@ -115,6 +150,7 @@ def main():
         },
         "point_sets": sets,
         "normal": normal,
+        "csr_simulation": csr_simulation(np.random.default_rng(SEED + 1)),
         "projection": {
             "proj_string": LAEA,
             "lon0": 10.0,
