@@ -11,7 +11,7 @@ use crate::sampling::Sampler;
 use crate::streams::stream;
 use crate::window::Outline;
 use patternproof_core::Xy;
-use patternproof_core::nearest::{mean, nearest_distances, nearest_distances_of};
+use patternproof_core::nearest::{mean, nearest_distances};
 use patternproof_core::toroidal::{Rect, torus_nearest_distances};
 use rayon::prelude::*;
 
@@ -46,7 +46,9 @@ pub fn measure(points: &[Xy], m: Measure<'_>) -> Option<PatternStats> {
             let focal: Vec<usize> = (0..points.len())
                 .filter(|&i| outline.clear_of(points[i], w))
                 .collect();
-            let fd = nearest_distances_of(points, &focal)?;
+            // A focal point's neighbour may be any point, so its distance is
+            // the one already found over the whole pattern.
+            let fd: Vec<f64> = focal.iter().map(|&i| d[i]).collect();
             Some((mean(&fd).unwrap_or(f64::NAN), focal.len()))
         }
         _ => None,
@@ -106,7 +108,7 @@ mod tests {
         )]);
         let sampler = Sampler::new(&sq).unwrap();
         let m = Measure {
-            outline: Some(&Outline::new(&sq)),
+            outline: Some(&Outline::new(&sq, Some(2.0))),
             guard: Some(2.0),
             rectangle: Some(Rect {
                 min: [0.0, 0.0],

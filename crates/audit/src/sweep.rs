@@ -253,7 +253,7 @@ fn window_rows(
     }
     let wants = |e: Edge| options.edges.contains(&e);
     let outline = if wants(Edge::Border) {
-        w.shape.as_ref().map(Outline::new)
+        w.shape.as_ref().map(|s| Outline::new(s, Some(guard)))
     } else {
         None
     };

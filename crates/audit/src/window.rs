@@ -460,30 +460,58 @@ mod tests {
         assert!((distance_to_outline(&shape, [1.0, 5.0]) - 1.0).abs() < 1e-12);
         assert!(axis_rectangle(&shape).is_none());
         // The indexed outline agrees with the direct distance (brute force).
-        let o = Outline::new(&shape);
-        for p in [[3.0, 5.0], [1.0, 5.0], [0.5, 0.5], [5.0, 8.0], [6.5, 6.5]] {
-            for w in [0.4, 0.99, 1.0, 1.01, 2.0] {
-                assert_eq!(
-                    o.clear_of(p, w),
-                    distance_to_outline(&shape, p) >= w,
-                    "{p:?} {w}"
-                );
+        // Grid answers and tree answers both checked on a dense lattice.
+        for w in [0.4, 0.99, 1.0, 1.01, 2.0] {
+            let o = Outline::new(&shape, Some(w));
+            for i in 0..=40 {
+                for j in 0..=40 {
+                    let p = [i as f64 * 0.25, j as f64 * 0.25 + 0.013];
+                    let want = distance_to_outline(&shape, p) >= w;
+                    assert_eq!(o.clear_of(p, w), want, "{p:?} {w}");
+                    assert_eq!(
+                        o.clear_of(p, w + 1e-3),
+                        distance_to_outline(&shape, p) >= w + 1e-3
+                    );
+                }
             }
         }
     }
 }
 
-/// A window's outline segments in an R*-tree, for the guard zone's "is this
-/// point at least w from every edge?" question asked for every point of
-/// every simulated pattern: O(log s) per point instead of O(s) segments.
+/// A window's outline prepared for the guard zone's question "is this
+/// point at least w from every edge?", asked for every point of every
+/// simulated pattern.
+///
+/// Segments sit in an R*-tree; on top, a grid of cells w/2 wide records
+/// where the answer is the same for the whole cell. Distance to the outline
+/// changes by at most the distance moved, so a cell whose centre is at
+/// least w + h from the outline (h its half-diagonal) is clear throughout,
+/// and one whose centre is closer than w − h is blocked throughout; only
+/// the cells in between fall back to the tree. The answers are exact.
 #[derive(Debug, Clone)]
 pub struct Outline {
     tree: rstar::RTree<rstar::primitives::Line<Xy>>,
+    grid: Option<GuardGrid>,
 }
 
+#[derive(Debug, Clone)]
+struct GuardGrid {
+    w: f64,
+    origin: Xy,
+    cell: f64,
+    nx: usize,
+    ny: usize,
+    /// 0 = ask the tree, 1 = clear, 2 = blocked.
+    state: Vec<u8>,
+}
+
+/// Largest grid the guard test builds (cells).
+const MAX_GUARD_CELLS: usize = 4_000_000;
+
 impl Outline {
-    /// Index every ring edge of `shape`.
-    pub fn new(shape: &MultiPolygon<f64>) -> Self {
+    /// Index every ring edge of `shape`; with `guard` = Some(w), also
+    /// build the cell grid for that width.
+    pub fn new(shape: &MultiPolygon<f64>, guard: Option<f64>) -> Self {
         let mut lines = Vec::new();
         for poly in shape {
             for ring in std::iter::once(poly.exterior()).chain(poly.interiors()) {
@@ -495,13 +523,71 @@ impl Outline {
                 }
             }
         }
-        Self {
+        let mut outline = Self {
             tree: rstar::RTree::bulk_load(lines),
+            grid: None,
+        };
+        if let (Some(w), Some(r)) = (guard, shape.bounding_rect())
+            && w > 0.0
+        {
+            let cell = w / 2.0;
+            let nx = (r.width() / cell).ceil() as usize + 1;
+            let ny = (r.height() / cell).ceil() as usize + 1;
+            if nx.saturating_mul(ny) <= MAX_GUARD_CELLS {
+                let h = cell * std::f64::consts::FRAC_1_SQRT_2;
+                let origin = [r.min().x, r.min().y];
+                let mut state = Vec::with_capacity(nx * ny);
+                for j in 0..ny {
+                    for i in 0..nx {
+                        let c = [
+                            origin[0] + (i as f64 + 0.5) * cell,
+                            origin[1] + (j as f64 + 0.5) * cell,
+                        ];
+                        let d = outline.distance(c);
+                        state.push(if d - h >= w {
+                            1
+                        } else if d + h < w {
+                            2
+                        } else {
+                            0
+                        });
+                    }
+                }
+                outline.grid = Some(GuardGrid {
+                    w,
+                    origin,
+                    cell,
+                    nx,
+                    ny,
+                    state,
+                });
+            }
         }
+        outline
+    }
+
+    fn distance(&self, p: Xy) -> f64 {
+        use rstar::PointDistance;
+        self.tree
+            .nearest_neighbor(p)
+            .map_or(f64::INFINITY, |line| line.distance_2(&p).sqrt())
     }
 
     /// True when `p` is at least `w` from every edge.
     pub fn clear_of(&self, p: Xy, w: f64) -> bool {
+        if let Some(g) = &self.grid
+            && g.w == w
+        {
+            let fx = ((p[0] - g.origin[0]) / g.cell).floor();
+            let fy = ((p[1] - g.origin[1]) / g.cell).floor();
+            if fx >= 0.0 && fy >= 0.0 && (fx as usize) < g.nx && (fy as usize) < g.ny {
+                match g.state[fy as usize * g.nx + fx as usize] {
+                    1 => return true,
+                    2 => return false,
+                    _ => {}
+                }
+            }
+        }
         // Strictly closer than w disqualifies; the query is inclusive, so
         // a segment at exactly w is filtered back in.
         use rstar::PointDistance;
