@@ -99,6 +99,9 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
         .map(|f| f as &dyn Fn(f64, f64) -> Option<[f64; 2]>);
     outlines::write_outlines(&report, unproject_ref, &mut buf).map_err(internal)?;
     folder.add("windows.geojson", buf);
+    if let Some(svg) = patternproof_report::window_map::window_map_svg(&report, &data.points) {
+        folder.add("windows.svg", svg.into_bytes());
+    }
     write_folder(&a.out, &folder).map_err(|e| Failure::Input(e.to_string()))?;
 
     print_summary(&report, &a.out, &folder);

@@ -121,6 +121,16 @@ fn demo_data_gives_a_full_report() {
     let gj: serde_json::Value =
         serde_json::from_slice(&std::fs::read(out.join("windows.geojson")).unwrap()).unwrap();
     assert_eq!(gj["features"].as_array().unwrap().len(), ids.len());
+    // The window map names every window in its legend.
+    let svg = std::fs::read_to_string(out.join("windows.svg")).unwrap();
+    assert!(svg.starts_with("<svg"));
+    for id in &ids {
+        assert!(
+            svg.contains(&format!("\n{id}\n</text>")),
+            "{id} missing from the map legend"
+        );
+    }
+    assert!(svg.contains(" m\n</text>"), "scale bar label with its unit");
     let md = std::fs::read_to_string(out.join("verdict.md")).unwrap();
     assert!(md.contains("personal data"));
 }

@@ -8,6 +8,8 @@
 //! | [`table`] | `verdict.csv` and the terminal table |
 //! | [`markdown`] | `verdict.md` |
 //! | [`outlines`] | `windows.geojson` |
+//! | [`window_map`] | `windows.svg`, the map of points and window outlines |
+//! | [`palette`] | the one colour-and-dash palette of every picture |
 //! | [`folder`] | the output folder, written aside and renamed into place |
 //!
 //! Every writer takes any `io::Write`, so tests render into a `Vec<u8>`.
@@ -17,7 +19,9 @@ pub mod folder;
 pub mod markdown;
 pub mod numbers;
 pub mod outlines;
+pub mod palette;
 pub mod table;
+pub mod window_map;
 
 pub use document::{AuditReport, InputSummary, SCHEMA};
 pub use folder::{OutputFolder, write_folder};

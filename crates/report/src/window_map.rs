@@ -1,0 +1,124 @@
+//! `windows.svg`: the points and every window outline on one map, with a
+//! scale bar in the data's unit and a legend naming the windows by id.
+
+use crate::document::AuditReport;
+use crate::palette::ink;
+use geo::{BoundingRect, LineString};
+use patternproof_core::Xy;
+use plotters::prelude::*;
+
+/// Render the map as an SVG string. `None` when nothing has an outline.
+pub fn window_map_svg(report: &AuditReport, points: &[Xy]) -> Option<String> {
+    let shapes: Vec<_> = report
+        .windows
+        .iter()
+        .filter_map(|w| w.shape.as_ref().map(|s| (w.id.as_str(), s)))
+        .collect();
+    let mut lo = [f64::INFINITY; 2];
+    let mut hi = [f64::NEG_INFINITY; 2];
+    for (_, s) in &shapes {
+        if let Some(r) = s.bounding_rect() {
+            lo = [lo[0].min(r.min().x), lo[1].min(r.min().y)];
+            hi = [hi[0].max(r.max().x), hi[1].max(r.max().y)];
+        }
+    }
+    for p in points {
+        lo = [lo[0].min(p[0]), lo[1].min(p[1])];
+        hi = [hi[0].max(p[0]), hi[1].max(p[1])];
+    }
+    if !(hi[0] > lo[0] && hi[1] > lo[1]) {
+        return None;
+    }
+    // Equal scale on both axes: pad the shorter extent.
+    let (w, h) = (hi[0] - lo[0], hi[1] - lo[1]);
+    let (px_w, px_h) = (900u32, 680u32);
+    let span = (w / (px_w as f64 - 60.0)).max(h / (px_h as f64 - 120.0));
+    let cx = (lo[0] + hi[0]) / 2.0;
+    let cy = (lo[1] + hi[1]) / 2.0;
+    let half_x = span * (px_w as f64 - 60.0) / 2.0 * 1.04;
+    let half_y = span * (px_h as f64 - 120.0) / 2.0 * 1.04;
+    let unit = &report.input.unit;
+    let mut svg = String::new();
+    {
+        let root = SVGBackend::with_string(&mut svg, (px_w, px_h)).into_drawing_area();
+        root.fill(&WHITE).ok()?;
+        let mut chart = ChartBuilder::on(&root)
+            .caption(
+                format!(
+                    "Windows of {} ({} points)",
+                    report.input.points_file,
+                    points.len()
+                ),
+                ("sans-serif", 18),
+            )
+            .margin(20)
+            .build_cartesian_2d((cx - half_x)..(cx + half_x), (cy - half_y)..(cy + half_y))
+            .ok()?;
+        chart
+            .draw_series(
+                points
+                    .iter()
+                    .map(|p| Circle::new((p[0], p[1]), 2, BLACK.filled())),
+            )
+            .ok()?
+            .label("points")
+            .legend(|(x, y)| Circle::new((x + 10, y), 2, BLACK.filled()));
+        for (k, (id, shape)) in shapes.iter().enumerate() {
+            let style = ink(k);
+            let stroke = ShapeStyle::from(&style.colour).stroke_width(style.width);
+            let rings: Vec<&LineString<f64>> = shape
+                .iter()
+                .flat_map(|p| std::iter::once(p.exterior()).chain(p.interiors()))
+                .collect();
+            let mut first = true;
+            for ring in rings {
+                let coords: Vec<(f64, f64)> = ring.coords().map(|c| (c.x, c.y)).collect();
+                let series = match style.dash {
+                    None => chart.draw_series(LineSeries::new(coords, stroke)).ok()?,
+                    Some((on, off)) => chart
+                        .draw_series(DashedLineSeries::new(coords, on, off, stroke))
+                        .ok()?,
+                };
+                if first {
+                    series
+                        .label(id.to_string())
+                        .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], stroke));
+                    first = false;
+                }
+            }
+        }
+        // Scale bar: a round length near a fifth of the map width.
+        let target = 2.0 * half_x / 5.0;
+        let mag = 10f64.powf(target.log10().floor());
+        let bar = [1.0, 2.0, 5.0]
+            .iter()
+            .map(|m| m * mag)
+            .filter(|b| *b <= target)
+            .last()
+            .unwrap_or(mag);
+        let x0 = cx - half_x * 0.95;
+        let y0 = cy - half_y * 0.93;
+        chart
+            .draw_series(std::iter::once(PathElement::new(
+                vec![(x0, y0), (x0 + bar, y0)],
+                BLACK.stroke_width(3),
+            )))
+            .ok()?;
+        chart
+            .draw_series(std::iter::once(Text::new(
+                format!("{} {unit}", crate::numbers::sig(bar, 3)),
+                (x0, y0 + half_y * 0.03),
+                ("sans-serif", 14),
+            )))
+            .ok()?;
+        chart
+            .configure_series_labels()
+            .background_style(WHITE.mix(0.85))
+            .border_style(BLACK)
+            .position(SeriesLabelPosition::UpperRight)
+            .draw()
+            .ok()?;
+        root.present().ok()?;
+    }
+    Some(svg)
+}
