@@ -133,6 +133,12 @@ fn demo_data_gives_a_full_report() {
     assert!(svg.contains(" m\n</text>"), "scale bar label with its unit");
     let md = std::fs::read_to_string(out.join("verdict.md")).unwrap();
     assert!(md.contains("personal data"));
+    // The methods paragraph repeats the run's own settings.
+    let methods = md.split("## Methods paragraph").nth(1).unwrap();
+    assert!(methods.contains(&format!("the {} mapped points", j["input"]["n"])));
+    assert!(methods.contains("with 99 patterns"));
+    assert!(methods.contains("(seed 1)"));
+    assert!(methods.contains("α = 0.05"));
 }
 
 /// Same seed, same bytes, on one thread or two.

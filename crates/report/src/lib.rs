@@ -7,6 +7,7 @@
 //! | [`numbers`] | rounding for human readers (JSON keeps full precision) |
 //! | [`table`] | `verdict.csv` and the terminal table |
 //! | [`markdown`] | `verdict.md` |
+//! | [`methods`] | the methods paragraph for a manuscript |
 //! | [`outlines`] | `windows.geojson` |
 //! | [`window_map`] | `windows.svg`, the map of points and window outlines |
 //! | [`palette`] | the one colour-and-dash palette of every picture |
@@ -17,6 +18,7 @@
 pub mod document;
 pub mod folder;
 pub mod markdown;
+pub mod methods;
 pub mod numbers;
 pub mod outlines;
 pub mod palette;

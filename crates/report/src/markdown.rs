@@ -97,6 +97,8 @@ pub fn write_markdown<W: io::Write>(report: &AuditReport, mut out: W) -> io::Res
     for line in flip_lines(report) {
         writeln!(out, "- {line}")?;
     }
+    writeln!(out, "\n## Methods paragraph\n")?;
+    writeln!(out, "{}", crate::methods::methods_paragraph(report))?;
     writeln!(out, "\n## Cautions\n")?;
     for c in &report.cautions {
         writeln!(out, "- {c}")?;
