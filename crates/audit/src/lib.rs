@@ -23,6 +23,8 @@ pub mod sampling;
 pub mod simulation;
 pub mod streams;
 pub mod sweep;
+#[cfg(test)]
+mod test_shapes;
 pub mod window;
 
 pub use edge::Edge;

@@ -77,25 +77,11 @@ impl Sampler {
 mod tests {
     use super::*;
     use crate::streams::stream;
-    use geo::{Contains, LineString, Point, Polygon};
+    use geo::{Contains, Point};
 
     fn square_with_hole() -> MultiPolygon<f64> {
         // 10 × 10 square with a 4 × 4 hole: area 84.
-        let outer = LineString::from(vec![
-            (0.0, 0.0),
-            (10.0, 0.0),
-            (10.0, 10.0),
-            (0.0, 10.0),
-            (0.0, 0.0),
-        ]);
-        let hole = LineString::from(vec![
-            (2.0, 2.0),
-            (6.0, 2.0),
-            (6.0, 6.0),
-            (2.0, 6.0),
-            (2.0, 2.0),
-        ]);
-        MultiPolygon::new(vec![Polygon::new(outer, vec![hole])])
+        crate::test_shapes::rectangle_with_hole(10.0, 10.0, [2.0, 2.0, 6.0, 6.0])
     }
 
     #[test]

@@ -91,21 +91,11 @@ pub fn simulate(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use geo::{LineString, MultiPolygon, Polygon};
 
     /// The same seed gives bit-identical results on 1 and 2 threads.
     #[test]
     fn identical_for_one_and_two_threads() {
-        let sq = MultiPolygon::new(vec![Polygon::new(
-            LineString::from(vec![
-                (0.0, 0.0),
-                (50.0, 0.0),
-                (50.0, 20.0),
-                (0.0, 20.0),
-                (0.0, 0.0),
-            ]),
-            vec![],
-        )]);
+        let sq = crate::test_shapes::rectangle(50.0, 20.0);
         let sampler = Sampler::new(&sq).unwrap();
         let m = Measure {
             outline: Some(&Outline::new(&sq, Some(2.0))),
@@ -129,7 +119,6 @@ mod tests {
 #[cfg(test)]
 mod csr_sanity {
     use super::*;
-    use geo::{LineString, MultiPolygon, Polygon};
 
     /// Clark & Evans (1954): under CSR the mean nearest-neighbour distance
     /// is 0.5·sqrt(A/n); on a torus there is no edge bias, so the mean R
@@ -139,16 +128,7 @@ mod csr_sanity {
     /// tolerance.
     #[test]
     fn mean_ratio_on_a_torus_is_one() {
-        let sq = MultiPolygon::new(vec![Polygon::new(
-            LineString::from(vec![
-                (0.0, 0.0),
-                (30.0, 0.0),
-                (30.0, 20.0),
-                (0.0, 20.0),
-                (0.0, 0.0),
-            ]),
-            vec![],
-        )]);
+        let sq = crate::test_shapes::rectangle(30.0, 20.0);
         let sampler = Sampler::new(&sq).unwrap();
         let m = Measure {
             outline: None,

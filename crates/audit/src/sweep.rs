@@ -473,7 +473,6 @@ fn false_alarm_rate(
 mod tests {
     use super::*;
     use crate::simulation::Measure;
-    use geo::{LineString, MultiPolygon, Polygon};
 
     /// Known result (Donnelly 1978; Diggle 2003, ch. 2): in a small square
     /// under CSR the uncorrected test rejects more often than α, and
@@ -481,16 +480,7 @@ mod tests {
     /// 0.5·sqrt(A/n). n = 30, 2 000 seeded patterns in a 10 × 10 square.
     #[test]
     fn csr_in_a_small_square_shows_the_edge_bias() {
-        let sq = MultiPolygon::new(vec![Polygon::new(
-            LineString::from(vec![
-                (0.0, 0.0),
-                (10.0, 0.0),
-                (10.0, 10.0),
-                (0.0, 10.0),
-                (0.0, 0.0),
-            ]),
-            vec![],
-        )]);
+        let sq = crate::test_shapes::rectangle(10.0, 10.0);
         let sampler = Sampler::new(&sq).unwrap();
         let m = Measure {
             outline: None,
@@ -528,16 +518,7 @@ mod tests {
     /// 0.05 ± 0.038).
     #[test]
     fn simulation_test_holds_its_size() {
-        let sq = MultiPolygon::new(vec![Polygon::new(
-            LineString::from(vec![
-                (0.0, 0.0),
-                (10.0, 0.0),
-                (10.0, 10.0),
-                (0.0, 10.0),
-                (0.0, 0.0),
-            ]),
-            vec![],
-        )]);
+        let sq = crate::test_shapes::rectangle(10.0, 10.0);
         let sampler = Sampler::new(&sq).unwrap();
         let m = Measure {
             outline: None,

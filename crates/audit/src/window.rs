@@ -441,21 +441,7 @@ mod tests {
 
     #[test]
     fn outline_distance_includes_holes() {
-        let outer = LineString::from(vec![
-            (0.0, 0.0),
-            (10.0, 0.0),
-            (10.0, 10.0),
-            (0.0, 10.0),
-            (0.0, 0.0),
-        ]);
-        let hole = LineString::from(vec![
-            (4.0, 4.0),
-            (6.0, 4.0),
-            (6.0, 6.0),
-            (4.0, 6.0),
-            (4.0, 4.0),
-        ]);
-        let shape = MultiPolygon::new(vec![Polygon::new(outer, vec![hole])]);
+        let shape = crate::test_shapes::rectangle_with_hole(10.0, 10.0, [4.0, 4.0, 6.0, 6.0]);
         assert!((distance_to_outline(&shape, [3.0, 5.0]) - 1.0).abs() < 1e-12);
         assert!((distance_to_outline(&shape, [1.0, 5.0]) - 1.0).abs() < 1e-12);
         assert!(axis_rectangle(&shape).is_none());
