@@ -10,12 +10,14 @@
 //! | [`simulation`] | CSR patterns in a window and the statistics taken on each |
 //! | [`sweep`] | the loop over windows × edges that yields the verdict table |
 //! | [`flip`] | where the call changes: area and buffer thresholds per edge handling |
+//! | [`curves`] | R and z over the family of scaled hulls, for the sensitivity picture |
 //! | [`robustness`] | counts, unanimity, what flips the call, the plain-language verdict |
 //!
 //! A new edge correction is one more [`edge::Edge`] variant, one arm in
 //! [`sweep`], and its tests; a new window kind is one more
 //! [`window::WindowKind`] and a builder in [`window`].
 
+pub mod curves;
 pub mod edge;
 pub mod flip;
 pub mod robustness;
