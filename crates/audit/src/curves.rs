@@ -181,7 +181,10 @@ impl FocalOrder {
         let ring: Vec<Coord<f64>> = polygon.exterior().coords().copied().collect();
         // Signed area decides the orientation, so the normals point outward
         // whichever way the ring winds.
-        let twice_area: f64 = ring.windows(2).map(|e| e[0].x * e[1].y - e[1].x * e[0].y).sum();
+        let twice_area: f64 = ring
+            .windows(2)
+            .map(|e| e[0].x * e[1].y - e[1].x * e[0].y)
+            .sum();
         if twice_area == 0.0 {
             return None;
         }
@@ -276,15 +279,19 @@ mod tests {
                 .expect("row");
             // Evaluate the family exactly at the hull's area.
             let at = match curve.edge {
-                Edge::None => point(hull.area, NnRatioTest::uncorrected(a.mean_nn, 120, hull.area)),
+                Edge::None => point(
+                    hull.area,
+                    NnRatioTest::uncorrected(a.mean_nn, 120, hull.area),
+                ),
                 Edge::Donnelly => point(
                     hull.area,
                     donnelly::test(a.mean_nn, 120, hull.area, hull.perimeter.expect("p")),
                 ),
                 Edge::Border => {
                     let d = nearest_distances(&points).expect("d");
-                    let order = FocalOrder::new(hull.shape.as_ref().expect("shape"), &points, &d, a.guard)
-                        .expect("order");
+                    let order =
+                        FocalOrder::new(hull.shape.as_ref().expect("shape"), &points, &d, a.guard)
+                            .expect("order");
                     let (m, mf) = order.at(1.0 + 1e-12).expect("focal");
                     assert_eq!(Some(m), row.focal, "focal count");
                     point(hull.area, guard_zone::test(mf, m, 120, hull.area))
@@ -324,7 +331,11 @@ mod tests {
             let clear: Vec<usize> = (0..points.len())
                 .filter(|&i| inside(i) && outline.clear_of(points[i], w * (1.0 - 1e-9)))
                 .collect();
-            assert!(clear.len() > k, "at s*, at least k+1 points are focal: k={k} s={s} clear={}", clear.len());
+            assert!(
+                clear.len() > k,
+                "at s*, at least k+1 points are focal: k={k} s={s} clear={}",
+                clear.len()
+            );
             let strict: Vec<usize> = (0..points.len())
                 .filter(|&i| inside(i) && outline.clear_of(points[i], w * (1.0 + 1e-9)))
                 .collect();

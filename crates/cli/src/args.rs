@@ -93,6 +93,18 @@ pub struct AuditArgs {
     /// Concavity of the concave hull (geo's parameter; smaller cuts deeper).
     #[arg(long, default_value_t = 2.0)]
     pub concavity: f64,
+    /// Window whose simulated means `simulation.svg` shows (default: the
+    /// first boundary, else the hull).
+    #[arg(long, value_name = "ID")]
+    pub picture_window: Option<String>,
+    /// Leave the point map out of the report (`windows.svg` and the map in
+    /// `index.html`), e.g. when the points are locations of people.
+    #[arg(long)]
+    pub no_map: bool,
+    /// Write the time of the run into `index.html` (off by default, so
+    /// reruns give the same bytes).
+    #[arg(long)]
+    pub stamp: bool,
     /// No progress bar.
     #[arg(long, short)]
     pub quiet: bool,

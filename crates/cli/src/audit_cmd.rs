@@ -7,9 +7,13 @@ use patternproof_audit::window::{NamedShape, WindowOptions};
 use patternproof_audit::{AuditOptions, BufferRule, Edge, run_audit};
 use patternproof_io::{CoordChoice, Dataset, LoadOptions};
 use patternproof_report::document::BoundarySource;
+use patternproof_report::document::{FileDigest, ReportProvenance};
+use patternproof_report::html::{self, Picture, Provenance};
 use patternproof_report::{
-    AuditReport, InputSummary, OutputFolder, markdown, outlines, table, write_folder,
+    AuditReport, InputSummary, OutputFolder, markdown, outlines, sensitivity_plot, simulation_plot,
+    table, window_map, write_folder,
 };
+use sha2::Digest;
 
 /// Run the command.
 pub fn run(a: &AuditArgs) -> Result<(), Failure> {
@@ -69,8 +73,10 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
         )));
     }
 
+    let sensitivity = patternproof_audit::curves::sensitivity(&data.points, &audit);
     let report = AuditReport::new(
         audit,
+        sensitivity,
         input_summary(&data),
         buffers
             .iter()
@@ -79,15 +85,27 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
             .join(","),
         a.concavity,
     );
+    let mut report = report;
+    report.provenance = provenance(&data)?;
+    let folder = render(&report, &data, a)?;
+    write_folder(&a.out, &folder).map_err(|e| Failure::Input(e.to_string()))?;
+
+    print_summary(&report, &a.out, &folder);
+    Ok(())
+}
+
+/// Every file of the report folder, rendered in memory first so that
+/// nothing is written unless everything rendered.
+fn render(report: &AuditReport, data: &Dataset, a: &AuditArgs) -> Result<OutputFolder, Failure> {
     let mut folder = OutputFolder::default();
     let mut buf = Vec::new();
     report.write_json(&mut buf).map_err(internal)?;
     folder.add("report.json", buf);
     let mut buf = Vec::new();
-    table::write_csv(&report, &mut buf).map_err(internal)?;
+    table::write_csv(report, &mut buf).map_err(internal)?;
     folder.add("verdict.csv", buf);
     let mut buf = Vec::new();
-    markdown::write_markdown(&report, &mut buf).map_err(internal)?;
+    markdown::write_markdown(report, &mut buf).map_err(internal)?;
     folder.add("verdict.md", buf);
     let mut buf = Vec::new();
     let unproject = data
@@ -97,15 +115,98 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
     let unproject_ref: Option<&dyn Fn(f64, f64) -> Option<[f64; 2]>> = unproject
         .as_ref()
         .map(|f| f as &dyn Fn(f64, f64) -> Option<[f64; 2]>);
-    outlines::write_outlines(&report, unproject_ref, &mut buf).map_err(internal)?;
+    outlines::write_outlines(report, unproject_ref, &mut buf).map_err(internal)?;
     folder.add("windows.geojson", buf);
-    if let Some(svg) = patternproof_report::window_map::window_map_svg(&report, &data.points) {
+
+    let mut pictures = Vec::new();
+    if let Some(svg) = sensitivity_plot::sensitivity_svg(report) {
+        pictures.push(Picture {
+            title: "How R and z change with the study area".into(),
+            caption: "Does the call survive every defensible window, and where does it flip? Lines: each analytic edge handling over windows of the hull's shape scaled up and down; markers: the verdict-table rows at the named windows; bars: the 95 % range of R under CSR in each exact window; solid verticals: the flip thresholds.".into(),
+            svg: svg.clone(),
+        });
+        folder.add("sensitivity.svg", svg.into_bytes());
+    }
+    let sim_window = match &a.picture_window {
+        Some(id) => {
+            if !report.windows.iter().any(|w| &w.id == id) {
+                return Err(Failure::Input(format!(
+                    "--picture-window {id}: no window has this id\n  what to do: choose one of {}",
+                    report
+                        .windows
+                        .iter()
+                        .map(|w| w.id.as_str())
+                        .collect::<Vec<_>>()
+                        .join(", ")
+                )));
+            }
+            Some(id.as_str())
+        }
+        None => simulation_plot::default_window(report),
+    };
+    if let Some(svg) = sim_window.and_then(|id| simulation_plot::simulation_svg(report, id)) {
+        pictures.push(Picture {
+            title: format!("The simulation test in `{}`", sim_window.unwrap_or_default()),
+            caption: "Where does the observed mean nearest-neighbour distance fall among patterns of complete spatial randomness in this exact window? The rank p-value counts the simulated patterns at least as far out.".into(),
+            svg: svg.clone(),
+        });
+        folder.add("simulation.svg", svg.into_bytes());
+    } else if let Some(id) = &a.picture_window {
+        return Err(Failure::Input(format!(
+            "--picture-window {id}: this window has no simulations (simulations need an outline and --sims above 0)\n  what to do: choose a window with an outline, or leave the option out"
+        )));
+    }
+    if !a.no_map
+        && let Some(svg) = window_map::window_map_svg(report, &data.points)
+    {
+        pictures.push(Picture {
+            title: "The windows".into(),
+            caption: "Which study areas were compared? Every window outline over the points, labelled by id, with a scale bar.".into(),
+            svg: svg.clone(),
+        });
         folder.add("windows.svg", svg.into_bytes());
     }
-    write_folder(&a.out, &folder).map_err(|e| Failure::Input(e.to_string()))?;
+    let run = Provenance {
+        command_line: std::env::args_os()
+            .map(|s| html::shell_quote(&s.to_string_lossy()))
+            .collect::<Vec<_>>()
+            .join(" "),
+        protocol: None,
+        stamp: a
+            .stamp
+            .then(|| humantime::format_rfc3339_seconds(std::time::SystemTime::now()).to_string()),
+    };
+    folder.add(
+        "index.html",
+        html::index_html(report, &pictures, &run).into_bytes(),
+    );
+    Ok(folder)
+}
 
-    print_summary(&report, &a.out, &folder);
-    Ok(())
+/// SHA-256 of every input file.
+fn provenance(data: &Dataset) -> Result<ReportProvenance, Failure> {
+    let mut inputs = Vec::new();
+    let files = std::iter::once(&data.points_file).chain(data.boundaries.iter().map(|b| &b.file));
+    for f in files {
+        if inputs
+            .iter()
+            .any(|d: &FileDigest| d.file == f.display().to_string())
+        {
+            continue;
+        }
+        let bytes = std::fs::read(f).map_err(|e| {
+            Failure::Input(format!(
+                "{}: could not be read again for its checksum: {e}\n  what to do: keep the input files in place while the audit runs",
+                f.display()
+            ))
+        })?;
+        let digest = sha2::Sha256::digest(&bytes);
+        inputs.push(FileDigest {
+            file: f.display().to_string(),
+            sha256: digest.iter().map(|b| format!("{b:02x}")).collect(),
+        });
+    }
+    Ok(ReportProvenance { inputs })
 }
 
 fn internal(e: std::io::Error) -> Failure {

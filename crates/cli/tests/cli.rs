@@ -85,7 +85,7 @@ fn demo_data_gives_a_full_report() {
     }
     let j: serde_json::Value =
         serde_json::from_slice(&std::fs::read(out.join("report.json")).unwrap()).unwrap();
-    assert_eq!(j["schema"], "patternproof.audit/2");
+    assert_eq!(j["schema"], "patternproof.audit/3");
     let ids: Vec<&str> = j["windows"]
         .as_array()
         .unwrap()

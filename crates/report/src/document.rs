@@ -1,10 +1,12 @@
-//! The `report.json` document: schema `patternproof.audit/2`.
+//! The `report.json` document: schema `patternproof.audit/3`.
 //!
-//! Version 2 (this one) has one `flip` entry per analytic edge handling and
-//! simulation fields on the rows; see `docs/report-schema.md`. No clock
+//! Version 3 (this one) adds the sensitivity curves and the input digests
+//! to version 2's per-edge `flip` entries and simulation fields; see
+//! `docs/report-schema.md`. No clock
 //! time is stored, so the same inputs and seed give the same bytes.
 
 use patternproof_audit::Audit;
+use patternproof_audit::curves::Sensitivity;
 use patternproof_audit::flip::FlipEntry;
 use patternproof_audit::robustness::Summary;
 use patternproof_audit::sweep::{ResultRow, Skipped};
@@ -13,7 +15,7 @@ use serde::Serialize;
 use std::io;
 
 /// Schema identifier written into every report.
-pub const SCHEMA: &str = "patternproof.audit/2";
+pub const SCHEMA: &str = "patternproof.audit/3";
 
 /// What was read.
 #[derive(Debug, Clone, Serialize)]
@@ -47,6 +49,22 @@ pub struct BoundarySource {
     pub name: String,
     /// The file.
     pub file: String,
+}
+
+/// A file's digest, so a reader can tell whether they hold the same data.
+#[derive(Debug, Clone, Serialize)]
+pub struct FileDigest {
+    /// The file as given.
+    pub file: String,
+    /// SHA-256 of its bytes, lower-case hex.
+    pub sha256: String,
+}
+
+/// Where the report's inputs came from.
+#[derive(Debug, Clone, Default, Serialize)]
+pub struct ReportProvenance {
+    /// Every input file (points, then boundaries) with its digest.
+    pub inputs: Vec<FileDigest>,
 }
 
 /// The settings that shaped the sweep.
@@ -99,6 +117,11 @@ pub struct AuditReport {
     pub summary: Summary,
     /// What the tests do and do not show, and data-protection reminders.
     pub cautions: Vec<String>,
+    /// Input digests.
+    pub provenance: ReportProvenance,
+    /// R and z over the scaled-hull family (the sensitivity picture's lines);
+    /// `null` without a hull.
+    pub sensitivity: Option<Sensitivity>,
     /// Simulated means per window id, for pictures (not serialised).
     #[serde(skip)]
     pub simulated_means: Vec<(String, Vec<f64>)>,
@@ -107,14 +130,21 @@ pub struct AuditReport {
 /// Standing cautions printed in every report.
 pub fn standing_cautions() -> Vec<String> {
     vec![
-        "The nearest-neighbour test compares one summary (the mean distance to the closest other point) with complete spatial randomness in the chosen window. A significant result rules out CSR in that window at that α; it does not identify a process, and a non-significant one does not prove randomness.".into(),
-        "Point locations of people (cases, patients, addresses, incidents tied to persons) are personal data: keep input files and outputs such as windows.geojson under the same protection as the data, and do not publish raw point maps.".into(),
+        "The nearest-neighbour test compares one summary (the mean distance to the closest other point) with complete spatial randomness in the chosen window. A significant result rules out CSR in that window at that α; it does not identify a process, and a non-significant one does not prove randomness. Clustering at one scale can hide dispersion at another: only the closest neighbour is looked at here (Ripley's K or the L function looks across distances).".into(),
+        "Choose the window and the edge handling before looking at the results, and report every window looked at: this table is the record of that.".into(),
+        "Point locations of people (cases, patients, victims, residents, addresses) are personal data: keep input files and outputs such as windows.geojson under the same protection as the data, leave the map out with --no-map, do not publish raw point maps, and follow the data-protection rules and ethics approvals that apply.".into(),
     ]
 }
 
 impl AuditReport {
     /// Assemble the report from the audit and the input summary.
-    pub fn new(audit: Audit, input: InputSummary, buffers: String, concavity: f64) -> Self {
+    pub fn new(
+        audit: Audit,
+        sensitivity: Option<Sensitivity>,
+        input: InputSummary,
+        buffers: String,
+        concavity: f64,
+    ) -> Self {
         let mut cautions = audit.summary.cautions.clone();
         cautions.extend(standing_cautions());
         let simulated_means = audit
@@ -146,6 +176,8 @@ impl AuditReport {
             flip: audit.flip,
             summary: audit.summary,
             cautions,
+            provenance: ReportProvenance::default(),
+            sensitivity,
             simulated_means,
         }
     }

@@ -10,18 +10,24 @@
 //! | [`methods`] | the methods paragraph for a manuscript |
 //! | [`outlines`] | `windows.geojson` |
 //! | [`window_map`] | `windows.svg`, the map of points and window outlines |
+//! | [`sensitivity_plot`] | `sensitivity.svg`, R and z against the study area |
+//! | [`simulation_plot`] | `simulation.svg`, the simulated means of one window |
 //! | [`palette`] | the one colour-and-dash palette of every picture |
+//! | [`html`] | `index.html`, the one self-contained file to attach |
 //! | [`folder`] | the output folder, written aside and renamed into place |
 //!
 //! Every writer takes any `io::Write`, so tests render into a `Vec<u8>`.
 
 pub mod document;
 pub mod folder;
+pub mod html;
 pub mod markdown;
 pub mod methods;
 pub mod numbers;
 pub mod outlines;
 pub mod palette;
+pub mod sensitivity_plot;
+pub mod simulation_plot;
 pub mod table;
 pub mod window_map;
 

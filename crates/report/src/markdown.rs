@@ -93,6 +93,30 @@ pub fn write_markdown<W: io::Write>(report: &AuditReport, mut out: W) -> io::Res
         "\n`border` rows show focal/total points. `simulation` rows: E[d] is the mean of {} simulated CSR patterns in the exact window (seed {}), p the two-sided rank p-value. \"False alarms under CSR\" is the share of those simulated patterns the row's analytic test would call significant at α.\n",
         report.settings.sims, report.settings.seed
     )?;
+    writeln!(out, "## Robustness\n")?;
+    let sm = &report.summary;
+    writeln!(
+        out,
+        "Over all {} choices: {} clustered, {} dispersed, {} not significant.\n",
+        sm.choices_examined, sm.calls.clustered, sm.calls.dispersed, sm.calls.not_significant
+    )?;
+    writeln!(
+        out,
+        "| window | clustered | dispersed | not significant | unanimous |"
+    )?;
+    writeln!(out, "|---|--:|--:|--:|---|")?;
+    for w in &sm.per_window {
+        writeln!(
+            out,
+            "| `{}` | {} | {} | {} | {} |",
+            w.window,
+            w.calls.clustered,
+            w.calls.dispersed,
+            w.calls.not_significant,
+            if w.unanimous { "yes" } else { "no" }
+        )?;
+    }
+    writeln!(out)?;
     writeln!(out, "## Where the call flips\n")?;
     for line in flip_lines(report) {
         writeln!(out, "- {line}")?;

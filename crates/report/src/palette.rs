@@ -65,3 +65,15 @@ pub const INKS: [Ink; 8] = [
 pub fn ink(k: usize) -> Ink {
     INKS[k % INKS.len()]
 }
+
+/// The style of an edge handling, the same in every picture.
+pub fn edge_ink(edge: patternproof_audit::Edge) -> Ink {
+    use patternproof_audit::Edge;
+    match edge {
+        Edge::None => INKS[0],
+        Edge::Donnelly => INKS[1],
+        Edge::Border => INKS[2],
+        Edge::Toroidal => INKS[3],
+        Edge::Simulation => INKS[4],
+    }
+}

@@ -73,6 +73,16 @@ pub fn call_word(c: Option<Call>) -> &'static str {
     }
 }
 
+/// A symbol for each call, used beside the word (never instead of it).
+pub fn call_symbol(c: Option<Call>) -> &'static str {
+    match c {
+        Some(Call::Clustered) => "◆",
+        Some(Call::Dispersed) => "◇",
+        Some(Call::NotSignificant) => "○",
+        None => "—",
+    }
+}
+
 /// The terminal table, sized to `width` columns when known.
 pub fn terminal_table(report: &AuditReport, width: Option<u16>) -> String {
     let u = &report.input.unit;

@@ -6,6 +6,7 @@ use crate::palette::ink;
 use geo::{BoundingRect, LineString};
 use patternproof_core::Xy;
 use plotters::prelude::*;
+use plotters::style::text_anchor::{HPos, Pos, VPos};
 
 /// Render the map as an SVG string. `None` when nothing has an outline.
 pub fn window_map_svg(report: &AuditReport, points: &[Xy]) -> Option<String> {
@@ -40,7 +41,10 @@ pub fn window_map_svg(report: &AuditReport, points: &[Xy]) -> Option<String> {
     let unit = &report.input.unit;
     let mut svg = String::new();
     {
-        let root = SVGBackend::with_string(&mut svg, (px_w, px_h)).into_drawing_area();
+        // The legend gets a strip of its own on the right, at the map's scale.
+        let legend_px = 190u32;
+        let legend_room = span * 1.04 * legend_px as f64;
+        let root = SVGBackend::with_string(&mut svg, (px_w + legend_px, px_h)).into_drawing_area();
         root.fill(&WHITE).ok()?;
         let mut chart = ChartBuilder::on(&root)
             .caption(
@@ -52,7 +56,10 @@ pub fn window_map_svg(report: &AuditReport, points: &[Xy]) -> Option<String> {
                 ("sans-serif", 18),
             )
             .margin(20)
-            .build_cartesian_2d((cx - half_x)..(cx + half_x), (cy - half_y)..(cy + half_y))
+            .build_cartesian_2d(
+                (cx - half_x)..(cx + half_x + legend_room),
+                (cy - half_y)..(cy + half_y),
+            )
             .ok()?;
         chart
             .draw_series(
@@ -87,6 +94,45 @@ pub fn window_map_svg(report: &AuditReport, points: &[Xy]) -> Option<String> {
                 }
             }
         }
+        // Label each outline at the vertex farthest in its own direction,
+        // directions spread round the compass so labels rarely collide.
+        let count = shapes.len().max(1) as f64;
+        for (k, (id, shape)) in shapes.iter().enumerate() {
+            let angle = std::f64::consts::FRAC_PI_2 + std::f64::consts::TAU * k as f64 / count;
+            let (ux, uy) = (angle.cos(), angle.sin());
+            let best = shape
+                .iter()
+                .flat_map(|p| p.exterior().coords())
+                .max_by(|a, b| (a.x * ux + a.y * uy).total_cmp(&(b.x * ux + b.y * uy)));
+            if let Some(v) = best {
+                let offset = span * 6.0;
+                let h = if ux < -0.3 {
+                    HPos::Right
+                } else if ux > 0.3 {
+                    HPos::Left
+                } else {
+                    HPos::Center
+                };
+                let vpos = if uy > 0.3 {
+                    VPos::Bottom
+                } else if uy < -0.3 {
+                    VPos::Top
+                } else {
+                    VPos::Center
+                };
+                let style = ("sans-serif", 13)
+                    .into_font()
+                    .color(&ink(k).colour)
+                    .pos(Pos::new(h, vpos));
+                chart
+                    .draw_series(std::iter::once(Text::new(
+                        id.to_string(),
+                        (v.x + ux * offset, v.y + uy * offset),
+                        style,
+                    )))
+                    .ok()?;
+            }
+        }
         // Scale bar: a round length near a fifth of the map width.
         let target = 2.0 * half_x / 5.0;
         let mag = 10f64.powf(target.log10().floor());
@@ -107,7 +153,7 @@ pub fn window_map_svg(report: &AuditReport, points: &[Xy]) -> Option<String> {
         chart
             .draw_series(std::iter::once(Text::new(
                 format!("{} {unit}", crate::numbers::sig(bar, 3)),
-                (x0, y0 + half_y * 0.03),
+                (x0, y0 - half_y * 0.015),
                 ("sans-serif", 14),
             )))
             .ok()?;

@@ -1,0 +1,394 @@
+//! The report a reviewer reads: pictures, `index.html`, determinism, the
+//! map switch, and a headless-browser rendering of the page.
+
+use patternproof_report::numbers::sig;
+use serde_json::Value;
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+fn repo() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("../..")
+}
+
+fn demo(name: &str) -> String {
+    repo().join("demo-data").join(name).display().to_string()
+}
+
+fn audit(args: &[&str], out: &Path) -> Output {
+    let o = Command::new(env!("CARGO_BIN_EXE_patternproof"))
+        .arg("audit")
+        .args(args)
+        .arg("--out")
+        .arg(out)
+        .arg("--quiet")
+        .output()
+        .expect("binary runs");
+    assert!(
+        o.status.success(),
+        "audit failed: {}",
+        String::from_utf8_lossy(&o.stderr)
+    );
+    o
+}
+
+fn demo_audit(out: &Path, extra: &[&str]) {
+    let points = demo("meadow-burrows.csv");
+    let boundary = demo("meadow-boundary.geojson");
+    let mut args = vec![
+        points.as_str(),
+        "--boundary",
+        boundary.as_str(),
+        "--sims",
+        "199",
+    ];
+    args.extend_from_slice(extra);
+    audit(&args, out);
+}
+
+fn read(p: &Path) -> String {
+    std::fs::read_to_string(p).unwrap_or_else(|e| panic!("{}: {e}", p.display()))
+}
+
+fn json(dir: &Path) -> Value {
+    serde_json::from_str(&read(&dir.join("report.json"))).expect("report.json parses")
+}
+
+/// Every text node of an SVG, trimmed (plotters puts each label on its own
+/// line inside `<text>`).
+fn svg_texts(svg: &str) -> Vec<String> {
+    let doc = roxmltree::Document::parse(svg).expect("the SVG is well-formed XML");
+    doc.descendants()
+        .filter(|n| n.has_tag_name("text"))
+        .map(|n| n.text().unwrap_or("").trim().to_string())
+        .collect()
+}
+
+/// The flip areas of the analytic edge handlings, as the picture prints
+/// them (4 significant digits).
+fn flip_values(report: &Value) -> Vec<String> {
+    let mut out = Vec::new();
+    for f in report["flip"].as_array().expect("flip list") {
+        for key in ["clustered_above_area", "dispersed_below_area"] {
+            if let Some(a) = f[key].as_f64() {
+                out.push(sig(a, 4));
+            }
+        }
+    }
+    out
+}
+
+fn check_sensitivity(dir: &Path) {
+    let report = json(dir);
+    let texts = svg_texts(&read(&dir.join("sensitivity.svg")));
+    // One legend entry per curve (the analytic edges with a curve).
+    let curves = report["sensitivity"]["curves"].as_array().expect("curves");
+    assert!(!curves.is_empty());
+    for c in curves {
+        let edge = c["edge"].as_str().expect("edge");
+        let prefix = format!("{edge}: ");
+        assert_eq!(
+            texts.iter().filter(|t| t.starts_with(&prefix)).count(),
+            1,
+            "one legend entry for {edge}"
+        );
+    }
+    // Every named window labelled once at the top of the R panel.
+    for w in report["windows"].as_array().expect("windows") {
+        let id = w["id"].as_str().expect("id");
+        assert_eq!(
+            texts.iter().filter(|t| *t == id).count(),
+            1,
+            "window label {id}"
+        );
+    }
+    // Every flip threshold's area appears in the picture's text.
+    let values = flip_values(&report);
+    assert!(!values.is_empty(), "the demo has flip thresholds");
+    for v in values {
+        assert!(
+            texts.iter().any(|t| t.contains(&v)),
+            "flip threshold {v} not in the picture"
+        );
+    }
+}
+
+/// The pictures of the demo report: well-formed, the expected series and
+/// labelled markers, the flip thresholds in the text.
+#[test]
+fn demo_pictures_carry_series_markers_and_thresholds() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let out = dir.path().join("r");
+    demo_audit(&out, &[]);
+    check_sensitivity(&out);
+    let report = json(&out);
+    // Three curves on the demo: none, donnelly, border (toroidal has none).
+    let edges: Vec<&str> = report["sensitivity"]["curves"]
+        .as_array()
+        .expect("curves")
+        .iter()
+        .map(|c| c["edge"].as_str().expect("edge"))
+        .collect();
+    assert_eq!(edges, ["none", "donnelly", "border"]);
+
+    // Simulation picture: the boundary by default, its observed mean in
+    // the text, and one bar per histogram bin that holds simulations.
+    let svg = read(&out.join("simulation.svg"));
+    let texts = svg_texts(&svg);
+    let row = report["results"]
+        .as_array()
+        .expect("results")
+        .iter()
+        .find(|r| r["window"] == "boundary" && r["edge"] == "simulation")
+        .expect("simulation row");
+    let observed = sig(row["mean_nn"].as_f64().expect("mean"), 4);
+    assert!(
+        texts
+            .iter()
+            .any(|t| t == &format!("observed: {observed} m")),
+        "observed value {observed} in {texts:?}"
+    );
+    assert!(
+        texts
+            .iter()
+            .any(|t| t.contains("`boundary`") && t.contains("199 CSR patterns"))
+    );
+
+    // Window map: every window id and the unit of the scale bar.
+    let texts = svg_texts(&read(&out.join("windows.svg")));
+    for w in report["windows"].as_array().expect("windows") {
+        if w["kind"] != "area" {
+            let id = w["id"].as_str().expect("id");
+            assert!(
+                texts.iter().filter(|t| *t == id).count() >= 2,
+                "{id}: legend and label"
+            );
+        }
+    }
+    assert!(
+        texts.iter().any(|t| t.ends_with(" m")),
+        "scale bar with its unit"
+    );
+}
+
+/// A tiny data set (9 points on a jittered grid) still gets every picture,
+/// with its own thresholds in the text.
+#[test]
+fn tiny_data_set_pictures() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let points = dir.path().join("tiny.csv");
+    std::fs::write(
+        &points,
+        "x,y\n0,0\n10,1\n20,0\n1,10\n11,11\n21,9\n0,20\n10,21\n19,20\n",
+    )
+    .expect("write");
+    let out = dir.path().join("r");
+    audit(&[points.to_str().expect("path"), "--sims", "99"], &out);
+    check_sensitivity(&out);
+    // Without a boundary the simulation picture shows the hull.
+    let texts = svg_texts(&read(&out.join("simulation.svg")));
+    assert!(
+        texts
+            .iter()
+            .any(|t| t.contains("`hull`") && t.contains("99 CSR patterns"))
+    );
+}
+
+/// index.html: well-formed, nothing fetched from the network, every
+/// section present, and the SVGs inline.
+#[test]
+fn index_html_is_self_contained() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let out = dir.path().join("r");
+    demo_audit(&out, &[]);
+    let html = read(&out.join("index.html"));
+    let doc = roxmltree::Document::parse_with_options(
+        &html,
+        roxmltree::ParsingOptions {
+            allow_dtd: true,
+            ..Default::default()
+        },
+    )
+    .expect("index.html is well-formed");
+    // Nothing that a browser would fetch: no script, link, external
+    // image, frame or CSS import (the only URLs allowed are the SVG
+    // namespace names, which are never fetched).
+    for n in doc.descendants().filter(|n| n.is_element()) {
+        let tag = n.tag_name().name();
+        assert!(
+            !["script", "link", "img", "iframe", "object", "embed"].contains(&tag),
+            "<{tag}> in index.html"
+        );
+        for a in n.attributes() {
+            let v = a.value();
+            if ["src", "href", "srcset", "data"].contains(&a.name()) {
+                panic!("attribute {}={v} on <{tag}>", a.name());
+            }
+        }
+    }
+    assert!(!html.contains("@import") && !html.contains("url("));
+    assert_eq!(
+        doc.descendants().filter(|n| n.has_tag_name("svg")).count(),
+        3
+    );
+    for id in [
+        "input",
+        "table",
+        "robustness",
+        "flip",
+        "methods",
+        "cautions",
+        "provenance",
+    ] {
+        assert!(
+            doc.descendants().any(|n| n.attribute("id") == Some(id)),
+            "section {id}"
+        );
+    }
+    // Provenance: the digest of the points file (SHA-256 of the bytes,
+    // recomputed here with sha2, a general-purpose library).
+    use sha2::Digest;
+    let bytes = std::fs::read(demo("meadow-burrows.csv")).expect("demo");
+    let hex: String = sha2::Sha256::digest(&bytes)
+        .iter()
+        .map(|b| format!("{b:02x}"))
+        .collect();
+    assert!(html.contains(&hex));
+    assert_eq!(
+        json(&out)["provenance"]["inputs"][0]["sha256"],
+        hex.as_str()
+    );
+    assert!(html.contains("--sims 199"), "the command line");
+    assert!(!html.contains("run at"), "no time without --stamp");
+    // The personal-data caution and the map switch are stated.
+    assert!(html.contains("personal data") && html.contains("--no-map"));
+}
+
+/// A hostile file name and boundary name are shown as text, never as
+/// markup.
+#[test]
+fn hostile_names_are_escaped() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let points = dir.path().join("<script>alert(1)<script>.csv");
+    std::fs::copy(demo("meadow-burrows.csv"), &points).expect("copy");
+    let boundary = dir.path().join("b.geojson");
+    let mut geojson: Value =
+        serde_json::from_str(&read(Path::new(&demo("meadow-boundary.geojson")))).expect("demo");
+    geojson["features"][0]["properties"]["name"] = "<script>alert('x')</script>".into();
+    let hostile = geojson.to_string();
+    std::fs::write(&boundary, hostile).expect("write");
+    let out = dir.path().join("r");
+    audit(
+        &[
+            points.to_str().expect("path"),
+            "--boundary",
+            boundary.to_str().expect("path"),
+            "--sims",
+            "19",
+        ],
+        &out,
+    );
+    let html = read(&out.join("index.html"));
+    assert!(!html.to_lowercase().contains("<script"), "unescaped markup");
+    assert!(html.contains("&lt;script&gt;alert(1)&lt;script&gt;.csv"));
+    assert!(html.contains("&lt;script&gt;alert(&#39;x&#39;)&lt;/script&gt;"));
+}
+
+/// Same seed, same bytes: report.json, verdict.md and every SVG.
+#[test]
+fn reruns_give_identical_files() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let (a, b) = (dir.path().join("a"), dir.path().join("b"));
+    demo_audit(&a, &[]);
+    demo_audit(&b, &[]);
+    for f in [
+        "report.json",
+        "verdict.md",
+        "verdict.csv",
+        "sensitivity.svg",
+        "simulation.svg",
+        "windows.svg",
+    ] {
+        assert_eq!(
+            std::fs::read(a.join(f)).expect("a"),
+            std::fs::read(b.join(f)).expect("b"),
+            "{f} differs between runs"
+        );
+    }
+}
+
+/// `--no-map` leaves the point map out of the folder and the page;
+/// `--stamp` adds the time to the page only.
+#[test]
+fn no_map_and_stamp() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let out = dir.path().join("r");
+    demo_audit(&out, &["--no-map", "--stamp"]);
+    assert!(!out.join("windows.svg").exists());
+    let html = read(&out.join("index.html"));
+    assert!(!html.contains("Windows of "), "map title in the page");
+    assert!(html.contains("run at 20"), "RFC 3339 time with --stamp");
+    assert!(!read(&out.join("report.json")).contains("run at"));
+}
+
+/// Headless Chromium renders the page to a PNG that is not blank: the
+/// expected size and many distinct colours. `.ci/run` installs Debian's
+/// `chromium`; without it this test says so loudly and does not pass
+/// silently on a machine where it could run.
+#[test]
+fn browser_renders_the_page() {
+    let Some(browser) = ["chromium", "chromium-browser"].into_iter().find(|b| {
+        Command::new(b)
+            .arg("--version")
+            .output()
+            .is_ok_and(|o| o.status.success())
+    }) else {
+        eprintln!(
+            "SKIPPED browser_renders_the_page: no chromium on PATH (install Debian's `chromium`; .ci/run does)"
+        );
+        assert!(
+            std::env::var_os("PATTERNPROOF_REQUIRE_BROWSER").is_none(),
+            "PATTERNPROOF_REQUIRE_BROWSER is set but chromium is missing"
+        );
+        return;
+    };
+    let dir = tempfile::tempdir().expect("tempdir");
+    let out = dir.path().join("r");
+    demo_audit(&out, &[]);
+    let png = dir.path().join("page.png");
+    let o = Command::new(browser)
+        .args([
+            "--headless",
+            "--no-sandbox",
+            "--disable-gpu",
+            "--hide-scrollbars",
+            "--window-size=1100,1600",
+        ])
+        .arg(format!("--screenshot={}", png.display()))
+        .arg(format!("file://{}", out.join("index.html").display()))
+        .output()
+        .expect("chromium runs");
+    assert!(
+        png.exists(),
+        "no screenshot: {}",
+        String::from_utf8_lossy(&o.stderr)
+    );
+    let decoder = png::Decoder::new(std::io::BufReader::new(
+        std::fs::File::open(&png).expect("png"),
+    ));
+    let mut reader = decoder.read_info().expect("PNG header");
+    let mut buf = vec![0; reader.output_buffer_size().expect("size")];
+    let info = reader.next_frame(&mut buf).expect("PNG frame");
+    assert_eq!((info.width, info.height), (1100, 1600));
+    let channels = info.color_type.samples();
+    let mut colours = std::collections::HashSet::new();
+    for px in buf[..info.buffer_size()].chunks(channels) {
+        colours.insert(px[..3.min(channels)].to_vec());
+    }
+    // A blank or error page has a handful of colours; text, tables and the
+    // first picture give hundreds (anti-aliasing).
+    assert!(
+        colours.len() > 100,
+        "only {} distinct colours",
+        colours.len()
+    );
+}
