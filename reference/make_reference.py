@@ -9,6 +9,7 @@ in the JSON, so the Rust side uses exactly the same coordinates.
 
 import json
 import math
+import importlib.metadata
 import platform
 import sys
 from pathlib import Path
@@ -115,6 +116,42 @@ def csr_simulation(rng):
     }
 
 
+RECHECK_Z = [-0.5, 1.0, -1.64, 1.96, -2.33, 2.58, -3.0, 3.29, -4.0, 4.9, -6.0]
+RECHECK_P = [0.5, 0.2, 0.05, 0.01, 1e-3, 1e-6, 1e-12]
+
+
+def recheck_tails():
+    """Normal tails for the one-sided/two-sided detection of
+    `patternproof recheck`: one-sided norm.sf(|z|), two-sided 2*norm.sf(|z|),
+    and the inverses norm.isf(p) and norm.isf(p/2)."""
+    return {
+        "z": RECHECK_Z,
+        "one_sided_p": [float(norm.sf(abs(z))) for z in RECHECK_Z],
+        "two_sided_p": [float(2.0 * norm.sf(abs(z))) for z in RECHECK_Z],
+        "p": RECHECK_P,
+        "one_sided_z": [float(norm.isf(p)) for p in RECHECK_P],
+        "two_sided_z": [float(norm.isf(p / 2.0)) for p in RECHECK_P],
+    }
+
+
+# An invented vector of per-site p-values (ties and a value above 1/m included).
+MULTITEST_P = [0.001, 0.008, 0.039, 0.041, 0.042, 0.06, 0.074, 0.205, 0.212, 0.216, 0.5, 0.008]
+
+
+def multitest():
+    """Holm and Benjamini-Hochberg adjusted p-values from
+    statsmodels.stats.multitest.multipletests, for the multi-site run."""
+    from statsmodels.stats.multitest import multipletests
+
+    holm = multipletests(MULTITEST_P, alpha=0.05, method="holm")[1]
+    bh = multipletests(MULTITEST_P, alpha=0.05, method="fdr_bh")[1]
+    return {
+        "p": MULTITEST_P,
+        "holm": [float(v) for v in holm],
+        "bh": [float(v) for v in bh],
+    }
+
+
 def main():
     out_path = Path(__file__).resolve().parent / "values.json"
     rng = np.random.default_rng(SEED)
@@ -144,6 +181,7 @@ def main():
             "python": platform.python_version(),
             "numpy": np.__version__,
             "scipy": scipy.__version__,
+            "statsmodels": importlib.metadata.version("statsmodels"),
             "shapely": shapely.__version__,
             "pyproj": pyproj.__version__,
             "proj": pyproj.proj_version_str,
@@ -151,6 +189,7 @@ def main():
         "point_sets": sets,
         "normal": normal,
         "csr_simulation": csr_simulation(np.random.default_rng(SEED + 1)),
+        "multitest": multitest(),
         "projection": {
             "proj_string": LAEA,
             "lon0": 10.0,
@@ -164,6 +203,7 @@ def main():
                 "geodesic_perimeter_m": float(g_perim),
             },
         },
+        "recheck_tails": recheck_tails(),
     }
     out_path.write_text(json.dumps(values, indent=1) + "\n")
     print(f"wrote {out_path}", file=sys.stderr)

@@ -228,7 +228,10 @@ pub fn run_audit(
     })
 }
 
-fn window_rows(
+/// The rows of one window: its observed statistics, its simulations and
+/// one row per edge handling (or a `Skipped` entry). Public so that a
+/// multi-site run can re-run a single window with more simulations.
+pub fn window_rows(
     points: &[Xy],
     w: &Window,
     guard: f64,

@@ -20,6 +20,15 @@ pub enum Command {
     /// Sweep study areas × edge handling for one data set: verdict table,
     /// flip thresholds and a report folder.
     Audit(AuditArgs),
+    /// Recheck published figures (R, z, p, n, distances, area): do they agree,
+    /// what study area do they imply, and which window reproduces them.
+    Recheck(crate::recheck_cmd::RecheckArgs),
+    /// Write a study protocol (window rule, edge handling, α, simulations,
+    /// seed, adjustment) once, with a hash; or show and verify one.
+    Protocol(crate::protocol_cmd::ProtocolArgs),
+    /// Apply one protocol to many sites: per-site rows, adjusted p-values,
+    /// window-sensitivity flags and a report folder per site.
+    Sites(crate::sites_cmd::SitesArgs),
 }
 
 /// How coordinates are to be read.

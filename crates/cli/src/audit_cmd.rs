@@ -87,16 +87,41 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
     );
     let mut report = report;
     report.provenance = provenance(&data)?;
-    let folder = render(&report, &data, a)?;
+    let choices = RenderChoices {
+        picture_window: a.picture_window.clone(),
+        no_map: a.no_map,
+        stamp: a.stamp,
+        protocol: None,
+    };
+    let folder = render(&report, &data.points, data.projection.as_ref(), &choices)?;
     write_folder(&a.out, &folder).map_err(|e| Failure::Input(e.to_string()))?;
 
     print_summary(&report, &a.out, &folder);
     Ok(())
 }
 
+/// The rendering switches shared by `audit` and the per-site folders of
+/// `sites`.
+#[derive(Debug, Clone, Default)]
+pub struct RenderChoices {
+    /// `--picture-window`.
+    pub picture_window: Option<String>,
+    /// `--no-map`.
+    pub no_map: bool,
+    /// `--stamp`.
+    pub stamp: bool,
+    /// The protocol followed, in words (id and hash), if any.
+    pub protocol: Option<String>,
+}
+
 /// Every file of the report folder, rendered in memory first so that
 /// nothing is written unless everything rendered.
-fn render(report: &AuditReport, data: &Dataset, a: &AuditArgs) -> Result<OutputFolder, Failure> {
+pub fn render(
+    report: &AuditReport,
+    points: &[patternproof_core::Xy],
+    projection: Option<&patternproof_io::Projection>,
+    a: &RenderChoices,
+) -> Result<OutputFolder, Failure> {
     let mut folder = OutputFolder::default();
     let mut buf = Vec::new();
     report.write_json(&mut buf).map_err(internal)?;
@@ -108,10 +133,7 @@ fn render(report: &AuditReport, data: &Dataset, a: &AuditArgs) -> Result<OutputF
     markdown::write_markdown(report, &mut buf).map_err(internal)?;
     folder.add("verdict.md", buf);
     let mut buf = Vec::new();
-    let unproject = data
-        .projection
-        .as_ref()
-        .map(|p| move |x: f64, y: f64| p.inverse(x, y));
+    let unproject = projection.map(|p| move |x: f64, y: f64| p.inverse(x, y));
     let unproject_ref: Option<&dyn Fn(f64, f64) -> Option<[f64; 2]>> = unproject
         .as_ref()
         .map(|f| f as &dyn Fn(f64, f64) -> Option<[f64; 2]>);
@@ -157,7 +179,7 @@ fn render(report: &AuditReport, data: &Dataset, a: &AuditArgs) -> Result<OutputF
         )));
     }
     if !a.no_map
-        && let Some(svg) = window_map::window_map_svg(report, &data.points)
+        && let Some(svg) = window_map::window_map_svg(report, points)
     {
         pictures.push(Picture {
             title: "The windows".into(),
@@ -171,7 +193,7 @@ fn render(report: &AuditReport, data: &Dataset, a: &AuditArgs) -> Result<OutputF
             .map(|s| html::shell_quote(&s.to_string_lossy()))
             .collect::<Vec<_>>()
             .join(" "),
-        protocol: None,
+        protocol: a.protocol.clone(),
         stamp: a
             .stamp
             .then(|| humantime::format_rfc3339_seconds(std::time::SystemTime::now()).to_string()),

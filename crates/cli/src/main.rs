@@ -9,6 +9,9 @@ mod args;
 mod audit_cmd;
 mod fail;
 mod progress;
+mod protocol_cmd;
+mod recheck_cmd;
+mod sites_cmd;
 
 use clap::Parser;
 use std::process::ExitCode;
@@ -17,6 +20,9 @@ fn main() -> ExitCode {
     let cli = args::Cli::parse();
     let result = match cli.command {
         args::Command::Audit(a) => audit_cmd::run(&a),
+        args::Command::Recheck(a) => recheck_cmd::run(&a),
+        args::Command::Protocol(a) => protocol_cmd::run(&a),
+        args::Command::Sites(a) => sites_cmd::run(&a),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,

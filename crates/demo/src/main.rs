@@ -69,7 +69,110 @@ fn write_all(out: &Path) -> std::io::Result<()> {
         burrows.len(),
         out.display()
     );
+    write_plots(out)?;
     Ok(())
+}
+
+/// Six invented 40 m × 40 m survey plots of the same meadow, laid out 100 m
+/// apart on the survey grid, for the multi-site run. By construction:
+/// `plot-a` and `plot-b` are strongly clustered and `plot-c` is strongly
+/// regular under every window; `plot-d` (nests only in a central 16 m
+/// square) and `plot-e` (nests only in a 14 m strip along the west edge)
+/// look clustered inside their plot boundary and random inside their own
+/// hull, so they are window-sensitive; `plot-f` has too few nests to test.
+fn write_plots(out: &Path) -> std::io::Result<()> {
+    let dir = out.join("plots");
+    std::fs::create_dir_all(&dir)?;
+    let mut rng = ChaCha8Rng::seed_from_u64(SEED + 1);
+    let mut features = Vec::new();
+    for (k, name) in ["plot-a", "plot-b", "plot-c", "plot-d", "plot-e", "plot-f"]
+        .iter()
+        .enumerate()
+    {
+        let x0 = 100.0 * k as f64;
+        let local: Vec<[f64; 2]> = match *name {
+            "plot-a" => thomas(&mut rng, 5, 8, 1.5),
+            "plot-b" => thomas(&mut rng, 6, 7, 1.2),
+            "plot-c" => {
+                let mut v = Vec::new();
+                for i in 0..8 {
+                    for j in 0..8 {
+                        v.push([
+                            4.25 + 4.5 * i as f64 + (rng.random::<f64>() - 0.5),
+                            4.25 + 4.5 * j as f64 + (rng.random::<f64>() - 0.5),
+                        ]);
+                    }
+                }
+                v
+            }
+            "plot-d" => (0..30)
+                .map(|_| {
+                    [
+                        12.0 + 16.0 * rng.random::<f64>(),
+                        12.0 + 16.0 * rng.random::<f64>(),
+                    ]
+                })
+                .collect(),
+            "plot-e" => (0..28)
+                .map(|_| {
+                    [
+                        1.0 + 13.0 * rng.random::<f64>(),
+                        1.0 + 38.0 * rng.random::<f64>(),
+                    ]
+                })
+                .collect(),
+            _ => (0..7)
+                .map(|_| [40.0 * rng.random::<f64>(), 40.0 * rng.random::<f64>()])
+                .collect(),
+        };
+        let mut csv = String::from("nest,x,y\n");
+        for (i, p) in local.iter().enumerate() {
+            let _ = writeln!(csv, "N{:02},{:.2},{:.2}", i + 1, p[0] + x0, p[1]);
+        }
+        std::fs::write(dir.join(format!("{name}.csv")), csv)?;
+        features.push(serde_json::json!({
+            "type": "Feature",
+            "properties": { "name": name },
+            "geometry": { "type": "Polygon", "coordinates": [[
+                [x0, 0.0], [x0 + 40.0, 0.0], [x0 + 40.0, 40.0], [x0, 40.0], [x0, 0.0]
+            ]] }
+        }));
+    }
+    let fc = serde_json::json!({
+        "type": "FeatureCollection",
+        "crs": { "type": "name", "properties": { "name": "local survey grid, metres" } },
+        "features": features
+    });
+    let mut text = serde_json::to_string_pretty(&fc).map_err(std::io::Error::other)?;
+    text.push('\n');
+    std::fs::write(out.join("plots-boundaries.geojson"), text)?;
+    println!("wrote six survey plots to {}", dir.display());
+    Ok(())
+}
+
+/// A Thomas cluster process in a 40 m square plot (offspring kept inside).
+fn thomas(rng: &mut ChaCha8Rng, parents: usize, per: usize, sigma: f64) -> Vec<[f64; 2]> {
+    let mut v = Vec::new();
+    for _ in 0..parents {
+        let c = [
+            4.0 + 32.0 * rng.random::<f64>(),
+            4.0 + 32.0 * rng.random::<f64>(),
+        ];
+        let mut made = 0;
+        while made < per {
+            let (u1, u2): (f64, f64) = (rng.random::<f64>().max(1e-12), rng.random());
+            let r = (-2.0 * u1.ln()).sqrt() * sigma;
+            let p = [
+                c[0] + r * (std::f64::consts::TAU * u2).cos(),
+                c[1] + r * (std::f64::consts::TAU * u2).sin(),
+            ];
+            if (0.0..40.0).contains(&p[0]) && (0.0..40.0).contains(&p[1]) {
+                v.push(p);
+                made += 1;
+            }
+        }
+    }
+    v
 }
 
 fn round2(x: f64) -> f64 {

@@ -238,3 +238,92 @@ mod tests {
         assert!(read_boundary(f.path()).unwrap_err().what.contains("lines"));
     }
 }
+
+/// The boundaries of many sites in one GeoJSON FeatureCollection, one
+/// site per value of the property `field` (features sharing a value are
+/// parts of one site). In file order of first appearance.
+pub fn read_named_boundaries(path: &Path, field: &str) -> Result<Vec<RawBoundary>, InputError> {
+    let text = read_text(path)?;
+    let gj: GeoJson = text.parse().map_err(|e| {
+        InputError::new(
+            path,
+            format!("not valid GeoJSON ({e})"),
+            "give a FeatureCollection of Polygon/MultiPolygon features, each with the site's name in a property",
+        )
+    })?;
+    let GeoJson::FeatureCollection(fc) = gj else {
+        return Err(InputError::new(
+            path,
+            "site boundaries must be a FeatureCollection",
+            "put one Polygon/MultiPolygon feature per site in a FeatureCollection",
+        ));
+    };
+    let declared = match fc.foreign_members.as_ref().and_then(|m| m.get("crs")) {
+        None => Some(CoordSystem::LonLat),
+        Some(c) => {
+            let name = c
+                .get("properties")
+                .and_then(|p| p.get("name"))
+                .and_then(|n| n.as_str())
+                .unwrap_or("")
+                .to_ascii_uppercase();
+            if name.contains("CRS84") || name.ends_with(":4326") {
+                Some(CoordSystem::LonLat)
+            } else if name.is_empty() {
+                None
+            } else {
+                Some(CoordSystem::Projected)
+            }
+        }
+    };
+    let mut out: Vec<RawBoundary> = Vec::new();
+    for (i, f) in fc.features.into_iter().enumerate() {
+        let place = format!("feature {}", i + 1);
+        let name = match f.property(field) {
+            Some(serde_json::Value::String(s)) => s.clone(),
+            Some(serde_json::Value::Number(n)) => n.to_string(),
+            _ => {
+                return Err(InputError::new(
+                    path,
+                    format!("the feature has no `{field}` property naming its site"),
+                    format!("give every feature a `{field}` property, or choose another with --boundary-field"),
+                )
+                .at(place));
+            }
+        };
+        let Some(geometry) = f.geometry else {
+            return Err(InputError::new(
+                path,
+                "the feature has no geometry",
+                "remove it or give it a Polygon",
+            )
+            .at(place));
+        };
+        let g: Geometry<f64> = Geometry::try_from(geometry).map_err(|e| {
+            InputError::new(
+                path,
+                format!("cannot read the geometry ({e})"),
+                "check the polygon's rings",
+            )
+            .at(place.clone())
+        })?;
+        let mut polys = Vec::new();
+        polygons_of(path, &place, g, &mut polys)?;
+        match out.iter_mut().find(|b| b.name == name) {
+            Some(b) => b.shape.0.extend(polys),
+            None => out.push(RawBoundary {
+                name,
+                shape: MultiPolygon(polys),
+                declared,
+            }),
+        }
+    }
+    if out.is_empty() {
+        return Err(InputError::new(
+            path,
+            "the file holds no site boundary",
+            "add one Polygon feature per site",
+        ));
+    }
+    Ok(out)
+}

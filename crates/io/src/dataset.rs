@@ -194,6 +194,27 @@ impl Dataset {
     }
 }
 
+impl Dataset {
+    /// Bring a boundary read separately (e.g. one site's part of a shared
+    /// site-boundaries file) into this data set's planar coordinates, with
+    /// the same checks as `--boundary` files.
+    pub fn planar(
+        &mut self,
+        file: &Path,
+        raw: crate::boundary::RawBoundary,
+        choice: CoordChoice,
+    ) -> Result<Boundary, InputError> {
+        planar_boundary(
+            file,
+            raw,
+            self.system,
+            choice,
+            self.projection.as_ref(),
+            &mut self.warnings,
+        )
+    }
+}
+
 fn centred_projection(coords: &[[f64; 2]]) -> Option<Projection> {
     let (mut lo_x, mut hi_x, mut lo_y, mut hi_y) = (f64::MAX, f64::MIN, f64::MAX, f64::MIN);
     for c in coords {

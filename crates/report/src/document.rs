@@ -119,6 +119,9 @@ pub struct AuditReport {
     pub cautions: Vec<String>,
     /// Input digests.
     pub provenance: ReportProvenance,
+    /// SHA-256 of the protocol the run followed (multi-site runs only).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub protocol_sha256: Option<String>,
     /// R and z over the scaled-hull family (the sensitivity picture's lines);
     /// `null` without a hull.
     pub sensitivity: Option<Sensitivity>,
@@ -177,6 +180,7 @@ impl AuditReport {
             summary: audit.summary,
             cautions,
             provenance: ReportProvenance::default(),
+            protocol_sha256: None,
             sensitivity,
             simulated_means,
         }

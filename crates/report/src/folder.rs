@@ -21,6 +21,13 @@ impl OutputFolder {
         self.files.push((name.to_string(), content));
     }
 
+    /// Add every file of `other` under the sub-folder `prefix`.
+    pub fn nest(&mut self, prefix: &str, other: OutputFolder) {
+        for (name, content) in other.files {
+            self.files.push((format!("{prefix}/{name}"), content));
+        }
+    }
+
     /// Names added so far.
     pub fn names(&self) -> impl Iterator<Item = &str> {
         self.files.iter().map(|(n, _)| n.as_str())
@@ -76,6 +83,9 @@ pub fn write_folder(target: &Path, folder: &OutputFolder) -> Result<(), FolderEr
         .map_err(|e| FolderError::Io(parent.clone(), e))?;
     for (name, content) in &folder.files {
         let path = staging.path().join(name);
+        if let Some(dir) = path.parent() {
+            std::fs::create_dir_all(dir).map_err(|e| FolderError::Io(dir.to_path_buf(), e))?;
+        }
         std::fs::write(&path, content).map_err(|e| FolderError::Io(path.clone(), e))?;
     }
     let staged = staging.keep();

@@ -1,0 +1,197 @@
+//! `patternproof protocol new|show`: write a study protocol down once and
+//! check it later.
+
+use crate::fail::Failure;
+use clap::{Args, Subcommand};
+use patternproof_audit::Edge;
+use patternproof_protocol::{Adjust, Check, Protocol, SCHEMA, WindowRule};
+use std::path::{Path, PathBuf};
+
+/// `patternproof protocol`.
+#[derive(Debug, Args)]
+pub struct ProtocolArgs {
+    /// What to do with a protocol.
+    #[command(subcommand)]
+    pub action: ProtocolAction,
+}
+
+/// The protocol actions.
+#[derive(Debug, Subcommand)]
+pub enum ProtocolAction {
+    /// Write a new protocol file (refuses to overwrite one).
+    New(NewArgs),
+    /// Print a protocol in words and verify its hash.
+    Show(ShowArgs),
+}
+
+/// `patternproof protocol new`.
+#[derive(Debug, Args)]
+pub struct NewArgs {
+    /// Window rule: hull, hull+D (a distance), hull+kNN (e.g. hull+1nn: k × each site's
+    /// mean nearest-neighbour distance), bbox, boundary (each site's own), concave.
+    #[arg(long, default_value = "hull+1nn", value_name = "RULE")]
+    pub window: String,
+    /// Edge handling whose row is each site's result: none, donnelly, border, toroidal, simulation.
+    #[arg(long, default_value = "simulation", value_name = "E")]
+    pub edge: String,
+    /// Two-sided significance level.
+    #[arg(long, default_value_t = 0.05)]
+    pub alpha: f64,
+    /// CSR simulations per site.
+    #[arg(long, default_value_t = 999)]
+    pub sims: usize,
+    /// Seed; each site's streams derive from it and the site's name.
+    #[arg(long, default_value_t = 1)]
+    pub seed: u64,
+    /// Multiple-testing adjustment across sites: holm, bh or none.
+    #[arg(long, default_value = "holm")]
+    pub adjust: String,
+    /// Sites with fewer points are listed, not tested.
+    #[arg(long, default_value_t = 10)]
+    pub min_n: usize,
+    /// Guard width for `border` (default: each site's mean nearest-neighbour distance).
+    #[arg(long, value_name = "W")]
+    pub guard: Option<f64>,
+    /// Concavity of the concave hull.
+    #[arg(long, default_value_t = 2.0)]
+    pub concavity: f64,
+    /// Free text: who fixed the protocol, when, why.
+    #[arg(long, value_name = "TEXT")]
+    pub note: Option<String>,
+    /// The protocol file to write.
+    #[arg(long, value_name = "FILE")]
+    pub out: PathBuf,
+}
+
+/// `patternproof protocol show`.
+#[derive(Debug, Args)]
+pub struct ShowArgs {
+    /// The protocol file.
+    #[arg(value_name = "FILE")]
+    pub file: PathBuf,
+}
+
+/// Run the command.
+pub fn run(a: &ProtocolArgs) -> Result<(), Failure> {
+    match &a.action {
+        ProtocolAction::New(n) => new(n),
+        ProtocolAction::Show(s) => show(s),
+    }
+}
+
+fn new(a: &NewArgs) -> Result<(), Failure> {
+    let usage = |opt: &str, what: String, hint: &str| {
+        Failure::Input(format!("{opt}: {what}\n  what to do: {hint}"))
+    };
+    let window = WindowRule::parse(&a.window).map_err(|e| {
+        usage(
+            "--window",
+            e,
+            "use hull, hull+25, hull+1nn, bbox, boundary or concave",
+        )
+    })?;
+    let edge = Edge::parse(&a.edge).ok_or_else(|| {
+        usage(
+            "--edge",
+            format!("`{}` is not an edge handling", a.edge),
+            "choose one of none, donnelly, border, toroidal, simulation",
+        )
+    })?;
+    let adjust = Adjust::parse(&a.adjust).ok_or_else(|| {
+        usage(
+            "--adjust",
+            format!("`{}` is not an adjustment", a.adjust),
+            "choose holm, bh or none",
+        )
+    })?;
+    let protocol = Protocol {
+        schema: SCHEMA.into(),
+        window,
+        edge,
+        alpha: a.alpha,
+        sims: a.sims,
+        seed: a.seed,
+        adjust,
+        min_n: a.min_n,
+        guard: a.guard,
+        concavity: a.concavity,
+        note: a.note.clone(),
+    };
+    protocol
+        .validate()
+        .map_err(|e| Failure::Input(format!("protocol: {e}")))?;
+    if a.out.exists() {
+        return Err(Failure::Input(format!(
+            "{}: the file exists; a protocol is not overwritten\n  what to do: choose a new --out name (keep the old protocol as the record of what was fixed)",
+            a.out.display()
+        )));
+    }
+    write_new(&a.out, &protocol.to_file_text())?;
+    println!("wrote {} (SHA-256 {})", a.out.display(), protocol.sha256());
+    for l in protocol.describe() {
+        println!("  {l}");
+    }
+    Ok(())
+}
+
+/// Write a file that must not exist yet, all or nothing.
+fn write_new(path: &Path, text: &str) -> Result<(), Failure> {
+    let dir = match path.parent() {
+        Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
+        _ => PathBuf::from("."),
+    };
+    let io_err = |e: std::io::Error| {
+        Failure::Input(format!(
+            "{}: {e}\n  what to do: check that the folder exists and is writable",
+            path.display()
+        ))
+    };
+    let mut tmp = tempfile::NamedTempFile::new_in(&dir).map_err(io_err)?;
+    std::io::Write::write_all(&mut tmp, text.as_bytes()).map_err(io_err)?;
+    tmp.persist_noclobber(path).map_err(|e| io_err(e.error))?;
+    Ok(())
+}
+
+/// Read and verify a protocol file; a changed one is an input error.
+pub fn read_verified(path: &Path) -> Result<Protocol, Failure> {
+    let (protocol, check) = read(path)?;
+    match check {
+        Check::Intact => Ok(protocol),
+        Check::Changed { stored, actual } => Err(changed(path, &stored, &actual)),
+    }
+}
+
+fn read(path: &Path) -> Result<(Protocol, Check), Failure> {
+    let text = std::fs::read_to_string(path).map_err(|e| {
+        Failure::Input(format!(
+            "{}: cannot be read ({e})\n  what to do: give the protocol file written by `patternproof protocol new`",
+            path.display()
+        ))
+    })?;
+    Protocol::from_file_text(&text).map_err(|e| Failure::Input(format!("{}: {e}", path.display())))
+}
+
+fn changed(path: &Path, stored: &str, actual: &str) -> Failure {
+    Failure::Input(format!(
+        "{}: the protocol was CHANGED after it was written: its choices hash to {actual}, the file records {stored}\n  what to do: use the original protocol file; if the change is intended, write a new protocol with `patternproof protocol new` and report both",
+        path.display()
+    ))
+}
+
+fn show(a: &ShowArgs) -> Result<(), Failure> {
+    let (protocol, check) = read(&a.file)?;
+    println!("protocol {} ({})", a.file.display(), protocol.schema);
+    for l in protocol.describe() {
+        println!("  {l}");
+    }
+    match check {
+        Check::Intact => {
+            println!(
+                "SHA-256 {}: intact (the choices match the recorded hash)",
+                protocol.sha256()
+            );
+            Ok(())
+        }
+        Check::Changed { stored, actual } => Err(changed(&a.file, &stored, &actual)),
+    }
+}

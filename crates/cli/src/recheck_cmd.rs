@@ -1,0 +1,160 @@
+//! `patternproof recheck`: are published figures consistent, what study
+//! area do they imply, and (given the points) which window reproduces them.
+//!
+//! The flags and the run function live here together; the checks are in
+//! the `patternproof-recheck` crate.
+
+use crate::args::CoordsArg;
+use crate::audit_cmd::named_shapes;
+use crate::fail::Failure;
+use clap::Args;
+use patternproof_audit::run_audit;
+use patternproof_io::{CoordChoice, Dataset, LoadOptions};
+use patternproof_recheck::attribution::sweep_options;
+use patternproof_recheck::reported::{Bound, Problem, Quantity, parse, parse_count};
+use patternproof_recheck::{Figures, recheck, render};
+use std::path::PathBuf;
+
+/// `patternproof recheck`.
+///
+/// Give the figures exactly as printed: the number of decimals sets the
+/// rounding range each figure is allowed (R = 0.71 means 0.705 to 0.715).
+/// Bounds such as "<0.001" are accepted for any figure.
+#[derive(Debug, Args)]
+pub struct RecheckArgs {
+    /// Number of points the analysis used.
+    #[arg(long, value_name = "N", allow_hyphen_values = true)]
+    pub n: String,
+    /// The ratio R (mean nearest-neighbour distance over its CSR expectation), as printed.
+    #[arg(long, value_name = "R", allow_hyphen_values = true)]
+    pub ratio: Option<String>,
+    /// The standardised difference z, as printed (e.g. -4.9).
+    #[arg(long, value_name = "Z", allow_hyphen_values = true)]
+    pub z: Option<String>,
+    /// The p-value, as printed (e.g. 0.013 or "<0.001").
+    #[arg(long, value_name = "P", allow_hyphen_values = true)]
+    pub p: Option<String>,
+    /// The mean nearest-neighbour distance D, as printed (in the data's unit).
+    #[arg(long, value_name = "D", allow_hyphen_values = true)]
+    pub mean_nn: Option<String>,
+    /// The expected distance under CSR, E, as printed.
+    #[arg(long, value_name = "E", allow_hyphen_values = true)]
+    pub expected_nn: Option<String>,
+    /// The study area A, as printed (unit squared).
+    #[arg(long, value_name = "A", allow_hyphen_values = true)]
+    pub area: Option<String>,
+    /// The reported p is one-sided (the tail in the direction of the departure).
+    #[arg(long)]
+    pub one_sided: bool,
+    /// The points, to find which window and edge handling reproduce the figures.
+    #[arg(long, value_name = "FILE")]
+    pub points: Option<PathBuf>,
+    /// A study-area boundary (GeoJSON Polygon/MultiPolygon or WKT); repeat for several.
+    #[arg(long = "boundary", value_name = "FILE", requires = "points")]
+    pub boundaries: Vec<PathBuf>,
+    /// How to read the points' coordinates.
+    #[arg(long, value_enum, default_value_t = CoordsArg::Auto)]
+    pub coords: CoordsArg,
+    /// Name of the unit of projected coordinates.
+    #[arg(long, default_value = "m")]
+    pub unit: String,
+    /// Remove points that repeat an earlier point exactly before matching n.
+    #[arg(long, requires = "points")]
+    pub drop_duplicates: bool,
+    /// Print the result as JSON (schema `patternproof.recheck/1`, docs/recheck-schema.md).
+    #[arg(long)]
+    pub json: bool,
+}
+
+fn refuse(flag: &str, text: &str, p: Problem) -> Failure {
+    Failure::Input(format!(
+        "{flag} {}: {}\n  what to do: {}",
+        text.trim(),
+        p.what,
+        p.advice
+    ))
+}
+
+fn figures(a: &RecheckArgs) -> Result<Figures, Failure> {
+    let n = parse_count(&a.n).map_err(|p| refuse("--n", &a.n, p))?;
+    let mut f = Figures::new(n, a.one_sided);
+    let given = [
+        (Quantity::Ratio, &a.ratio),
+        (Quantity::Z, &a.z),
+        (Quantity::P, &a.p),
+        (Quantity::MeanNn, &a.mean_nn),
+        (Quantity::ExpectedNn, &a.expected_nn),
+        (Quantity::Area, &a.area),
+    ];
+    for (q, text) in given {
+        if let Some(t) = text {
+            let r = parse(t, q).map_err(|p| refuse(q.flag(), t, p))?;
+            f = f.with(r);
+        }
+    }
+    if f.figures.is_empty() {
+        return Err(Failure::Input(
+            "nothing to recheck: only n was given\n  what to do: add the figures as printed, e.g. --ratio 0.71 --z -4.9 --p \"<0.001\"".into(),
+        ));
+    }
+    Ok(f)
+}
+
+/// Run the command.
+pub fn run(a: &RecheckArgs) -> Result<(), Failure> {
+    let f = figures(a)?;
+    let data = match &a.points {
+        Some(path) => {
+            let coords = match a.coords {
+                CoordsArg::Auto => CoordChoice::Auto,
+                CoordsArg::Projected => CoordChoice::Projected,
+                CoordsArg::Lonlat => CoordChoice::LonLat,
+            };
+            let options = LoadOptions {
+                coords,
+                unit: a.unit.clone(),
+                drop_duplicates: a.drop_duplicates,
+                field: None,
+            };
+            Some(Dataset::load(path, &a.boundaries, &options)?)
+        }
+        None => None,
+    };
+    let audit = match &data {
+        Some(d) => {
+            let area = f
+                .get(Quantity::Area)
+                .filter(|r| r.bound == Bound::Rounded)
+                .map(|r| r.value);
+            let audit = run_audit(&d.points, &named_shapes(d), &sweep_options(area), &|| {})
+                .ok_or_else(|| {
+                    Failure::Input(format!(
+                        "{}: the sweep needs at least two points\n  what to do: check the point file",
+                        d.points_file.display()
+                    ))
+                })?;
+            if audit.results.is_empty() {
+                return Err(Failure::Input(format!(
+                    "{}: no window could be tested ({})\n  what to do: give the surveyed outline with --boundary, or leave out --points to check the figures alone",
+                    d.points_file.display(),
+                    audit.notes.join("; ")
+                )));
+            }
+            for w in &d.warnings {
+                eprintln!("patternproof: warning: {w}");
+            }
+            Some(audit)
+        }
+        None => None,
+    };
+    let unit = data.as_ref().map_or("m", |d| d.unit.as_str());
+    let result = recheck(&f, audit.as_ref().map(|x| (x, unit)));
+    if a.json {
+        let text = serde_json::to_string_pretty(&result)
+            .map_err(|e| Failure::Internal(format!("could not write the JSON: {e}")))?;
+        println!("{text}");
+    } else {
+        print!("{}", render::text(&result, None));
+    }
+    Ok(())
+}

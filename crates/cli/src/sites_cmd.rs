@@ -1,0 +1,379 @@
+//! `patternproof sites`: one locked protocol over many sites.
+
+use crate::args::CoordsArg;
+use crate::audit_cmd::{RenderChoices, input_summary, render};
+use crate::fail::Failure;
+use crate::protocol_cmd::read_verified;
+use clap::Args;
+use patternproof_audit::window::NamedShape;
+use patternproof_io::boundary::read_named_boundaries;
+use patternproof_io::{CoordChoice, Dataset, LoadOptions};
+use patternproof_protocol::Protocol;
+use patternproof_report::document::{FileDigest, ReportProvenance};
+use patternproof_report::{AuditReport, OutputFolder, write_folder};
+use patternproof_sites::{RunOptions, SiteInput, SiteRun, forest, page, render as site_render};
+use rayon::prelude::*;
+use sha2::Digest;
+use std::path::{Path, PathBuf};
+
+/// `patternproof sites`.
+#[derive(Debug, Args)]
+pub struct SitesArgs {
+    /// The protocol file (from `patternproof protocol new`); a changed one is refused.
+    #[arg(long, value_name = "FILE")]
+    pub protocol: PathBuf,
+    /// Point files, one per site (the file stem is the site name), or one file with --site-field.
+    #[arg(value_name = "INPUT", required = true)]
+    pub inputs: Vec<PathBuf>,
+    /// Column (CSV) or property (GeoJSON) naming each point's site, for one file holding all sites.
+    #[arg(long, value_name = "NAME")]
+    pub site_field: Option<String>,
+    /// GeoJSON FeatureCollection with one boundary per site, matched by name.
+    #[arg(long, value_name = "FILE")]
+    pub boundaries: Option<PathBuf>,
+    /// Property of the boundary features that holds the site name.
+    #[arg(long, default_value = "name", value_name = "NAME")]
+    pub boundary_field: String,
+    /// How to read coordinates.
+    #[arg(long, value_enum, default_value_t = CoordsArg::Auto)]
+    pub coords: CoordsArg,
+    /// Name of the unit of projected coordinates.
+    #[arg(long, default_value = "m")]
+    pub unit: String,
+    /// Remove points that repeat an earlier point of the same site exactly.
+    #[arg(long)]
+    pub drop_duplicates: bool,
+    /// Simulations per window in each site's window-sensitivity sweep (the
+    /// protocol window always gets the protocol's number).
+    #[arg(long, default_value_t = 99)]
+    pub sweep_sims: usize,
+    /// Leave the point maps out of the per-site reports.
+    #[arg(long)]
+    pub no_map: bool,
+    /// Report folder (written whole or not at all).
+    #[arg(long, value_name = "DIR")]
+    pub out: PathBuf,
+}
+
+/// A site with what its report needs besides the sweep.
+struct Loaded {
+    input: SiteInput,
+    /// Index of the data set the site came from (shared with --site-field).
+    data: usize,
+    /// What its report says about the input.
+    summary: patternproof_report::InputSummary,
+    files: Vec<PathBuf>,
+}
+
+/// Run the command.
+pub fn run(a: &SitesArgs) -> Result<(), Failure> {
+    let protocol = read_verified(&a.protocol)?;
+    let (sites, datasets) = load_sites(a)?;
+    let inputs: Vec<SiteInput> = sites.iter().map(|s| s.input.clone()).collect();
+    let runs = patternproof_sites::run_sites(
+        &inputs,
+        &protocol,
+        RunOptions {
+            sweep_sims: a.sweep_sims,
+        },
+    );
+    let folder = outputs(a, &protocol, &sites, &datasets, &runs)?;
+    write_folder(&a.out, &folder).map_err(|e| Failure::Input(e.to_string()))?;
+
+    let doc = site_render::document(&runs, &protocol, a.sweep_sims);
+    println!(
+        "protocol {} (SHA-256 {})",
+        a.protocol.display(),
+        doc.protocol_sha256
+    );
+    for r in &doc.sites {
+        let what = match (&r.reason, r.ratio) {
+            (Some(why), _) => format!("not tested: {why}"),
+            (None, Some(ratio)) => format!(
+                "R = {ratio:.3}, adjusted p = {}, {}{}",
+                r.p_adjusted
+                    .map_or("—".into(), patternproof_report::numbers::p_value),
+                patternproof_report::table::call_word(r.call),
+                if r.window_sensitive == Some(true) {
+                    "; WINDOW-SENSITIVE"
+                } else {
+                    ""
+                }
+            ),
+            _ => String::new(),
+        };
+        println!("  {}: {what}", r.site);
+    }
+    println!("\n{}.", site_render::summary_line(&doc));
+    for n in &doc.notes {
+        println!("  caution: {n}");
+    }
+    println!(
+        "wrote sites.csv, sites.md, sites.json, sites.svg, index.html and site/*/ to {}",
+        a.out.display()
+    );
+    Ok(())
+}
+
+fn coords(c: CoordsArg) -> CoordChoice {
+    match c {
+        CoordsArg::Auto => CoordChoice::Auto,
+        CoordsArg::Projected => CoordChoice::Projected,
+        CoordsArg::Lonlat => CoordChoice::LonLat,
+    }
+}
+
+fn load_sites(a: &SitesArgs) -> Result<(Vec<Loaded>, Vec<Dataset>), Failure> {
+    let options = |field: Option<String>| LoadOptions {
+        coords: coords(a.coords),
+        unit: a.unit.clone(),
+        drop_duplicates: a.drop_duplicates,
+        field,
+    };
+    let mut sites: Vec<Loaded> = Vec::new();
+    let mut datasets: Vec<Dataset> = Vec::new();
+    if let Some(field) = &a.site_field {
+        if a.inputs.len() != 1 {
+            return Err(Failure::Input(format!(
+                "--site-field {field}: give exactly one point file holding every site ({} given)\n  what to do: drop --site-field to use one file per site, or merge the files",
+                a.inputs.len()
+            )));
+        }
+        let file = &a.inputs[0];
+        let all = Dataset::load(file, &[], &options(Some(field.clone())))?;
+        let values = all
+            .field_values
+            .clone()
+            .ok_or_else(|| Failure::Internal("the site field was requested but not read".into()))?;
+        let mut names: Vec<String> = values.clone();
+        names.sort();
+        names.dedup();
+        for name in names {
+            let idx: Vec<usize> = (0..values.len()).filter(|&i| values[i] == name).collect();
+            let points: Vec<_> = idx.iter().map(|&i| all.points[i]).collect();
+            let mut summary = input_summary(&all);
+            summary.points_file = format!("{} (site {name})", summary.points_file);
+            summary.n = points.len();
+            summary.n_read = points.len();
+            summary.duplicates = 0;
+            sites.push(Loaded {
+                input: SiteInput {
+                    name: name.clone(),
+                    points,
+                    boundary: None,
+                },
+                data: 0,
+                summary,
+                files: vec![file.clone()],
+            });
+        }
+        datasets.push(all);
+    } else {
+        for file in &a.inputs {
+            let name = file
+                .file_stem()
+                .and_then(|s| s.to_str())
+                .unwrap_or("site")
+                .to_string();
+            if sites.iter().any(|s| s.input.name == name) {
+                return Err(Failure::Input(format!(
+                    "{}: a second file for site `{name}` (site names are file stems)\n  what to do: rename one of the files so every site has its own name",
+                    file.display()
+                )));
+            }
+            let data = Dataset::load(file, &[], &options(None))?;
+            sites.push(Loaded {
+                input: SiteInput {
+                    name,
+                    points: data.points.clone(),
+                    boundary: None,
+                },
+                data: datasets.len(),
+                summary: input_summary(&data),
+                files: vec![file.clone()],
+            });
+            datasets.push(data);
+        }
+    }
+    if let Some(bfile) = &a.boundaries {
+        let raws = read_named_boundaries(bfile, &a.boundary_field)?;
+        for raw in &raws {
+            if !sites.iter().any(|s| s.input.name == raw.name) {
+                eprintln!(
+                    "patternproof: warning: {}: boundary `{}` matches no site",
+                    bfile.display(),
+                    raw.name
+                );
+            }
+        }
+        for s in &mut sites {
+            if let Some(raw) = raws.iter().find(|r| r.name == s.input.name) {
+                let b = datasets[s.data].planar(bfile, raw.clone(), coords(a.coords))?;
+                s.input.boundary = Some(NamedShape {
+                    name: b.name.clone(),
+                    source: bfile.display().to_string(),
+                    shape: b.shape.clone(),
+                });
+                s.summary.boundaries = vec![patternproof_report::document::BoundarySource {
+                    name: b.name.clone(),
+                    file: bfile.display().to_string(),
+                }];
+                s.files.push(bfile.clone());
+            }
+        }
+    }
+    for s in &mut sites {
+        s.summary.warnings = datasets[s.data].warnings.clone();
+    }
+    Ok((sites, datasets))
+}
+
+/// A folder name for a site: letters, digits, `.`, `_`, `-` kept, the rest
+/// replaced, made unique.
+fn folder_name(name: &str, taken: &[String]) -> String {
+    let mut base: String = name
+        .chars()
+        .map(|c| {
+            if c.is_ascii_alphanumeric() || "._-".contains(c) {
+                c
+            } else {
+                '_'
+            }
+        })
+        .collect();
+    if base.is_empty() || base.starts_with('.') {
+        base = format!("site{base}");
+    }
+    let mut candidate = base.clone();
+    let mut k = 2;
+    while taken.contains(&candidate) {
+        candidate = format!("{base}-{k}");
+        k += 1;
+    }
+    candidate
+}
+
+fn digest(path: &Path) -> Result<FileDigest, Failure> {
+    let bytes = std::fs::read(path).map_err(|e| {
+        Failure::Input(format!(
+            "{}: could not be read again for its checksum: {e}\n  what to do: keep the input files in place while the run lasts",
+            path.display()
+        ))
+    })?;
+    Ok(FileDigest {
+        file: path.display().to_string(),
+        sha256: sha2::Sha256::digest(&bytes)
+            .iter()
+            .map(|b| format!("{b:02x}"))
+            .collect(),
+    })
+}
+
+fn outputs(
+    a: &SitesArgs,
+    protocol: &Protocol,
+    sites: &[Loaded],
+    datasets: &[Dataset],
+    runs: &[SiteRun],
+) -> Result<OutputFolder, Failure> {
+    let internal = |e: std::io::Error| {
+        Failure::Internal(format!("could not render the outputs in memory: {e}"))
+    };
+    let hash = protocol.sha256();
+    let mut folders: Vec<(String, String)> = Vec::new();
+    for (s, run) in sites.iter().zip(runs) {
+        if run.audit.is_some() {
+            let taken: Vec<String> = folders
+                .iter()
+                .map(|f| f.1.trim_start_matches("site/").to_string())
+                .collect();
+            folders.push((
+                s.input.name.clone(),
+                format!("site/{}", folder_name(&s.input.name, &taken)),
+            ));
+        }
+    }
+    let choices = RenderChoices {
+        picture_window: None,
+        no_map: a.no_map,
+        stamp: false,
+        protocol: Some(format!("{} (SHA-256 {hash})", a.protocol.display())),
+    };
+    let per_site: Vec<Result<Option<(String, OutputFolder)>, Failure>> = sites
+        .par_iter()
+        .zip(runs.par_iter())
+        .map(|(s, run)| {
+            let Some(audit) = &run.audit else {
+                return Ok(None);
+            };
+            let sensitivity = patternproof_audit::curves::sensitivity(&s.input.points, audit);
+            let summary = s.summary.clone();
+            let mut report = AuditReport::new(
+                audit.clone(),
+                sensitivity,
+                summary,
+                "0.5x,1x,2x (+ the protocol's buffer)".into(),
+                protocol.concavity,
+            );
+            report.provenance = ReportProvenance {
+                inputs: s
+                    .files
+                    .iter()
+                    .map(|f| digest(f))
+                    .collect::<Result<_, _>>()?,
+            };
+            report.protocol_sha256 = Some(hash.clone());
+            let folder = render(
+                &report,
+                &s.input.points,
+                datasets[s.data].projection.as_ref(),
+                &choices,
+            )?;
+            let dir = folders
+                .iter()
+                .find(|f| f.0 == s.input.name)
+                .map(|f| f.1.clone())
+                .unwrap_or_default();
+            Ok(Some((dir, folder)))
+        })
+        .collect();
+    let mut out = OutputFolder::default();
+    let doc = site_render::document(runs, protocol, a.sweep_sims);
+    let mut buf = Vec::new();
+    site_render::write_json(&doc, &mut buf).map_err(internal)?;
+    out.add("sites.json", buf);
+    let mut buf = Vec::new();
+    site_render::write_csv(&doc, &mut buf).map_err(internal)?;
+    out.add("sites.csv", buf);
+    let mut buf = Vec::new();
+    site_render::write_markdown(&doc, &mut buf).map_err(internal)?;
+    out.add("sites.md", buf);
+    let svg = forest::forest_svg(runs);
+    if let Some(svg) = &svg {
+        out.add("sites.svg", svg.clone().into_bytes());
+    }
+    out.add(
+        "index.html",
+        page::index_html(&doc, svg.as_deref(), &folders).into_bytes(),
+    );
+    out.add("protocol.json", protocol.to_file_text().into_bytes());
+    for r in per_site {
+        if let Some((dir, folder)) = r? {
+            out.nest(&dir, folder);
+        }
+    }
+    Ok(out)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::folder_name;
+
+    #[test]
+    fn folder_names_are_safe_and_unique() {
+        assert_eq!(folder_name("plot 3/b", &[]), "plot_3_b");
+        assert_eq!(folder_name("..", &[]), "site..");
+        assert_eq!(folder_name("a", &["a".into()]), "a-2");
+        assert_eq!(folder_name("<script>", &[]), "_script_");
+    }
+}

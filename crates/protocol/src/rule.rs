@@ -1,0 +1,133 @@
+//! Window rules: how each site's study area is drawn, the same way for all.
+
+use serde::{Deserialize, Serialize};
+
+/// One window rule.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+#[serde(tag = "rule", deny_unknown_fields)]
+pub enum WindowRule {
+    /// The convex hull of the site's points.
+    #[serde(rename = "hull")]
+    Hull,
+    /// The convex hull buffered by a fixed distance.
+    #[serde(rename = "hull+D")]
+    HullPlus {
+        /// Buffer distance in the data's unit.
+        distance: f64,
+    },
+    /// The convex hull buffered by k times the site's own mean
+    /// nearest-neighbour distance.
+    #[serde(rename = "hull+kNN")]
+    HullPlusKnn {
+        /// The multiple.
+        k: f64,
+    },
+    /// The bounding rectangle.
+    #[serde(rename = "bbox")]
+    Bbox,
+    /// The site's own surveyed boundary.
+    #[serde(rename = "boundary")]
+    Boundary,
+    /// The concave hull.
+    #[serde(rename = "concave")]
+    Concave,
+}
+
+impl WindowRule {
+    /// Parse the command-line form: `hull`, `hull+25` (a distance),
+    /// `hull+1.5nn` or `hull+1.5x` (a multiple of the mean
+    /// nearest-neighbour distance), `bbox`, `boundary`, `concave`.
+    pub fn parse(word: &str) -> Result<Self, String> {
+        let w = word.trim();
+        let rule = match w {
+            "hull" => WindowRule::Hull,
+            "bbox" => WindowRule::Bbox,
+            "boundary" => WindowRule::Boundary,
+            "concave" => WindowRule::Concave,
+            _ => {
+                let Some(rest) = w.strip_prefix("hull+") else {
+                    return Err(format!(
+                        "`{w}` is not a window rule (hull, hull+D, hull+kNN, bbox, boundary, concave)"
+                    ));
+                };
+                let lower = rest.to_ascii_lowercase();
+                let (num, multiple) =
+                    match lower.strip_suffix("nn").or_else(|| lower.strip_suffix('x')) {
+                        Some(n) => (n.to_string(), true),
+                        None => (lower.clone(), false),
+                    };
+                let v: f64 = num.parse().map_err(|_| {
+                    format!("`{w}`: `{rest}` is not a number, a number + `nn`, or a number + `x`")
+                })?;
+                if multiple {
+                    WindowRule::HullPlusKnn { k: v }
+                } else {
+                    WindowRule::HullPlus { distance: v }
+                }
+            }
+        };
+        rule.validate()?;
+        Ok(rule)
+    }
+
+    /// The numbers must be positive and finite.
+    pub fn validate(&self) -> Result<(), String> {
+        match *self {
+            WindowRule::HullPlus { distance: v } | WindowRule::HullPlusKnn { k: v }
+                if !(v > 0.0 && v.is_finite()) =>
+            {
+                Err(format!("the buffer {v} must be a positive number"))
+            }
+            _ => Ok(()),
+        }
+    }
+
+    /// In words.
+    pub fn describe(&self) -> String {
+        match self {
+            WindowRule::Hull => "the convex hull of each site's points".into(),
+            WindowRule::HullPlus { distance } => {
+                format!("the convex hull buffered by {distance} (data unit)")
+            }
+            WindowRule::HullPlusKnn { k } => format!(
+                "the convex hull buffered by {k} × the site's mean nearest-neighbour distance"
+            ),
+            WindowRule::Bbox => "the bounding rectangle of each site's points".into(),
+            WindowRule::Boundary => "each site's own surveyed boundary".into(),
+            WindowRule::Concave => "the concave hull of each site's points".into(),
+        }
+    }
+
+    /// Whether each site must bring a boundary.
+    pub fn needs_boundary(&self) -> bool {
+        matches!(self, WindowRule::Boundary)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn parses_every_rule() {
+        assert_eq!(WindowRule::parse("hull"), Ok(WindowRule::Hull));
+        assert_eq!(
+            WindowRule::parse("hull+25"),
+            Ok(WindowRule::HullPlus { distance: 25.0 })
+        );
+        assert_eq!(
+            WindowRule::parse("hull+1.5nn"),
+            Ok(WindowRule::HullPlusKnn { k: 1.5 })
+        );
+        assert_eq!(
+            WindowRule::parse("hull+2x"),
+            Ok(WindowRule::HullPlusKnn { k: 2.0 })
+        );
+        assert_eq!(WindowRule::parse("bbox"), Ok(WindowRule::Bbox));
+        assert_eq!(WindowRule::parse("boundary"), Ok(WindowRule::Boundary));
+        assert_eq!(WindowRule::parse("concave"), Ok(WindowRule::Concave));
+        assert!(WindowRule::parse("hull+-3").is_err());
+        assert!(WindowRule::parse("hull+abc").is_err());
+        assert!(WindowRule::parse("circle").is_err());
+    }
+}
