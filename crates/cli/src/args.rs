@@ -117,6 +117,10 @@ pub struct AuditArgs {
     /// No progress bar.
     #[arg(long, short)]
     pub quiet: bool,
+    /// Replace an earlier report in `--out` (a folder that is not a
+    /// patternproof report is never replaced).
+    #[arg(long)]
+    pub force: bool,
     /// Report folder (written whole or not at all).
     #[arg(long, value_name = "DIR")]
     pub out: PathBuf,

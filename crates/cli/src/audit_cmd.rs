@@ -11,7 +11,7 @@ use patternproof_report::document::{FileDigest, ReportProvenance};
 use patternproof_report::html::{self, Picture, Provenance};
 use patternproof_report::{
     AuditReport, InputSummary, OutputFolder, markdown, outlines, sensitivity_plot, simulation_plot,
-    table, window_map, write_folder,
+    table, window_map, write_folder_with,
 };
 use sha2::Digest;
 
@@ -94,7 +94,7 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
         protocol: None,
     };
     let folder = render(&report, &data.points, data.projection.as_ref(), &choices)?;
-    write_folder(&a.out, &folder).map_err(|e| Failure::Input(e.to_string()))?;
+    write_folder_with(&a.out, &folder, a.force).map_err(|e| Failure::Input(e.to_string()))?;
 
     print_summary(&report, &a.out, &folder);
     Ok(())

@@ -10,7 +10,7 @@ use patternproof_io::boundary::read_named_boundaries;
 use patternproof_io::{CoordChoice, Dataset, LoadOptions};
 use patternproof_protocol::Protocol;
 use patternproof_report::document::{FileDigest, ReportProvenance};
-use patternproof_report::{AuditReport, OutputFolder, write_folder};
+use patternproof_report::{AuditReport, OutputFolder, write_folder_with};
 use patternproof_sites::{RunOptions, SiteInput, SiteRun, forest, page, render as site_render};
 use rayon::prelude::*;
 use sha2::Digest;
@@ -50,6 +50,9 @@ pub struct SitesArgs {
     /// Leave the point maps out of the per-site reports.
     #[arg(long)]
     pub no_map: bool,
+    /// Replace an earlier report in `--out`.
+    #[arg(long)]
+    pub force: bool,
     /// Report folder (written whole or not at all).
     #[arg(long, value_name = "DIR")]
     pub out: PathBuf,
@@ -78,7 +81,7 @@ pub fn run(a: &SitesArgs) -> Result<(), Failure> {
         },
     );
     let folder = outputs(a, &protocol, &sites, &datasets, &runs)?;
-    write_folder(&a.out, &folder).map_err(|e| Failure::Input(e.to_string()))?;
+    write_folder_with(&a.out, &folder, a.force).map_err(|e| Failure::Input(e.to_string()))?;
 
     let doc = site_render::document(&runs, &protocol, a.sweep_sims);
     println!(

@@ -22,8 +22,19 @@ use std::path::{Path, PathBuf};
 const SEED: u64 = 20_261_202;
 
 fn main() {
-    let out: PathBuf = std::env::args_os()
-        .nth(1)
+    let args: Vec<String> = std::env::args().skip(1).collect();
+    if args.first().map(String::as_str) == Some("--bench-sites") {
+        // `--bench-sites DIR COUNT N`: synthetic sites for bench/sites.sh.
+        let parse = |k: usize, d: usize| args.get(k).and_then(|v| v.parse().ok()).unwrap_or(d);
+        let dir = PathBuf::from(args.get(1).cloned().unwrap_or_else(|| "bench-sites".into()));
+        if let Err(e) = write_bench_sites(&dir, parse(2, 200), parse(3, 500)) {
+            eprintln!("patternproof-demo: error: {e}");
+            std::process::exit(2);
+        }
+        return;
+    }
+    let out: PathBuf = args
+        .first()
         .map(PathBuf::from)
         .unwrap_or_else(|| "demo-data".into());
     if let Err(e) = write_all(&out) {
@@ -147,6 +158,35 @@ fn write_plots(out: &Path) -> std::io::Result<()> {
     text.push('\n');
     std::fs::write(out.join("plots-boundaries.geojson"), text)?;
     println!("wrote six survey plots to {}", dir.display());
+    Ok(())
+}
+
+/// `count` synthetic sites of `n` points each (every third clustered, the
+/// rest CSR in a 100 m square), seeded, for the multi-site benchmark.
+fn write_bench_sites(dir: &Path, count: usize, n: usize) -> std::io::Result<()> {
+    std::fs::create_dir_all(dir)?;
+    let mut rng = ChaCha8Rng::seed_from_u64(SEED + 2);
+    for k in 0..count {
+        let pts: Vec<[f64; 2]> = if k % 3 == 0 {
+            thomas(&mut rng, n / 10, 10, 1.5)
+                .into_iter()
+                .map(|p| [p[0] * 2.5, p[1] * 2.5])
+                .collect()
+        } else {
+            (0..n)
+                .map(|_| [100.0 * rng.random::<f64>(), 100.0 * rng.random::<f64>()])
+                .collect()
+        };
+        let mut csv = String::from("x,y\n");
+        for p in pts {
+            let _ = writeln!(csv, "{:.3},{:.3}", p[0], p[1]);
+        }
+        std::fs::write(dir.join(format!("site-{k:03}.csv")), csv)?;
+    }
+    println!(
+        "wrote {count} synthetic sites of {n} points to {}",
+        dir.display()
+    );
     Ok(())
 }
 

@@ -80,6 +80,46 @@ fn polygons_of(
     Ok(())
 }
 
+/// What a legacy `crs` member declares, by the same rules as for points;
+/// `None` when it cannot be told (then the points decide).
+fn declared_system(crs: &serde_json::Value) -> Option<CoordSystem> {
+    crate::points::crs_is_lonlat(crs).map(|lonlat| {
+        if lonlat {
+            CoordSystem::LonLat
+        } else {
+            CoordSystem::Projected
+        }
+    })
+}
+
+/// GeoJSON rings must be closed (RFC 7946 §3.1.6: first and last
+/// positions equal, at least four positions); geo would close them
+/// silently, hiding a truncated export.
+fn check_rings(path: &Path, place: &str, g: &geojson::Geometry) -> Result<(), InputError> {
+    let polygons: Vec<&geojson::PolygonType> = match &g.value {
+        geojson::GeometryValue::Polygon { coordinates } => vec![coordinates],
+        geojson::GeometryValue::MultiPolygon { coordinates } => coordinates.iter().collect(),
+        _ => Vec::new(),
+    };
+    for (k, ring) in polygons.iter().flat_map(|p| p.iter()).enumerate() {
+        let closed = ring.len() >= 4
+            && ring.first().map(|p| p.as_slice()) == ring.last().map(|p| p.as_slice());
+        if !closed {
+            return Err(InputError::new(
+                path,
+                format!(
+                    "ring {} is not closed ({} positions; the first must equal the last, and a ring needs at least four)",
+                    k + 1,
+                    ring.len()
+                ),
+                "repeat the first position at the end of the ring; if the export was cut short, export it again",
+            )
+            .at(place.to_string()));
+        }
+    }
+    Ok(())
+}
+
 fn read_geojson(path: &Path, text: &str, stem: String) -> Result<RawBoundary, InputError> {
     let gj: GeoJson = text.parse().map_err(|e| {
         InputError::new(path, format!("not valid GeoJSON ({e})"), "check the file against RFC 7946; polygon rings need at least four positions, first = last")
@@ -103,21 +143,7 @@ fn read_geojson(path: &Path, text: &str, stem: String) -> Result<RawBoundary, In
     };
     let declared = match crs {
         None => Some(CoordSystem::LonLat),
-        Some(c) => {
-            let name = c
-                .get("properties")
-                .and_then(|p| p.get("name"))
-                .and_then(|n| n.as_str())
-                .unwrap_or("")
-                .to_ascii_uppercase();
-            if name.contains("CRS84") || name.ends_with(":4326") {
-                Some(CoordSystem::LonLat)
-            } else if name.is_empty() {
-                None
-            } else {
-                Some(CoordSystem::Projected)
-            }
-        }
+        Some(c) => declared_system(&c),
     };
     let features: Vec<(String, Option<geojson::Geometry>, Option<String>)> = match gj {
         GeoJson::FeatureCollection(fc) => fc
@@ -152,6 +178,7 @@ fn read_geojson(path: &Path, text: &str, stem: String) -> Result<RawBoundary, In
             )
             .at(place));
         };
+        check_rings(path, &place, &geometry)?;
         let g: Geometry<f64> = Geometry::try_from(geometry).map_err(|e| {
             InputError::new(
                 path,
@@ -260,21 +287,7 @@ pub fn read_named_boundaries(path: &Path, field: &str) -> Result<Vec<RawBoundary
     };
     let declared = match fc.foreign_members.as_ref().and_then(|m| m.get("crs")) {
         None => Some(CoordSystem::LonLat),
-        Some(c) => {
-            let name = c
-                .get("properties")
-                .and_then(|p| p.get("name"))
-                .and_then(|n| n.as_str())
-                .unwrap_or("")
-                .to_ascii_uppercase();
-            if name.contains("CRS84") || name.ends_with(":4326") {
-                Some(CoordSystem::LonLat)
-            } else if name.is_empty() {
-                None
-            } else {
-                Some(CoordSystem::Projected)
-            }
-        }
+        Some(c) => declared_system(c),
     };
     let mut out: Vec<RawBoundary> = Vec::new();
     for (i, f) in fc.features.into_iter().enumerate() {

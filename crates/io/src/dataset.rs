@@ -9,6 +9,7 @@ use crate::boundary::{RawBoundary, read_boundary};
 use crate::coords::{CoordChoice, CoordSystem, Projection, in_lat_range, in_lon_range};
 use crate::error::InputError;
 use crate::points::read_points;
+use geo::Intersects;
 use geo::{Area, MapCoords, MultiPolygon, Validation};
 use patternproof_core::Xy;
 use std::collections::HashMap;
@@ -87,6 +88,13 @@ impl Dataset {
     ) -> Result<Self, InputError> {
         let raw = read_points(points_file, options.coords, options.field.as_deref())?;
         let mut warnings = Vec::new();
+        if raw.skipped_empty > 0 {
+            warnings.push(format!(
+                "{}: {} feature(s) without geometry skipped",
+                points_file.display(),
+                raw.skipped_empty
+            ));
+        }
         let n_read = raw.coords.len();
         if n_read == 0 {
             return Err(InputError::new(
@@ -168,14 +176,27 @@ impl Dataset {
         let mut boundaries = Vec::new();
         for file in boundary_files {
             let raw_b = read_boundary(file)?;
-            boundaries.push(planar_boundary(
+            let b = planar_boundary(
                 file,
                 raw_b,
                 raw.system,
                 options.coords,
                 projection.as_ref(),
                 &mut warnings,
-            )?);
+            )?;
+            // A boundary that covers none of the points is almost always
+            // the wrong file or the wrong coordinate system.
+            if !points
+                .iter()
+                .any(|p| b.shape.intersects(&geo::Point::new(p[0], p[1])))
+            {
+                return Err(InputError::new(
+                    file,
+                    format!("the boundary covers none of the {} points", points.len()),
+                    "check that the boundary and the points use the same coordinate system and belong to the same site",
+                ));
+            }
+            boundaries.push(b);
         }
         Ok(Self {
             points_file: points_file.to_path_buf(),

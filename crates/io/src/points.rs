@@ -23,6 +23,8 @@ pub struct RawPoints {
     pub system: CoordSystem,
     /// One value per point of the requested attribute field, when asked for.
     pub field_values: Option<Vec<String>>,
+    /// Features without geometry, skipped.
+    pub skipped_empty: usize,
 }
 
 const PROJECTED_PAIRS: [(&str, &str); 2] = [("x", "y"), ("easting", "northing")];
@@ -192,6 +194,7 @@ fn read_csv_points(
         places,
         system,
         field_values: field_col.map(|_| values),
+        skipped_empty: 0,
     })
 }
 
@@ -217,6 +220,12 @@ fn parse_number(
             "remove or fix the row; missing or infinite coordinates cannot be placed",
         )
         .at(place)),
+        None if raw.contains(',') && raw.replace(',', ".").parse::<f64>().is_ok() => Err(InputError::new(
+            path,
+            format!("column '{column}' holds '{raw}': a decimal comma in a comma-separated file"),
+            "write decimals with a point (512.25), or separate the columns with ';' so that decimal commas can be read",
+        )
+        .at(place)),
         None => Err(InputError::new(
             path,
             format!("column '{column}' holds '{raw}', which is not a number"),
@@ -227,13 +236,56 @@ fn parse_number(
 }
 
 /// Does a legacy GeoJSON `crs` member name a lon/lat system?
-fn crs_is_lonlat(crs: &serde_json::Value) -> Option<bool> {
+pub(crate) fn crs_is_lonlat(crs: &serde_json::Value) -> Option<bool> {
     let name = crs
         .get("properties")?
         .get("name")?
         .as_str()?
         .to_ascii_uppercase();
-    Some(name.contains("CRS84") || name.ends_with(":4326") || name.ends_with("::4326"))
+    if name.contains("CRS84") {
+        return Some(true);
+    }
+    let code = name
+        .rsplit(':')
+        .next()
+        .and_then(|c| c.trim().parse::<u32>().ok());
+    match code {
+        Some(c) if name.contains("EPSG") => epsg_is_lonlat(c),
+        // Another coded system (a URN of some other authority): ask.
+        _ if name.starts_with("URN:") => None,
+        // A free-text name ("local survey grid, metres"): planar.
+        _ => Some(false),
+    }
+}
+
+/// Well-known EPSG codes: geographic 2-D systems (lon/lat on some datum)
+/// and projected families. Anything else is not guessed: a wrong guess
+/// would turn degrees into metres.
+fn epsg_is_lonlat(code: u32) -> Option<bool> {
+    const GEOGRAPHIC: [u32; 15] = [
+        4326, 4258, 4269, 4283, 7844, 4167, 4617, 4019, 4674, 4612, 6668, 4490, 4230, 4277, 4267,
+    ];
+    const PROJECTED: [u32; 10] = [3035, 3857, 3395, 27700, 2056, 28992, 5070, 3006, 2193, 3577];
+    if GEOGRAPHIC.contains(&code) {
+        Some(true)
+    } else if PROJECTED.contains(&code)
+        || (32601..=32660).contains(&code)
+        || (32701..=32760).contains(&code)
+        || (25828..=25838).contains(&code)
+        || (31466..=31469).contains(&code)
+    {
+        Some(false)
+    } else {
+        None
+    }
+}
+
+fn crs_name(crs: &serde_json::Value) -> String {
+    crs.get("properties")
+        .and_then(|p| p.get("name"))
+        .and_then(|n| n.as_str())
+        .unwrap_or("?")
+        .to_string()
 }
 
 fn read_geojson_points(
@@ -293,23 +345,25 @@ fn read_geojson_points(
         (CoordChoice::Auto, None) => {
             return Err(InputError::new(
                 path,
-                "the legacy 'crs' member cannot be read as a named system",
-                "say how to read the coordinates with --coords projected or --coords lonlat",
+                format!(
+                    "the legacy 'crs' member names `{}`, which patternproof cannot identify as lon/lat or projected",
+                    crs.as_ref().map(crs_name).unwrap_or_default()
+                ),
+                "say how to read the coordinates: --coords projected (with --unit) or --coords lonlat",
             ));
         }
     };
     let mut coords = Vec::new();
     let mut places = Vec::new();
     let mut values = Vec::new();
+    let mut skipped = 0;
     for (i, f) in features.iter().enumerate() {
         let place = format!("feature {}", i + 1);
+        // A feature without geometry (allowed by RFC 7946) has no place to
+        // analyse: skipped and counted, not fatal.
         let Some(geometry) = &f.geometry else {
-            return Err(InputError::new(
-                path,
-                "the feature has no geometry",
-                "remove it or give it a Point geometry",
-            )
-            .at(place));
+            skipped += 1;
+            continue;
         };
         let value = match field {
             None => None,
@@ -366,6 +420,7 @@ fn read_geojson_points(
         places,
         system,
         field_values: field.map(|_| values),
+        skipped_empty: skipped,
     })
 }
 

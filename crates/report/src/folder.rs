@@ -1,13 +1,18 @@
 //! The output folder appears whole or not at all.
 //!
 //! Files are written into a fresh temporary folder beside the target and
-//! renamed into place in one step. An existing target is replaced only if
-//! it looks like an earlier report (it holds `report.json`) or is empty;
-//! anything else is refused, so a typo in `--out` cannot delete a user's
-//! folder.
+//! renamed into place in one step. An existing target is replaced only
+//! with `--force` and only if it is an earlier patternproof folder (it holds
+//! the marker file [`MARKER`], or `report.json` from before the marker);
+//! an empty folder is filled; anything else is refused, so a typo in
+//! `--out` cannot delete a user's folder.
 
 use std::io;
 use std::path::{Path, PathBuf};
+
+/// Marker file written into every output folder, so that a later run can
+/// tell its own folders from a user's.
+pub const MARKER: &str = ".patternproof";
 
 /// Files to write: name and content.
 #[derive(Debug, Default)]
@@ -39,6 +44,8 @@ impl OutputFolder {
 pub enum FolderError {
     /// The target exists and is not an earlier report.
     NotAReportFolder(PathBuf),
+    /// The target is an earlier report and `--force` was not given.
+    Exists(PathBuf),
     /// A file-system error, with the path involved.
     Io(PathBuf, io::Error),
 }
@@ -51,6 +58,11 @@ impl std::fmt::Display for FolderError {
                 "{}: the folder exists and does not hold an earlier report (no report.json)\n  what to do: choose a new --out folder, or empty this one",
                 p.display()
             ),
+            FolderError::Exists(p) => write!(
+                f,
+                "{}: the folder already holds a report\n  what to do: pass --force to replace it, or choose a new --out folder",
+                p.display()
+            ),
             FolderError::Io(p, e) => write!(
                 f,
                 "{}: {e}\n  what to do: check that the folder is writable and the disk not full",
@@ -60,8 +72,19 @@ impl std::fmt::Display for FolderError {
     }
 }
 
-/// Write every file into `target` atomically.
+/// Write every file into `target` atomically; an existing report folder
+/// is left alone (see [`write_folder_with`]).
 pub fn write_folder(target: &Path, folder: &OutputFolder) -> Result<(), FolderError> {
+    write_folder_with(target, folder, false)
+}
+
+/// Write every file into `target` atomically; with `force`, an earlier
+/// report folder there is replaced.
+pub fn write_folder_with(
+    target: &Path,
+    folder: &OutputFolder,
+    force: bool,
+) -> Result<(), FolderError> {
     let parent = match target.parent() {
         Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
         _ => PathBuf::from("."),
@@ -73,14 +96,24 @@ pub fn write_folder(target: &Path, folder: &OutputFolder) -> Result<(), FolderEr
             && std::fs::read_dir(target)
                 .map(|mut d| d.next().is_none())
                 .unwrap_or(false);
-        if !is_dir || !(empty || target.join("report.json").is_file()) {
+        let ours = target.join(MARKER).is_file() || target.join("report.json").is_file();
+        if !is_dir || !(empty || ours) {
             return Err(FolderError::NotAReportFolder(target.to_path_buf()));
+        }
+        if !empty && !force {
+            return Err(FolderError::Exists(target.to_path_buf()));
         }
     }
     let staging = tempfile::Builder::new()
         .prefix(".patternproof-")
         .tempdir_in(&parent)
         .map_err(|e| FolderError::Io(parent.clone(), e))?;
+    let marker = staging.path().join(MARKER);
+    std::fs::write(
+        &marker,
+        b"written by patternproof; the folder may be replaced with --force\n",
+    )
+    .map_err(|e| FolderError::Io(marker.clone(), e))?;
     for (name, content) in &folder.files {
         let path = staging.path().join(name);
         if let Some(dir) = path.parent() {
@@ -122,7 +155,11 @@ mod tests {
         write_folder(&target, &f).unwrap();
         let mut g = OutputFolder::default();
         g.add("report.json", b"{\"v\":2}".to_vec());
-        write_folder(&target, &g).unwrap();
+        assert!(matches!(
+            write_folder(&target, &g),
+            Err(FolderError::Exists(_))
+        ));
+        write_folder_with(&target, &g, true).unwrap();
         assert_eq!(
             std::fs::read(target.join("report.json")).unwrap(),
             b"{\"v\":2}"

@@ -32,4 +32,4 @@ pub mod table;
 pub mod window_map;
 
 pub use document::{AuditReport, InputSummary, SCHEMA};
-pub use folder::{OutputFolder, write_folder};
+pub use folder::{OutputFolder, write_folder, write_folder_with};

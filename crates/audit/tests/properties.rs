@@ -1,0 +1,114 @@
+//! Properties of the sweep (proptest): the statistics do not depend on
+//! where the pattern sits, how it is turned, its scale or the order of the
+//! points; windows nest as geometry says they must.
+
+#![allow(clippy::unwrap_used, missing_docs)]
+
+use patternproof_audit::{AuditOptions, Edge, WindowKind, run_audit};
+use patternproof_core::Xy;
+use proptest::prelude::*;
+
+fn options() -> AuditOptions {
+    AuditOptions {
+        sims: 0,
+        edges: vec![Edge::None, Edge::Donnelly, Edge::Border],
+        ..AuditOptions::default()
+    }
+}
+
+/// (window kind, edge) → (R, z, p) for the rotation-invariant windows.
+fn stats(points: &[Xy]) -> Vec<(WindowKind, Edge, f64, f64, f64)> {
+    let a = run_audit(points, &[], &options(), &|| {}).unwrap();
+    a.results
+        .iter()
+        .filter_map(|r| {
+            let w = a.windows.iter().find(|w| w.id == r.window)?;
+            // The bounding box turns with the axes and the concave hull's
+            // construction is not exactly rotation-equivariant; hull and
+            // buffered hulls are.
+            if matches!(w.kind, WindowKind::Hull | WindowKind::BufferedHull) {
+                Some((w.kind, r.edge, r.ratio?, r.z?, r.p?))
+            } else {
+                None
+            }
+        })
+        .collect()
+}
+
+fn pattern() -> impl Strategy<Value = Vec<Xy>> {
+    prop::collection::vec((0.0f64..100.0, 0.0f64..60.0), 12..40)
+        .prop_map(|v| v.into_iter().map(|(x, y)| [x, y]).collect())
+}
+
+fn close(
+    a: &[(WindowKind, Edge, f64, f64, f64)],
+    b: &[(WindowKind, Edge, f64, f64, f64)],
+    tol: f64,
+) -> bool {
+    a.len() == b.len()
+        && a.iter().zip(b).all(|(x, y)| {
+            x.0 == y.0
+                && x.1 == y.1
+                && (x.2 - y.2).abs() <= tol * x.2.abs().max(1.0)
+                && (x.3 - y.3).abs() <= tol * x.3.abs().max(1.0)
+                && (x.4 - y.4).abs() <= tol.max(1e-12)
+        })
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig { cases: 24, ..ProptestConfig::default() })]
+
+    /// Translation, rotation and uniform scaling of the points (and so of
+    /// every window drawn from them) leave R, z and p unchanged: the
+    /// statistic is a ratio of lengths (Clark & Evans 1954; common
+    /// practice: a test of scale-free structure). The guard width follows
+    /// the scale because it defaults to the mean nearest-neighbour distance.
+    #[test]
+    fn invariant_under_similarity(points in pattern(), dx in -1e4f64..1e4, dy in -1e4f64..1e4,
+                                  angle in 0.0f64..std::f64::consts::TAU, scale in 0.2f64..20.0) {
+        let (s, c) = angle.sin_cos();
+        let moved: Vec<Xy> = points
+            .iter()
+            .map(|p| [scale * (c * p[0] - s * p[1]) + dx, scale * (s * p[0] + c * p[1]) + dy])
+            .collect();
+        let a = stats(&points);
+        let b = stats(&moved);
+        prop_assert!(close(&a, &b, 1e-6), "{a:?}\n{b:?}");
+    }
+
+    /// Any permutation of the points gives the same statistics.
+    #[test]
+    fn invariant_under_permutation(points in pattern(), seed in any::<u64>()) {
+        let mut shuffled = points.clone();
+        let mut state = seed | 1;
+        for i in (1..shuffled.len()).rev() {
+            state ^= state << 13; state ^= state >> 7; state ^= state << 17;
+            shuffled.swap(i, (state % (i as u64 + 1)) as usize);
+        }
+        prop_assert!(close(&stats(&points), &stats(&shuffled), 1e-9));
+    }
+
+    /// Windows: hull ≤ bbox; buffered hulls grow with the buffer and hold
+    /// the hull (area and containment).
+    #[test]
+    fn windows_nest(points in pattern()) {
+        let a = run_audit(&points, &[], &options(), &|| {}).unwrap();
+        let area = |k: WindowKind| a.windows.iter().find(|w| w.kind == k).map(|w| w.area);
+        let hull = area(WindowKind::Hull).unwrap();
+        prop_assert!(hull <= area(WindowKind::Bbox).unwrap() * (1.0 + 1e-12));
+        let mut buffered: Vec<(f64, f64)> = a
+            .windows
+            .iter()
+            .filter(|w| w.kind == WindowKind::BufferedHull)
+            .map(|w| (w.buffer.unwrap(), w.area))
+            .collect();
+        buffered.sort_by(|x, y| x.0.total_cmp(&y.0));
+        prop_assert!(!buffered.is_empty());
+        prop_assert!(buffered[0].1 > hull);
+        prop_assert!(buffered.windows(2).all(|w| w[1].1 > w[0].1));
+        for w in a.windows.iter().filter(|w| w.kind == WindowKind::BufferedHull) {
+            prop_assert_eq!(w.points_outside, 0);
+        }
+    }
+}
+
