@@ -9,3 +9,5 @@ if [ ! -x "$venv/bin/python" ]; then
 fi
 "$venv/bin/python" -m pip install --quiet --disable-pip-version-check -r "$here/requirements.txt"
 "$venv/bin/python" "$here/make_reference.py"
+"$venv/bin/python" "$here/make_scales_reference.py"
+"$venv/bin/python" "$here/make_density_reference.py"

@@ -50,26 +50,32 @@ impl Sampler {
 
     /// `n` independent uniform points.
     pub fn sample<R: Rng>(&self, n: usize, rng: &mut R) -> Vec<Xy> {
+        let mut out = Vec::with_capacity(n);
+        self.sample_into(n, rng, &mut out);
+        out
+    }
+
+    /// `n` independent uniform points into `out` (cleared first), so a
+    /// simulation loop can reuse one buffer. Draws exactly the same numbers
+    /// in the same order as [`Sampler::sample`].
+    pub fn sample_into<R: Rng>(&self, n: usize, rng: &mut R, out: &mut Vec<Xy>) {
+        out.clear();
         let total = self.area();
-        (0..n)
-            .map(|_| {
-                let pick: f64 = rng.random::<f64>() * total;
-                let k = self
-                    .cumulative
-                    .partition_point(|&c| c <= pick)
-                    .min(self.triangles.len() - 1);
-                let [a, b, c] = self.triangles[k];
-                let (mut u, mut v): (f64, f64) = (rng.random(), rng.random());
-                if u + v > 1.0 {
-                    u = 1.0 - u;
-                    v = 1.0 - v;
-                }
-                [
-                    a[0] + u * (b[0] - a[0]) + v * (c[0] - a[0]),
-                    a[1] + u * (b[1] - a[1]) + v * (c[1] - a[1]),
-                ]
-            })
-            .collect()
+        let last = self.triangles.len().saturating_sub(1);
+        out.extend((0..n).map(|_| {
+            let pick: f64 = rng.random::<f64>() * total;
+            let k = self.cumulative.partition_point(|&c| c <= pick).min(last);
+            let [a, b, c] = self.triangles[k];
+            let (mut u, mut v): (f64, f64) = (rng.random(), rng.random());
+            if u + v > 1.0 {
+                u = 1.0 - u;
+                v = 1.0 - v;
+            }
+            [
+                a[0] + u * (b[0] - a[0]) + v * (c[0] - a[0]),
+                a[1] + u * (b[1] - a[1]) + v * (c[1] - a[1]),
+            ]
+        }));
     }
 }
 
@@ -87,7 +93,7 @@ mod tests {
     #[test]
     fn triangulation_keeps_the_area_and_never_lands_in_the_hole() {
         let shape = square_with_hole();
-        let s = Sampler::new(&shape).unwrap();
+        let s = Sampler::new(&shape).expect("shape has area");
         assert!((s.area() - 84.0).abs() < 1e-9);
         let pts = s.sample(5_000, &mut stream(1, "t", 0));
         for p in &pts {
@@ -105,7 +111,7 @@ mod tests {
     /// table value, recalled from memory; scipy.stats.chi2.ppf(0.999, 3)).
     #[test]
     fn area_shares_pass_chi_square() {
-        let s = Sampler::new(&square_with_hole()).unwrap();
+        let s = Sampler::new(&square_with_hole()).expect("shape has area");
         let n = 20_000;
         let pts = s.sample(n, &mut stream(99, "chi", 0));
         // Regions: x < 2 (area 20), x > 6 (40), 2 ≤ x ≤ 6 and y < 2 (8), y > 6 (16).

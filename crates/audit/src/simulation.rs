@@ -11,8 +11,8 @@ use crate::sampling::Sampler;
 use crate::streams::stream;
 use crate::window::Outline;
 use patternproof_core::Xy;
-use patternproof_core::nearest::{mean, nearest_distances};
-use patternproof_core::toroidal::{Rect, torus_nearest_distances};
+use patternproof_core::nearest::{Distances, mean};
+use patternproof_core::toroidal::Rect;
 use rayon::prelude::*;
 
 /// What to measure on each pattern.
@@ -39,24 +39,43 @@ pub struct PatternStats {
 
 /// Measure one pattern; `None` for fewer than two points.
 pub fn measure(points: &[Xy], m: Measure<'_>) -> Option<PatternStats> {
-    let d = nearest_distances(points)?;
-    let mean_nn = mean(&d)?;
+    measure_with(points, m, &mut Distances::new())
+}
+
+/// [`measure`] with the distance buffers supplied by the caller, so a loop
+/// over many patterns reuses them instead of allocating per pattern.
+fn measure_with(points: &[Xy], m: Measure<'_>, ws: &mut Distances) -> Option<PatternStats> {
+    // Plane and torus distances from one bucket grid over the pattern.
+    if !ws.measure(points, m.rectangle) {
+        return None;
+    }
+    let d = &ws.plane;
+    let mean_nn = mean(d)?;
     let border = match (m.outline, m.guard) {
         (Some(outline), Some(w)) => {
-            let focal: Vec<usize> = (0..points.len())
-                .filter(|&i| outline.clear_of(points[i], w))
-                .collect();
             // A focal point's neighbour may be any point, so its distance is
-            // the one already found over the whole pattern.
-            let fd: Vec<f64> = focal.iter().map(|&i| d[i]).collect();
-            Some((mean(&fd).unwrap_or(f64::NAN), focal.len()))
+            // the one already found over the whole pattern. Summed in input
+            // order, exactly as `mean` sums a slice.
+            let mut focal = 0usize;
+            let sum: f64 = points
+                .iter()
+                .zip(d)
+                .filter(|(p, _)| outline.clear_of(**p, w))
+                .map(|(_, &di)| {
+                    focal += 1;
+                    di
+                })
+                .sum();
+            let mean_focal = if focal == 0 {
+                f64::NAN
+            } else {
+                sum / focal as f64
+            };
+            Some((mean_focal, focal))
         }
         _ => None,
     };
-    let torus_mean = m
-        .rectangle
-        .and_then(|r| torus_nearest_distances(points, r))
-        .and_then(|t| mean(&t));
+    let torus_mean = mean(&ws.torus);
     Some(PatternStats {
         mean_nn,
         border,
@@ -66,7 +85,9 @@ pub fn measure(points: &[Xy], m: Measure<'_>) -> Option<PatternStats> {
 
 /// `sims` CSR patterns of `n` points in the sampler's window, measured.
 /// Stream `k` of label `label` drives simulation `k`, so the result is the
-/// same for any thread count. `tick` is called once per simulation.
+/// same for any thread count. `tick` is called once per simulation. Each
+/// worker keeps one point buffer and one set of distance buffers for all
+/// the patterns it draws (`map_init`), so nothing is allocated per pattern.
 pub fn simulate(
     sampler: &Sampler,
     n: usize,
@@ -78,13 +99,17 @@ pub fn simulate(
 ) -> Vec<PatternStats> {
     (0..sims)
         .into_par_iter()
-        .filter_map(|k| {
-            let mut rng = stream(seed, label, k as u64);
-            let pts = sampler.sample(n, &mut rng);
-            let s = measure(&pts, m);
-            tick();
-            s
-        })
+        .map_init(
+            || (Vec::with_capacity(n), Distances::new()),
+            |(pts, ws), k| {
+                let mut rng = stream(seed, label, k as u64);
+                sampler.sample_into(n, &mut rng, pts);
+                let s = measure_with(pts, m, ws);
+                tick();
+                s
+            },
+        )
+        .flatten()
         .collect()
 }
 
@@ -96,7 +121,7 @@ mod tests {
     #[test]
     fn identical_for_one_and_two_threads() {
         let sq = crate::test_shapes::rectangle(50.0, 20.0);
-        let sampler = Sampler::new(&sq).unwrap();
+        let sampler = Sampler::new(&sq).expect("rectangle has area");
         let m = Measure {
             outline: Some(&Outline::new(&sq, Some(2.0))),
             guard: Some(2.0),
@@ -109,7 +134,7 @@ mod tests {
             rayon::ThreadPoolBuilder::new()
                 .num_threads(threads)
                 .build()
-                .unwrap()
+                .expect("thread pool")
                 .install(|| simulate(&sampler, 40, 64, 11, "bbox", m, &|| {}))
         };
         assert_eq!(run(1), run(2));
@@ -129,7 +154,7 @@ mod csr_sanity {
     #[test]
     fn mean_ratio_on_a_torus_is_one() {
         let sq = crate::test_shapes::rectangle(30.0, 20.0);
-        let sampler = Sampler::new(&sq).unwrap();
+        let sampler = Sampler::new(&sq).expect("rectangle has area");
         let m = Measure {
             outline: None,
             guard: None,
@@ -143,7 +168,7 @@ mod csr_sanity {
         let expected = 0.5 * (600.0 / n as f64).sqrt();
         let r: Vec<f64> = stats
             .iter()
-            .map(|s| s.torus_mean.unwrap() / expected)
+            .map(|s| s.torus_mean.expect("rectangle gives torus distances") / expected)
             .collect();
         let k = r.len() as f64;
         let mean = r.iter().sum::<f64>() / k;

@@ -388,7 +388,7 @@ mod tests {
         let bbox = &w[0];
         assert_eq!(bbox.id, "bbox");
         assert!((bbox.area - 64.0).abs() < 1e-12);
-        assert!((bbox.perimeter.unwrap() - 32.0).abs() < 1e-12);
+        assert!((bbox.perimeter.expect("bbox has a perimeter") - 32.0).abs() < 1e-12);
         assert_eq!(bbox.points_outside, 0);
         assert!(bbox.rectangle.is_some());
         let hull = &w[1];
@@ -409,7 +409,7 @@ mod tests {
         let pts = grid(5, 2.0);
         let (w, _) = build_windows(&pts, 2.0, &[], &WindowOptions::default());
         for win in w.iter().filter(|x| x.kind == WindowKind::BufferedHull) {
-            let d = win.buffer.unwrap();
+            let d = win.buffer.expect("buffered hulls have a buffer");
             let steiner = 64.0 + 32.0 * d + std::f64::consts::PI * d * d;
             let slack = std::f64::consts::PI * d * d * (1.0 - 0.4f64.sin() / 0.4) + 1e-9;
             assert!(
@@ -437,6 +437,49 @@ mod tests {
         let (w, notes) = build_windows(&flat, 1.0, &[], &WindowOptions::default());
         assert!(w.is_empty());
         assert_eq!(notes.len(), 2);
+    }
+
+    /// The guard-zone answers with the cell grid (and its per-cell
+    /// segment lists) agree with geo's point-to-ring distance, the outside
+    /// reference, on 3 000 seeded points per width around a 60-sided
+    /// polygon with a 7-sided hole, for guard widths from about a tenth of
+    /// the shape down to a hundredth; the grid-free tree path is checked
+    /// too.
+    #[test]
+    fn guard_grid_agrees_with_geo_distance_on_a_many_sided_polygon() {
+        let ring = |n: usize, r: f64, c: [f64; 2], wobble: f64| {
+            let pts: Vec<(f64, f64)> = (0..=n)
+                .map(|k| {
+                    let t = std::f64::consts::TAU * (k % n) as f64 / n as f64;
+                    let rr = r * (1.0 + wobble * (3.0 * t).sin());
+                    (c[0] + rr * t.cos(), c[1] + rr * t.sin())
+                })
+                .collect();
+            LineString::from(pts)
+        };
+        let shape = MultiPolygon::new(vec![Polygon::new(
+            ring(60, 50.0, [0.0, 0.0], 0.2),
+            vec![ring(7, 10.0, [5.0, -3.0], 0.0)],
+        )]);
+        // xorshift64*: a tiny self-contained generator for test data only.
+        let mut state: u64 = 0x2545_F491_4F6C_DD1D;
+        let mut unit = || {
+            state ^= state >> 12;
+            state ^= state << 25;
+            state ^= state >> 27;
+            (state.wrapping_mul(0x2545_F491_4F6C_DD1D) >> 11) as f64 / (1u64 << 53) as f64
+        };
+        let plain = Outline::new(&shape, None);
+        for w in [0.6, 2.5, 9.0] {
+            let o = Outline::new(&shape, Some(w));
+            assert!(o.grid.is_some());
+            for _ in 0..3_000 {
+                let p = [unit() * 130.0 - 65.0, unit() * 130.0 - 65.0];
+                let want = distance_to_outline(&shape, p) >= w;
+                assert_eq!(o.clear_of(p, w), want, "{p:?} {w}");
+                assert_eq!(plain.clear_of(p, w), want, "{p:?} {w} (tree)");
+            }
+        }
     }
 
     #[test]
@@ -472,8 +515,11 @@ mod tests {
 /// where the answer is the same for the whole cell. Distance to the outline
 /// changes by at most the distance moved, so a cell whose centre is at
 /// least w + h from the outline (h its half-diagonal) is clear throughout,
-/// and one whose centre is closer than w − h is blocked throughout; only
-/// the cells in between fall back to the tree. The answers are exact.
+/// and one whose centre is closer than w − h is blocked throughout. Each
+/// cell in between keeps the few segments within w + 1.5·h of its centre
+/// (every segment that can come within w of a point of the cell), and a
+/// point there is tested against those alone, with the same segment
+/// distance the tree would compute. The answers are exact.
 #[derive(Debug, Clone)]
 pub struct Outline {
     tree: rstar::RTree<rstar::primitives::Line<Xy>>,
@@ -487,8 +533,12 @@ struct GuardGrid {
     cell: f64,
     nx: usize,
     ny: usize,
-    /// 0 = ask the tree, 1 = clear, 2 = blocked.
+    /// 0 = test the cell's segments, 1 = clear, 2 = blocked.
     state: Vec<u8>,
+    /// For cell c, its candidate segments are
+    /// `segments[near[c]..near[c + 1]]` (empty unless state is 0).
+    near: Vec<usize>,
+    segments: Vec<rstar::primitives::Line<Xy>>,
 }
 
 /// Largest grid the guard test builds (cells).
@@ -523,6 +573,12 @@ impl Outline {
                 let h = cell * std::f64::consts::FRAC_1_SQRT_2;
                 let origin = [r.min().x, r.min().y];
                 let mut state = Vec::with_capacity(nx * ny);
+                let mut near = Vec::with_capacity(nx * ny + 1);
+                let mut segments = Vec::new();
+                near.push(0);
+                // Any point of the cell is within h of its centre (1.5·h
+                // leaves room for rounding at the cell walls).
+                let reach = w + 1.5 * h;
                 for j in 0..ny {
                     for i in 0..nx {
                         let c = [
@@ -530,13 +586,23 @@ impl Outline {
                             origin[1] + (j as f64 + 0.5) * cell,
                         ];
                         let d = outline.distance(c);
-                        state.push(if d - h >= w {
+                        let s = if d - h >= w {
                             1
                         } else if d + h < w {
                             2
                         } else {
                             0
-                        });
+                        };
+                        if s == 0 {
+                            segments.extend(
+                                outline
+                                    .tree
+                                    .locate_within_distance(c, reach * reach)
+                                    .copied(),
+                            );
+                        }
+                        state.push(s);
+                        near.push(segments.len());
                     }
                 }
                 outline.grid = Some(GuardGrid {
@@ -546,6 +612,8 @@ impl Outline {
                     nx,
                     ny,
                     state,
+                    near,
+                    segments,
                 });
             }
         }
@@ -561,22 +629,28 @@ impl Outline {
 
     /// True when `p` is at least `w` from every edge.
     pub fn clear_of(&self, p: Xy, w: f64) -> bool {
+        use rstar::PointDistance;
         if let Some(g) = &self.grid
             && g.w == w
         {
-            let fx = ((p[0] - g.origin[0]) / g.cell).floor();
-            let fy = ((p[1] - g.origin[1]) / g.cell).floor();
-            if fx >= 0.0 && fy >= 0.0 && (fx as usize) < g.nx && (fy as usize) < g.ny {
-                match g.state[fy as usize * g.nx + fx as usize] {
-                    1 => return true,
-                    2 => return false,
-                    _ => {}
-                }
+            // Cell (floor(fx), floor(fy)); for fx ≥ 0 truncation is the
+            // floor, and floor(fx) < nx exactly when fx < nx.
+            let fx = (p[0] - g.origin[0]) / g.cell;
+            let fy = (p[1] - g.origin[1]) / g.cell;
+            if fx >= 0.0 && fy >= 0.0 && fx < g.nx as f64 && fy < g.ny as f64 {
+                let c = fy as usize * g.nx + fx as usize;
+                return match g.state[c] {
+                    1 => true,
+                    2 => false,
+                    // Strictly closer than w disqualifies.
+                    _ => !g.segments[g.near[c]..g.near[c + 1]]
+                        .iter()
+                        .any(|line| line.distance_2(&p) < w * w),
+                };
             }
         }
         // Strictly closer than w disqualifies; the query is inclusive, so
         // a segment at exactly w is filtered back in.
-        use rstar::PointDistance;
         !self
             .tree
             .locate_within_distance(p, w * w)

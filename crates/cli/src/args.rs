@@ -29,6 +29,12 @@ pub enum Command {
     /// Apply one protocol to many sites: per-site rows, adjusted p-values,
     /// window-sensitivity flags and a report folder per site.
     Sites(crate::sites_cmd::SitesArgs),
+    /// Kernel density audit: how much the surface, its isopleth areas and its
+    /// main hotspot depend on kernel, bandwidth and edge handling.
+    Density(crate::density_cmd::DensityArgs),
+    /// Ripley's K and L(r) − r in every study-area window under border,
+    /// isotropic and translation edge correction, with a global envelope test.
+    Scales(crate::scales_cmd::ScalesArgs),
 }
 
 /// How coordinates are to be read.

@@ -7,10 +7,12 @@
 
 mod args;
 mod audit_cmd;
+mod density_cmd;
 mod fail;
 mod progress;
 mod protocol_cmd;
 mod recheck_cmd;
+mod scales_cmd;
 mod sites_cmd;
 
 use clap::Parser;
@@ -23,6 +25,8 @@ fn main() -> ExitCode {
         args::Command::Recheck(a) => recheck_cmd::run(&a),
         args::Command::Protocol(a) => protocol_cmd::run(&a),
         args::Command::Sites(a) => sites_cmd::run(&a),
+        args::Command::Scales(a) => scales_cmd::run(&a),
+        args::Command::Density(a) => density_cmd::run(&a),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,

@@ -4,7 +4,8 @@
 //!
 //! | module | what it computes |
 //! |---|---|
-//! | [`nearest`] | exact nearest-neighbour distances (R*-tree from `rstar`) |
+//! | [`nearest`] | exact nearest-neighbour distances (grid buckets, R*-tree from `rstar` as fallback) |
+//! | [`grid_nearest`] | the uniform bucket grid behind them, plane and torus |
 //! | [`clark_evans`] | the Clark & Evans (1954) ratio, its standard error, z and p |
 //! | [`normal`] | normal tail probabilities and critical values (`statrs`) |
 //! | [`call`] | the verdict of one row at a chosen α |
@@ -21,6 +22,7 @@ pub mod call;
 pub mod clark_evans;
 pub mod donnelly;
 pub mod flip;
+pub mod grid_nearest;
 pub mod guard_zone;
 pub mod monte_carlo;
 pub mod nearest;

@@ -1,16 +1,23 @@
 //! Exact nearest-neighbour distances.
 //!
-//! Each point's distance to its closest *other* point, found with an
-//! R*-tree (`rstar`). No approximation: the tree returns neighbours in
-//! exact order of distance. Duplicate points are each other's nearest
-//! neighbour at distance 0, which is what the Clark–Evans statistic
-//! expects of them (they are counted and reported by the caller).
+//! Each point's distance to its closest *other* point. No approximation.
+//! Two engines give the same bits: a uniform bucket grid
+//! ([`crate::grid_nearest`]), used whenever the points are spread well
+//! enough for it to pay, and an R*-tree (`rstar`), which returns
+//! neighbours in exact order of distance and takes over for heavily
+//! clustered or non-finite data. Both take the square root of the same
+//! `dx·dx + dy·dy`. Duplicate points are each other's nearest neighbour at
+//! distance 0, which is what the Clark–Evans statistic expects of them
+//! (they are counted and reported by the caller).
 //!
-//! Complexity: O(n log n) to build, about O(log n) per query. Queries run
-//! in parallel with `rayon`; each result lands at its own index, so the
-//! output does not depend on the thread count.
+//! Complexity: O(n) to bucket and about O(1) per query on the grid;
+//! O(n log n) to build and about O(log n) per query on the tree. Large
+//! patterns are queried in parallel with `rayon`; each result lands at its
+//! own index, so the output does not depend on the thread count.
 
 use crate::Xy;
+use crate::grid_nearest::Grid;
+use crate::toroidal::{Rect, torus_tree_distances};
 use rayon::prelude::*;
 use rstar::RTree;
 use rstar::primitives::GeomWithData;
@@ -29,6 +36,15 @@ pub const PARALLEL_FROM: usize = 4096;
 /// assert_eq!(d, vec![5.0, 1.0, 1.0]);
 /// ```
 pub fn nearest_distances(points: &[Xy]) -> Option<Vec<f64>> {
+    let mut d = Distances::new();
+    d.measure(points, None)
+        .then(|| std::mem::take(&mut d.plane))
+}
+
+/// The R*-tree engine alone: same answers as [`nearest_distances`], kept
+/// public as the fallback and so that tests and benchmarks can compare the
+/// two engines. `None` for fewer than two points.
+pub fn tree_nearest_distances(points: &[Xy]) -> Option<Vec<f64>> {
     if points.len() < 2 {
         return None;
     }
@@ -48,16 +64,53 @@ pub fn nearest_distances(points: &[Xy]) -> Option<Vec<f64>> {
 /// points. Used by the guard-zone (border) method, where only points far
 /// enough from the boundary are focal but any point may be their neighbour.
 pub fn nearest_distances_of(points: &[Xy], focal: &[usize]) -> Option<Vec<f64>> {
-    if points.len() < 2 {
-        return None;
+    let all = nearest_distances(points)?;
+    focal.iter().map(|&i| all.get(i).copied()).collect()
+}
+
+/// Plane (and optionally torus) nearest-neighbour distances of one pattern
+/// after another, with the buffers kept between patterns: a simulation
+/// loop that measures thousands of small patterns then allocates nothing
+/// per pattern, and the plane and torus searches share one grid.
+#[derive(Debug, Clone, Default)]
+pub struct Distances {
+    grid: Grid,
+    /// Plane distances of the last pattern measured, input order.
+    pub plane: Vec<f64>,
+    /// Torus distances of the last pattern, input order; empty when no
+    /// usable rectangle was given.
+    pub torus: Vec<f64>,
+}
+
+impl Distances {
+    /// Empty buffers.
+    pub fn new() -> Self {
+        Self::default()
     }
-    let tree = build_tree(points);
-    let query = |&i: &usize| nearest_other(&tree, i, points[i]);
-    Some(if focal.len() < PARALLEL_FROM {
-        focal.iter().map(query).collect()
-    } else {
-        focal.par_iter().map(query).collect()
-    })
+
+    /// Measure `points`: plane distances into `plane`, and with `torus` =
+    /// Some(rectangle) of positive width and height, torus distances into
+    /// `torus` (otherwise `torus` is left empty). Returns `false`, with both
+    /// empty, for fewer than two points. Same values as
+    /// [`nearest_distances`] and [`crate::toroidal::torus_nearest_distances`].
+    pub fn measure(&mut self, points: &[Xy], torus: Option<Rect>) -> bool {
+        self.plane.clear();
+        self.torus.clear();
+        if points.len() < 2 {
+            return false;
+        }
+        let torus = torus.filter(|r| r.max[0] - r.min[0] > 0.0 && r.max[1] - r.min[1] > 0.0);
+        let on_grid = self.grid.rebuild(points, torus);
+        if !(on_grid && self.grid.plane_distances_into(points, &mut self.plane)) {
+            self.plane = tree_nearest_distances(points).unwrap_or_default();
+        }
+        if let Some(r) = torus
+            && !(on_grid && self.grid.torus_distances_into(points, &mut self.torus))
+        {
+            self.torus = torus_tree_distances(points, r).unwrap_or_default();
+        }
+        true
+    }
 }
 
 /// Arithmetic mean of a slice; `None` when it is empty.
@@ -104,7 +157,7 @@ mod tests {
             (state.wrapping_mul(0x2545_F491_4F6C_DD1D) >> 11) as f64 / (1u64 << 53) as f64
         };
         let pts: Vec<Xy> = (0..500).map(|_| [next() * 100.0, next() * 50.0]).collect();
-        let fast = nearest_distances(&pts).unwrap();
+        let fast = nearest_distances(&pts).expect("500 points");
         for (i, p) in pts.iter().enumerate() {
             let brute = pts
                 .iter()
@@ -116,9 +169,185 @@ mod tests {
         }
     }
 
+    /// xorshift64*: a tiny self-contained generator for test data only.
+    struct Gen(u64);
+    impl Gen {
+        fn unit(&mut self) -> f64 {
+            self.0 ^= self.0 >> 12;
+            self.0 ^= self.0 << 25;
+            self.0 ^= self.0 >> 27;
+            (self.0.wrapping_mul(0x2545_F491_4F6C_DD1D) >> 11) as f64 / (1u64 << 53) as f64
+        }
+        fn below(&mut self, k: usize) -> usize {
+            ((self.unit() * k as f64) as usize).min(k - 1)
+        }
+    }
+
+    /// One random pattern of a random kind: uniform, clustered (spread from
+    /// 1e-7 to 1 of the extent), every point duplicated, collinear at a
+    /// random angle, an integer lattice with ties, or far from the origin.
+    fn random_pattern(g: &mut Gen, max_n: usize) -> Vec<Xy> {
+        let n = 2 + g.below(max_n - 1);
+        let scale = [1e-6, 1.0, 250.0, 1e5][g.below(4)];
+        match g.below(6) {
+            0 => (0..n)
+                .map(|_| [g.unit() * scale, g.unit() * scale * 0.4])
+                .collect(),
+            1 => {
+                let spread = scale * 10f64.powf(-7.0 * g.unit());
+                let parents: Vec<Xy> = (0..1 + g.below(8))
+                    .map(|_| [g.unit() * scale, g.unit() * scale])
+                    .collect();
+                (0..n)
+                    .map(|k| {
+                        let c = parents[k % parents.len()];
+                        [c[0] + spread * g.unit(), c[1] + spread * g.unit()]
+                    })
+                    .collect()
+            }
+            2 => {
+                let half: Vec<Xy> = (0..n.div_ceil(2))
+                    .map(|_| [g.unit() * scale, g.unit() * scale])
+                    .collect();
+                half.iter().chain(half.iter()).copied().collect()
+            }
+            3 => {
+                let (c, s) = [(1.0, 0.0), (0.0, 1.0), (0.6, 0.8), (0.999, 1e-9)][g.below(4)];
+                (0..n)
+                    .map(|_| {
+                        let t = g.unit() * scale;
+                        [c * t - 3.0, s * t + 2.0]
+                    })
+                    .collect()
+            }
+            4 => {
+                let k = 1 + g.below(20);
+                (0..n).map(|i| [(i % k) as f64, (i / k) as f64]).collect()
+            }
+            _ => (0..n)
+                .map(|_| [6.1e6 + g.unit() * scale, -4.5e5 + g.unit() * scale])
+                .collect(),
+        }
+    }
+
+    /// Brute-force oracle: the O(n²) scan of every pair (the definition of
+    /// the nearest-neighbour distance), squares summed as dx·dx + dy·dy.
+    fn brute(points: &[Xy]) -> Vec<f64> {
+        points
+            .iter()
+            .enumerate()
+            .map(|(i, p)| {
+                let mut best = f64::INFINITY;
+                for (j, q) in points.iter().enumerate() {
+                    if i != j {
+                        let (dx, dy) = (q[0] - p[0], q[1] - p[1]);
+                        best = best.min(dx * dx + dy * dy);
+                    }
+                }
+                best.sqrt()
+            })
+            .collect()
+    }
+
+    /// Property test over 400 seeded random patterns (2–300 points) of every awkward kind:
+    /// the grid-backed [`nearest_distances`], the R*-tree alone and the
+    /// brute-force scan agree bit for bit, and the grid is actually used
+    /// for most of them (so the comparison is not only tree against tree).
+    #[test]
+    fn grid_tree_and_brute_force_agree_bit_for_bit() {
+        let mut g = Gen(0xD1B5_4A32_D192_ED03);
+        let mut on_grid = 0;
+        for case in 0..400 {
+            let pts = random_pattern(&mut g, 300);
+            let want = brute(&pts);
+            assert_eq!(
+                nearest_distances(&pts).expect("at least two points"),
+                want,
+                "case {case}"
+            );
+            assert_eq!(
+                tree_nearest_distances(&pts).expect("at least two points"),
+                want,
+                "case {case}"
+            );
+            if Grid::new().rebuild(&pts, None) {
+                on_grid += 1;
+            }
+        }
+        assert!(on_grid > 300, "grid used for {on_grid} of 400");
+    }
+
+    /// The same property on a torus (200 patterns of 2–150 points): grid with wrap-around, R*-tree with
+    /// nine shifted queries, and the brute-force scan of every pair against
+    /// the nine shifted copies (the definition of the flat torus distance).
+    #[test]
+    fn torus_grid_tree_and_brute_force_agree_bit_for_bit() {
+        let mut g = Gen(0x8CB9_2BA7_2F3D_8DD7);
+        let mut wrapped = 0;
+        for case in 0..200 {
+            let raw = random_pattern(&mut g, 150);
+            // The rectangle: the points' bounding box, sometimes enlarged.
+            let mut lo = [f64::INFINITY; 2];
+            let mut hi = [f64::NEG_INFINITY; 2];
+            for p in &raw {
+                for a in 0..2 {
+                    lo[a] = lo[a].min(p[a]);
+                    hi[a] = hi[a].max(p[a]);
+                }
+            }
+            let grow = if g.unit() < 0.5 { 0.0 } else { g.unit() };
+            let r = Rect {
+                min: [lo[0] - grow, lo[1] - grow],
+                max: [hi[0] + grow, hi[1] + grow],
+            };
+            let (w, h) = (r.max[0] - r.min[0], r.max[1] - r.min[1]);
+            if !(w > 0.0 && h > 0.0) {
+                assert!(crate::toroidal::torus_nearest_distances(&raw, r).is_none());
+                continue;
+            }
+            let want: Vec<f64> = raw
+                .iter()
+                .enumerate()
+                .map(|(i, p)| {
+                    let mut best = f64::INFINITY;
+                    for (j, q) in raw.iter().enumerate() {
+                        if i == j {
+                            continue;
+                        }
+                        for sx in [-w, 0.0, w] {
+                            for sy in [-h, 0.0, h] {
+                                let (dx, dy) = (q[0] - (p[0] + sx), q[1] - (p[1] + sy));
+                                best = best.min(dx * dx + dy * dy);
+                            }
+                        }
+                    }
+                    best.sqrt()
+                })
+                .collect();
+            let grid =
+                crate::toroidal::torus_nearest_distances(&raw, r).expect("at least two points");
+            assert_eq!(grid, want, "case {case}");
+            assert_eq!(
+                torus_tree_distances(&raw, r).expect("at least two points"),
+                want,
+                "case {case}"
+            );
+            // Plane and torus from one shared workspace.
+            let mut ws = Distances::new();
+            assert!(ws.measure(&raw, Some(r)));
+            assert_eq!(ws.torus, want, "case {case}");
+            assert_eq!(ws.plane, brute(&raw), "case {case}");
+            let mut grid = Grid::new();
+            if grid.rebuild(&raw, Some(r)) && grid.wraps() {
+                wrapped += 1;
+            }
+        }
+        assert!(wrapped > 120, "torus grid used for {wrapped} of 200");
+    }
+
     #[test]
     fn duplicates_are_at_distance_zero() {
-        let d = nearest_distances(&[[1.0, 1.0], [1.0, 1.0], [9.0, 9.0]]).unwrap();
+        let d = nearest_distances(&[[1.0, 1.0], [1.0, 1.0], [9.0, 9.0]]).expect("three points");
         assert_eq!(d[0], 0.0);
         assert_eq!(d[1], 0.0);
         assert!((d[2] - (128.0f64).sqrt()).abs() < 1e-12);
@@ -133,7 +362,7 @@ mod tests {
     #[test]
     fn focal_subset_uses_all_points_as_neighbours() {
         let pts = [[0.0, 0.0], [1.0, 0.0], [10.0, 0.0]];
-        let d = nearest_distances_of(&pts, &[2]).unwrap();
+        let d = nearest_distances_of(&pts, &[2]).expect("three points");
         assert_eq!(d, vec![9.0]);
     }
 }

@@ -81,6 +81,7 @@ fn write_all(out: &Path) -> std::io::Result<()> {
         out.display()
     );
     write_plots(out)?;
+    write_marsh_hare_track(out)?;
     Ok(())
 }
 
@@ -288,4 +289,59 @@ fn burrows(region: &Polygon<f64>, seed: u64) -> Vec<[f64; 2]> {
         out.push([round2(p[0]), round2(p[1])]);
     }
     out
+}
+
+/// An invented telemetry track of a fictional marsh hare on a local grid in
+/// metres: 600 fixes of a seeded correlated random walk that keeps returning
+/// to two core areas (the western one used about twice as much), for
+/// `patternproof density`.
+fn write_marsh_hare_track(out: &Path) -> std::io::Result<()> {
+    let mut rng = ChaCha8Rng::seed_from_u64(SEED + 8);
+    let mut normal = move || {
+        let u: f64 = rng.random::<f64>().max(1e-12);
+        let v: f64 = rng.random::<f64>();
+        (
+            (-2.0 * u.ln()).sqrt() * (std::f64::consts::TAU * v).cos(),
+            v,
+        )
+    };
+    let cores: [[f64; 2]; 2] = [[420.0, 610.0], [1480.0, 930.0]];
+    let (mut x, mut y) = (cores[0][0], cores[0][1]);
+    let mut heading: f64 = 0.3;
+    let mut core = 0usize;
+    let mut csv = String::from("fix,x,y\n");
+    for fix in 1..=600 {
+        // Switch core now and then: 1 in 100 fixes from the west, 1 in 50 from the east.
+        let (_, u) = normal();
+        if (core == 0 && u < 0.01) || (core == 1 && u < 0.02) {
+            core = 1 - core;
+        }
+        let (z, _) = normal();
+        heading += 0.7 * z;
+        let (cx, cy) = (cores[core][0], cores[core][1]);
+        let d = ((cx - x).powi(2) + (cy - y).powi(2)).sqrt();
+        if d > 120.0 {
+            // Turn part of the way towards the core.
+            let want = (cy - y).atan2(cx - x);
+            let mut diff = want - heading;
+            while diff > std::f64::consts::PI {
+                diff -= std::f64::consts::TAU;
+            }
+            while diff < -std::f64::consts::PI {
+                diff += std::f64::consts::TAU;
+            }
+            heading += 0.5 * diff;
+        }
+        let (z2, _) = normal();
+        let step = if d > 300.0 { 90.0 } else { 30.0 } * (1.0 + 0.4 * z2).max(0.1);
+        x += step * heading.cos();
+        y += step * heading.sin();
+        let _ = writeln!(csv, "{fix},{:.1},{:.1}", x, y);
+    }
+    std::fs::write(out.join("marsh-hare-track.csv"), csv)?;
+    println!(
+        "wrote 600 fixes of the invented marsh hare track to {}",
+        out.display()
+    );
+    Ok(())
 }

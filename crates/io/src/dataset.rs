@@ -58,7 +58,7 @@ pub struct Dataset {
     /// Planar coordinates, file order (duplicates dropped if asked).
     pub points: Vec<Xy>,
     /// Where each point came from.
-    pub places: Vec<String>,
+    pub places: Vec<crate::points::Place>,
     /// Points read from the file.
     pub n_read: usize,
     /// Points that repeat an earlier point exactly.
@@ -113,7 +113,7 @@ impl Dataset {
                             format!("({}, {}) is outside the lon/lat range (lon −180..180, lat −90..90)", c[0], c[1]),
                             "if these are planar coordinates (metres on a local grid, UTM…), pass --coords projected",
                         )
-                        .at(place.clone()));
+                        .at(place.to_string()));
                     }
                 }
                 let projection = centred_projection(&raw.coords).ok_or_else(|| {
@@ -126,7 +126,7 @@ impl Dataset {
                 let mut planar = Vec::with_capacity(n_read);
                 for (c, place) in raw.coords.iter().zip(&raw.places) {
                     planar.push(projection.forward(c[0], c[1]).ok_or_else(|| {
-                        InputError::new(points_file, format!("cannot project ({}, {})", c[0], c[1]), "check the coordinate; points near the antipode of the data centre cannot be projected").at(place.clone())
+                        InputError::new(points_file, format!("cannot project ({}, {})", c[0], c[1]), "check the coordinate; points near the antipode of the data centre cannot be projected").at(place.to_string())
                     })?);
                 }
                 if options.unit != "m" {
@@ -161,7 +161,7 @@ impl Dataset {
             });
         }
         let points: Vec<Xy> = keep.iter().map(|&i| points[i]).collect();
-        let places: Vec<String> = keep.iter().map(|&i| raw.places[i].clone()).collect();
+        let places: Vec<crate::points::Place> = keep.iter().map(|&i| raw.places[i]).collect();
         let field_values = raw
             .field_values
             .map(|v| keep.iter().map(|&i| v[i].clone()).collect());

@@ -12,13 +12,76 @@ use crate::error::{InputError, read_text};
 use geojson::{GeoJson, GeometryValue};
 use std::path::Path;
 
+/// Where a point came from, for messages: a CSV line or a GeoJSON
+/// feature. Eight bytes, not a string, so ten million points stay cheap.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Place {
+    /// A CSV line (1 = header).
+    Line(u64),
+    /// A GeoJSON feature (1-based).
+    Feature(u32),
+}
+
+impl std::fmt::Display for Place {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            Place::Line(n) => write!(f, "line {n}"),
+            Place::Feature(n) => write!(f, "feature {n}"),
+        }
+    }
+}
+
+/// Longest CSV line read (bytes). A longer one is refused before it is
+/// held in memory: no coordinate row is anywhere near this long.
+pub const MAX_LINE: usize = 1 << 20;
+
+/// A reader that fails once a line grows beyond [`MAX_LINE`] bytes, so a
+/// file with a gigabyte-long line is refused while streaming.
+struct LineLimit<R> {
+    inner: R,
+    run: usize,
+    line: u64,
+}
+
+impl<R: std::io::Read> std::io::Read for LineLimit<R> {
+    fn read(&mut self, buf: &mut [u8]) -> std::io::Result<usize> {
+        let n = self.inner.read(buf)?;
+        for &b in &buf[..n] {
+            if b == b'\n' {
+                self.run = 0;
+                self.line += 1;
+            } else {
+                self.run += 1;
+                if self.run > MAX_LINE {
+                    return Err(std::io::Error::new(
+                        std::io::ErrorKind::InvalidData,
+                        LineTooLong(self.line + 1),
+                    ));
+                }
+            }
+        }
+        Ok(n)
+    }
+}
+
+#[derive(Debug)]
+struct LineTooLong(u64);
+
+impl std::fmt::Display for LineTooLong {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(f, "line {} is longer than {} bytes", self.0, MAX_LINE)
+    }
+}
+
+impl std::error::Error for LineTooLong {}
+
 /// Points as read, before projection.
 #[derive(Debug, Clone, PartialEq)]
 pub struct RawPoints {
     /// `[x, y]` or `[lon, lat]` in file order.
     pub coords: Vec<[f64; 2]>,
     /// Where each point came from, for messages.
-    pub places: Vec<String>,
+    pub places: Vec<Place>,
     /// How the coordinates are to be read.
     pub system: CoordSystem,
     /// One value per point of the requested attribute field, when asked for.
@@ -39,8 +102,25 @@ pub fn read_points(
     choice: CoordChoice,
     field: Option<&str>,
 ) -> Result<RawPoints, InputError> {
-    let text = read_text(path)?;
-    if text.trim().is_empty() {
+    use std::io::Read;
+    let cannot = |e: std::io::Error| {
+        InputError::new(
+            path,
+            format!("cannot read the file ({e})"),
+            "check the path and that the file is readable",
+        )
+    };
+    let mut file = std::fs::File::open(path).map_err(cannot)?;
+    // The first 64 KiB decide the format; a CSV is then streamed, never
+    // held whole in memory.
+    let mut head = Vec::new();
+    (&mut file)
+        .take(64 * 1024)
+        .read_to_end(&mut head)
+        .map_err(cannot)?;
+    let full = head.len() < 64 * 1024;
+    let start = String::from_utf8_lossy(&head);
+    if full && start.trim().is_empty() {
         return Err(InputError::new(
             path,
             "the file is empty",
@@ -52,10 +132,17 @@ pub fn read_points(
         .and_then(|e| e.to_str())
         .unwrap_or("")
         .to_ascii_lowercase();
-    if ext == "geojson" || ext == "json" || text.trim_start().starts_with('{') {
+    if ext == "geojson" || ext == "json" || start.trim_start().starts_with('{') {
+        let text = read_text(path)?;
         read_geojson_points(path, &text, choice, field)
     } else {
-        read_csv_points(path, &text, choice, field)
+        let delimiter = sniff_delimiter(&start);
+        let stream = LineLimit {
+            inner: std::io::Cursor::new(head).chain(file),
+            run: 0,
+            line: 0,
+        };
+        read_csv_points(path, stream, delimiter, choice, field)
     }
 }
 
@@ -78,27 +165,21 @@ fn find(headers: &[String], names: &[&str]) -> Option<usize> {
     headers.iter().position(|h| names.contains(&h.as_str()))
 }
 
-fn read_csv_points(
+fn read_csv_points<R: std::io::Read>(
     path: &Path,
-    text: &str,
+    stream: R,
+    delimiter: u8,
     choice: CoordChoice,
     field: Option<&str>,
 ) -> Result<RawPoints, InputError> {
-    let delimiter = sniff_delimiter(text);
     let mut reader = csv::ReaderBuilder::new()
         .delimiter(delimiter)
         .flexible(false)
         .trim(csv::Trim::All)
-        .from_reader(text.as_bytes());
+        .from_reader(stream);
     let headers: Vec<String> = reader
         .headers()
-        .map_err(|e| {
-            InputError::new(
-                path,
-                format!("cannot read the header row ({e})"),
-                "the first line must name the columns",
-            )
-        })?
+        .map_err(|e| csv_error(path, e, 1))?
         .iter()
         .map(|h| h.trim_start_matches('\u{feff}').trim().to_ascii_lowercase())
         .collect();
@@ -157,28 +238,28 @@ fn read_csv_points(
     let mut coords = Vec::new();
     let mut places = Vec::new();
     let mut values = Vec::new();
-    for record in reader.records() {
-        let record = record.map_err(|e| {
-            let line = e.position().map(|p| p.line()).unwrap_or(0);
-            InputError::new(
-                path,
-                format!("malformed row ({e})"),
-                "every row needs as many fields as the header",
-            )
-            .at(format!("line {line}"))
-        })?;
+    let mut record = csv::StringRecord::new();
+    loop {
+        match reader.read_record(&mut record) {
+            Ok(true) => {}
+            Ok(false) => break,
+            Err(e) => {
+                let line = e.position().map(|p| p.line()).unwrap_or(0);
+                return Err(csv_error(path, e, line));
+            }
+        }
         let line = record.position().map(|p| p.line()).unwrap_or(0);
-        let place = format!("line {line}");
+        let place = Place::Line(line);
         let x = parse_number(
             path,
-            &place,
+            &place.to_string(),
             &headers[cols.0],
             record.get(cols.0).unwrap_or(""),
             lenient_decimal_comma,
         )?;
         let y = parse_number(
             path,
-            &place,
+            &place.to_string(),
             &headers[cols.1],
             record.get(cols.1).unwrap_or(""),
             lenient_decimal_comma,
@@ -189,6 +270,8 @@ fn read_csv_points(
         coords.push([x, y]);
         places.push(place);
     }
+    coords.shrink_to_fit();
+    places.shrink_to_fit();
     Ok(RawPoints {
         coords,
         places,
@@ -196,6 +279,39 @@ fn read_csv_points(
         field_values: field_col.map(|_| values),
         skipped_empty: 0,
     })
+}
+
+/// A CSV reading error as the user needs it: which line, and what to do.
+fn csv_error(path: &Path, e: csv::Error, line: u64) -> InputError {
+    let at = format!("line {}", line.max(1));
+    match e.kind() {
+        csv::ErrorKind::Io(io) => {
+            match io.get_ref().and_then(|r| r.downcast_ref::<LineTooLong>()) {
+                Some(long) => InputError::new(
+                    path,
+                    format!("{long}: not a table of coordinates"),
+                    "check that this is the right file; a coordinate row is a few dozen bytes",
+                ),
+                None => InputError::new(
+                    path,
+                    format!("cannot read the file ({io})"),
+                    "check the path and that the file is readable",
+                ),
+            }
+        }
+        csv::ErrorKind::Utf8 { pos, .. } => InputError::new(
+            path,
+            "the file is not UTF-8 text",
+            "save it as UTF-8 (plain CSV, GeoJSON or WKT text)",
+        )
+        .at(format!("line {}", pos.as_ref().map_or(line, |p| p.line()))),
+        _ => InputError::new(
+            path,
+            format!("malformed row ({e})"),
+            "every row needs as many fields as the header",
+        )
+        .at(at),
+    }
 }
 
 fn parse_number(
@@ -409,7 +525,7 @@ fn read_geojson_points(
                 .at(place));
             }
             coords.push([s[0], s[1]]);
-            places.push(place.clone());
+            places.push(Place::Feature((i + 1) as u32));
             if let Some(v) = &value {
                 values.push(v.clone());
             }
@@ -441,7 +557,8 @@ mod tests {
         let p = read_points(f.path(), CoordChoice::Auto, None).unwrap();
         assert_eq!(p.coords, vec![[10.5, 20.0], [11.0, 21.0]]);
         assert_eq!(p.system, CoordSystem::Projected);
-        assert_eq!(p.places[1], "line 3");
+        assert_eq!(p.places[1], Place::Line(3));
+        assert_eq!(p.places[1].to_string(), "line 3");
     }
 
     #[test]
@@ -508,5 +625,40 @@ mod tests {
         let f = file(".geojson", body);
         let e = read_points(f.path(), CoordChoice::Auto, None).unwrap_err();
         assert_eq!(e.location.as_deref(), Some("feature 1"));
+    }
+}
+
+#[cfg(test)]
+mod streaming {
+    use super::*;
+
+    /// A line longer than MAX_LINE is refused while streaming, with its
+    /// line number, before the rest of the file is read.
+    #[test]
+    fn refuses_an_overlong_line() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("long.csv");
+        let mut text = String::from("x,y\n1,2\n");
+        text.push_str(&"9".repeat(MAX_LINE + 10));
+        text.push_str(",1\n");
+        std::fs::write(&path, text).unwrap();
+        let e = read_points(&path, CoordChoice::Auto, None).unwrap_err();
+        assert!(e.what.contains("line 3 is longer than"), "{}", e.what);
+    }
+
+    /// A file larger than the 64 KiB format probe streams through intact.
+    #[test]
+    fn streams_a_file_larger_than_the_probe() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("big.csv");
+        let mut text = String::from("x,y\n");
+        for i in 0..20_000 {
+            text.push_str(&format!("{i},{}\n", i % 97));
+        }
+        std::fs::write(&path, text).unwrap();
+        let p = read_points(&path, CoordChoice::Auto, None).unwrap();
+        assert_eq!(p.coords.len(), 20_000);
+        assert_eq!(p.coords[19_999], [19_999.0, (19_999 % 97) as f64]);
+        assert_eq!(p.places[19_999], Place::Line(20_001));
     }
 }

@@ -1,0 +1,260 @@
+//! `patternproof density`: how much a kernel density surface, its isopleth
+//! areas and its main hotspot depend on the kernel, the bandwidth and the
+//! edge handling.
+
+use crate::fail::Failure;
+use clap::Args;
+use geo::{Area, ConvexHull, MultiPoint, MultiPolygon, Point};
+use patternproof_density::bandwidth::BandwidthSpec;
+use patternproof_density::edge::Edge;
+use patternproof_density::kernels::{self, Kernel};
+use patternproof_density::render::RunInfo;
+use patternproof_density::{Config, analyse, render};
+use patternproof_report::html::shell_quote;
+use patternproof_report::write_folder_with;
+use std::path::PathBuf;
+
+/// `patternproof density`.
+#[derive(Debug, Args)]
+pub struct DensityArgs {
+    #[command(flatten)]
+    pub input: crate::args::InputArgs,
+    /// Kernels: gaussian, quartic (biweight), epanechnikov, triangular (cone), uniform (disc).
+    #[arg(
+        long,
+        value_delimiter = ',',
+        default_value = "gaussian,quartic,epanechnikov,triangular,uniform",
+        value_name = "LIST"
+    )]
+    pub kernels: Vec<String>,
+    /// Bandwidths: `scott`, `lcv` (likelihood cross-validation), `Fx` (F × Scott's
+    /// value) or a number in the unit (Gaussian: standard deviation; others: support radius).
+    #[arg(
+        long,
+        value_delimiter = ',',
+        default_value = "scott,lcv,0.5x,2x",
+        value_name = "LIST"
+    )]
+    pub bandwidths: Vec<String>,
+    /// Cell side in the unit (default: about 250 cells on the window's long side).
+    #[arg(long, value_name = "C")]
+    pub cell: Option<f64>,
+    /// Isopleth levels in percent of the mass.
+    #[arg(
+        long,
+        value_delimiter = ',',
+        default_value = "50,95",
+        value_name = "P,…"
+    )]
+    pub levels: Vec<String>,
+    /// Edge handlings: none, uniform (divide by the kernel mass inside the window
+    /// at each cell), diggle (weight each point by it).
+    #[arg(
+        long,
+        value_delimiter = ',',
+        default_value = "none,uniform",
+        value_name = "LIST"
+    )]
+    pub edge: Vec<String>,
+    /// Reference surface, `KERNEL:BANDWIDTH[:EDGE]` (default edge: the first of --edge).
+    #[arg(long, default_value = "gaussian:scott", value_name = "K:B")]
+    pub reference: String,
+    /// Replace an earlier report folder at --out.
+    #[arg(long)]
+    pub force: bool,
+    /// Print nothing but errors.
+    #[arg(long, short)]
+    pub quiet: bool,
+    /// Report folder (written whole or not at all).
+    #[arg(long, value_name = "DIR")]
+    pub out: PathBuf,
+}
+
+fn bad(option: &str, what: String, todo: &str) -> Failure {
+    Failure::Input(format!("{option}: {what}\n  what to do: {todo}"))
+}
+
+fn parse_config(a: &DensityArgs, unit: &str) -> Result<Config, Failure> {
+    let mut ks = Vec::new();
+    for k in &a.kernels {
+        let kernel = Kernel::parse(k).ok_or_else(|| {
+            bad(
+                "--kernels",
+                format!("unknown kernel {k:?}"),
+                "use gaussian, quartic, epanechnikov, triangular or uniform",
+            )
+        })?;
+        if !ks.contains(&kernel) {
+            ks.push(kernel);
+        }
+    }
+    if ks.is_empty() {
+        ks = kernels::ALL.to_vec();
+    }
+    let mut bs = Vec::new();
+    for b in &a.bandwidths {
+        let spec = BandwidthSpec::parse(b).ok_or_else(|| {
+            bad("--bandwidths", format!("{b:?} is not a bandwidth"), "use scott, lcv, a multiple of Scott's value such as 0.5x, or a positive number in the unit")
+        })?;
+        if !bs.contains(&spec) {
+            bs.push(spec);
+        }
+    }
+    let mut edges = Vec::new();
+    for e in &a.edge {
+        let edge = Edge::parse(e).ok_or_else(|| {
+            bad(
+                "--edge",
+                format!("unknown edge handling {e:?}"),
+                "use none, uniform or diggle",
+            )
+        })?;
+        if !edges.contains(&edge) {
+            edges.push(edge);
+        }
+    }
+    let mut levels = Vec::new();
+    for l in &a.levels {
+        let v: f64 = l.trim().trim_end_matches('%').parse().map_err(|_| {
+            bad(
+                "--levels",
+                format!("{l:?} is not a number"),
+                "give percentages between 0 and 100, e.g. --levels 50,95",
+            )
+        })?;
+        if !(v > 0.0 && v < 100.0) {
+            return Err(bad(
+                "--levels",
+                format!("{v} is outside (0, 100)"),
+                "give percentages strictly between 0 and 100",
+            ));
+        }
+        levels.push(v / 100.0);
+    }
+    levels.sort_by(f64::total_cmp);
+    levels.dedup();
+    if let Some(c) = a.cell
+        && !(c.is_finite() && c > 0.0)
+    {
+        return Err(bad(
+            "--cell",
+            format!("{c} is not a positive cell size"),
+            "give the cell side in the unit of the coordinates",
+        ));
+    }
+    let parts: Vec<&str> = a.reference.split(':').collect();
+    let reference = match parts.as_slice() {
+        [k, b] | [k, b, _] => {
+            let k = Kernel::parse(k);
+            let b = BandwidthSpec::parse(b);
+            let e = match parts.get(2) {
+                Some(e) => Edge::parse(e),
+                None => Some(edges.first().copied().unwrap_or(Edge::None)),
+            };
+            match (k, b, e) {
+                (Some(k), Some(b), Some(e)) => (k, b, e),
+                _ => {
+                    return Err(bad(
+                        "--reference",
+                        format!("{:?} is not KERNEL:BANDWIDTH[:EDGE]", a.reference),
+                        "e.g. --reference gaussian:scott or quartic:lcv:uniform",
+                    ));
+                }
+            }
+        }
+        _ => {
+            return Err(bad(
+                "--reference",
+                format!("{:?} is not KERNEL:BANDWIDTH[:EDGE]", a.reference),
+                "e.g. --reference gaussian:scott or quartic:lcv:uniform",
+            ));
+        }
+    };
+    Ok(Config {
+        kernels: ks,
+        bandwidths: bs,
+        edges,
+        levels,
+        cell: a.cell,
+        reference,
+        unit: unit.to_string(),
+    })
+}
+
+/// Run the command.
+pub fn run(a: &DensityArgs) -> Result<(), Failure> {
+    if a.input.boundaries.len() > 1 {
+        return Err(bad(
+            "--boundary",
+            format!(
+                "{} boundaries given; density uses one window",
+                a.input.boundaries.len()
+            ),
+            "pass one --boundary (or none for the convex hull of the points)",
+        ));
+    }
+    let data = crate::audit_cmd::load(&a.input)?;
+    let config = parse_config(a, &data.unit)?;
+    let points_name = a.input.points.display().to_string();
+    let (window, source): (MultiPolygon<f64>, String) = match data.boundaries.first() {
+        Some(b) => (
+            b.shape.clone(),
+            format!("boundary {} ({})", b.name, b.file.display()),
+        ),
+        None => {
+            let mp = MultiPoint(data.points.iter().map(|p| Point::new(p[0], p[1])).collect());
+            (
+                MultiPolygon(vec![mp.convex_hull()]),
+                "convex hull of the points".to_string(),
+            )
+        }
+    };
+    let area = window.unsigned_area();
+    if area.is_nan() || area <= 0.0 {
+        return Err(bad(
+            &points_name,
+            "the window has no area (the points lie on one line or at one place)".into(),
+            "pass a study area with --boundary, or check the coordinates",
+        ));
+    }
+    let analysis = analyse(&data.points, &window, &config).map_err(|e| {
+        let todo = match e {
+            patternproof_density::DensityError::TooManyCells(_)
+            | patternproof_density::DensityError::EmptyWindow => {
+                "choose a --cell suited to the window's size"
+            }
+            patternproof_density::DensityError::LcvFailed(_) => {
+                "drop lcv from --bandwidths for this kernel, or use the gaussian kernel"
+            }
+            _ => "check the point file and the window",
+        };
+        bad(&points_name, e.to_string(), todo)
+    })?;
+    let mut command = vec!["patternproof".to_string()];
+    command.extend(
+        std::env::args_os()
+            .skip(1)
+            .map(|s| shell_quote(&s.to_string_lossy())),
+    );
+    let info = RunInfo {
+        points_file: points_name.clone(),
+        n_read: data.n_read,
+        coords: data.system.as_str().to_string(),
+        projection: data.projection.as_ref().map(|p| p.describe()),
+        unit: data.unit.clone(),
+        window_source: source,
+        window_area: area,
+        command_line: command.join(" "),
+        warnings: data.warnings.clone(),
+    };
+    let folder = render::folder(&analysis, &info).map_err(Failure::Internal)?;
+    write_folder_with(&a.out, &folder, a.force).map_err(|e| Failure::Input(e.to_string()))?;
+    if !a.quiet {
+        for w in info.warnings.iter().chain(&analysis.warnings) {
+            eprintln!("patternproof: warning: {w}");
+        }
+        println!("{}", analysis.verdict.sentence);
+        println!("report: {}", a.out.display());
+    }
+    Ok(())
+}

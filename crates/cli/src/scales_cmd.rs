@@ -1,0 +1,246 @@
+//! `patternproof scales`: Ripley's K and the L function in every window of
+//! the audit sweep, under each edge correction, with a global envelope
+//! test per window; writes a report folder and prints the verdict.
+//!
+//! The flags and the run function live here together; the estimators and
+//! the test are in the `patternproof-scales` crate.
+
+use crate::args::InputArgs;
+use crate::audit_cmd::{check_alpha, load, named_shapes, parse_buffers};
+use crate::fail::Failure;
+use crate::progress::Progress;
+use clap::Args;
+use patternproof_audit::window::{WindowOptions, build_windows};
+use patternproof_core::nearest::{mean, nearest_distances};
+use patternproof_report::{OutputFolder, write_folder_with};
+use patternproof_scales::summary;
+use patternproof_scales::{Correction, ScalesOptions, run_scales};
+use std::path::PathBuf;
+
+/// Largest accepted `--steps`.
+const MAX_STEPS: usize = 10_000;
+
+/// `patternproof scales`.
+///
+/// K̂(r) = A/(n(n−1))·Σ w_ij·1(d_ij ≤ r) and L(r) − r = sqrt(K̂/π) − r on a
+/// grid of distances up to `--rmax`, for every study-area window and edge
+/// correction, with a simulation envelope test (maximum absolute deviation,
+/// Diggle 2003) in each window.
+#[derive(Debug, Args)]
+pub struct ScalesArgs {
+    #[command(flatten)]
+    pub input: InputArgs,
+    /// Buffer distances for the buffered-hull windows: plain numbers are distances in the
+    /// unit, a trailing `x` means a multiple of the observed mean nearest-neighbour distance.
+    #[arg(
+        long,
+        value_delimiter = ',',
+        default_value = "0.5x,1x,2x",
+        value_name = "D,…"
+    )]
+    pub buffers: Vec<String>,
+    /// Edge corrections whose curves are estimated: border, isotropic, translation.
+    #[arg(
+        long,
+        value_delimiter = ',',
+        default_value = "border,isotropic,translation",
+        value_name = "LIST"
+    )]
+    pub edges: Vec<String>,
+    /// Corrections that get the simulation envelope test (each costs `--sims` estimates per window).
+    #[arg(
+        long,
+        value_delimiter = ',',
+        default_value = "isotropic",
+        value_name = "LIST"
+    )]
+    pub test_edges: Vec<String>,
+    /// Largest distance (default: a quarter of the shorter side of the
+    /// bounding rectangle of the window where that side is smallest).
+    #[arg(long, value_name = "R", allow_hyphen_values = true)]
+    pub rmax: Option<f64>,
+    /// Number of distances on the grid r_max·k/steps, k = 1..steps.
+    #[arg(long, default_value_t = 50)]
+    pub steps: usize,
+    /// CSR simulations per window for the envelope test (0: no test).
+    #[arg(long, default_value_t = 99)]
+    pub sims: usize,
+    /// Seed of every random stream (printed in the report).
+    #[arg(long, default_value_t = 1)]
+    pub seed: u64,
+    /// Significance level of the global test.
+    #[arg(long, default_value_t = 0.05, allow_hyphen_values = true)]
+    pub alpha: f64,
+    /// Concavity of the concave hull (geo's parameter; smaller cuts deeper).
+    #[arg(long, default_value_t = 2.0)]
+    pub concavity: f64,
+    /// Replace an earlier report in `--out` (a folder that is not a
+    /// patternproof report is never replaced).
+    #[arg(long)]
+    pub force: bool,
+    /// No progress bar.
+    #[arg(long, short)]
+    pub quiet: bool,
+    /// Report folder (written whole or not at all).
+    #[arg(long, value_name = "DIR")]
+    pub out: PathBuf,
+}
+
+fn parse_corrections(flag: &str, words: &[String]) -> Result<Vec<Correction>, Failure> {
+    let mut out = Vec::new();
+    for w in words {
+        let c = Correction::parse(w).ok_or_else(|| {
+            Failure::Input(format!(
+                "{flag}: `{w}` is not an edge correction for K\n  what to do: choose from border, isotropic, translation"
+            ))
+        })?;
+        if !out.contains(&c) {
+            out.push(c);
+        }
+    }
+    if out.is_empty() {
+        return Err(Failure::Input(format!(
+            "{flag}: no correction given\n  what to do: name at least one of border, isotropic, translation"
+        )));
+    }
+    Ok(out)
+}
+
+/// Run the command.
+pub fn run(a: &ScalesArgs) -> Result<(), Failure> {
+    let buffers = parse_buffers(&a.buffers)?;
+    let mut corrections = parse_corrections("--edges", &a.edges)?;
+    let tested = parse_corrections("--test-edges", &a.test_edges)?;
+    for &t in &tested {
+        if !corrections.contains(&t) {
+            corrections.push(t);
+        }
+    }
+    check_alpha(a.alpha)?;
+    if let Some(r) = a.rmax
+        && !(r > 0.0 && r.is_finite())
+    {
+        return Err(Failure::Input(format!(
+            "--rmax {r}: the largest distance must be a positive number in the data's unit\n  what to do: give e.g. --rmax 40, or leave it out for a quarter of the window's shorter side"
+        )));
+    }
+    if a.steps == 0 || a.steps > MAX_STEPS {
+        return Err(Failure::Input(format!(
+            "--steps {}: the distance grid needs between 1 and {MAX_STEPS} steps\n  what to do: use e.g. --steps 50",
+            a.steps
+        )));
+    }
+    if !(a.concavity > 0.0 && a.concavity.is_finite()) {
+        return Err(Failure::Input(format!(
+            "--concavity {}: must be a positive number\n  what to do: leave it out for geo's default 2.0",
+            a.concavity
+        )));
+    }
+    let data = load(&a.input)?;
+    let points_file = a.input.points.display().to_string();
+    let mean_nn = nearest_distances(&data.points)
+        .and_then(|d| mean(&d))
+        .ok_or_else(|| {
+            Failure::Input(format!(
+                "{points_file}: K needs at least two points, the file has {}\n  what to do: check the point file",
+                data.points.len()
+            ))
+        })?;
+    let shapes = named_shapes(&data);
+    let (windows, notes) = build_windows(
+        &data.points,
+        mean_nn,
+        &shapes,
+        &WindowOptions {
+            buffers,
+            area: None,
+            concavity: a.concavity,
+        },
+    );
+    let options = ScalesOptions {
+        corrections,
+        tested,
+        rmax: a.rmax,
+        steps: a.steps,
+        sims: a.sims,
+        seed: a.seed,
+        alpha: a.alpha,
+    };
+    let progress = Progress::new((a.sims * windows.len()) as u64, a.quiet, "simulating CSR");
+    let run = run_scales(&data.points, &windows, &data.unit, &options, &|| {
+        progress.tick()
+    });
+    progress.finish();
+    if run.windows.is_empty() {
+        let mut why: Vec<String> = notes.clone();
+        why.extend(
+            run.skipped
+                .iter()
+                .map(|s| format!("{}: {}", s.window, s.reason)),
+        );
+        return Err(Failure::Input(format!(
+            "{points_file}: no window could be analysed ({})\n  what to do: the points are identical or collinear, so no study area can be drawn from them; give the surveyed outline with --boundary",
+            why.join("; ")
+        )));
+    }
+
+    let mut folder = OutputFolder::default();
+    let json = serde_json::to_vec_pretty(&run)
+        .map_err(|e| Failure::Internal(format!("could not write scales.json: {e}")))?;
+    folder.add("scales.json", json);
+    folder.add("scales.csv", summary::csv(&run).into_bytes());
+    folder.add("scales.md", summary::markdown(&run).into_bytes());
+    if let Some(svg) = patternproof_scales::plot::scales_svg(&run) {
+        folder.add("scales.svg", svg.into_bytes());
+    }
+    if let Some(svg) = patternproof_scales::plot::corrections_svg(&run) {
+        folder.add("corrections.svg", svg.into_bytes());
+    }
+    write_folder_with(&a.out, &folder, a.force).map_err(|e| Failure::Input(e.to_string()))?;
+
+    for w in &data.warnings {
+        eprintln!("patternproof: warning: {w}");
+    }
+    println!(
+        "L(r) − r up to {} {} ({} steps; {}), {} CSR simulations per window, seed {}:",
+        patternproof_scales::verdict::distance(run.rmax),
+        run.unit,
+        run.r.len(),
+        run.rmax_rule,
+        run.sims,
+        run.seed
+    );
+    println!(
+        "{:<14} {:>5}  {:<11} {:>9} {:>7}  bands outside the global envelope",
+        "window", "n", "correction", "MAD T", "p"
+    );
+    for r in summary::table_rows(&run) {
+        println!(
+            "{:<14} {:>5}  {:<11} {:>9} {:>7}  {}",
+            r[0], r[1], r[2], r[3], r[4], r[5]
+        );
+    }
+    for n in &notes {
+        println!("note: {n}");
+    }
+    for s in &run.skipped {
+        println!("skipped {}: {}", s.window, s.reason);
+    }
+    for v in &run.verdicts {
+        println!(
+            "\nVerdict ({} correction, MAD test at α = {}): {}.",
+            v.correction.as_str(),
+            run.alpha,
+            v.sentence
+        );
+    }
+    for c in &run.cautions {
+        println!("  caution: {c}");
+    }
+    println!(
+        "\nwrote {} to {}",
+        folder.names().collect::<Vec<_>>().join(", "),
+        a.out.display()
+    );
+    Ok(())
+}

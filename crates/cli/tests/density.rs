@@ -1,0 +1,129 @@
+//! End-to-end: `patternproof density` on the invented marsh hare track
+//! (small raster for speed), and bad input exiting 2.
+
+use std::path::PathBuf;
+use std::process::{Command, Output};
+
+fn bin(args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_patternproof"))
+        .args(args)
+        .output()
+        .expect("run patternproof")
+}
+
+fn track() -> String {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+        .join("../../demo-data/marsh-hare-track.csv")
+        .display()
+        .to_string()
+}
+
+#[test]
+fn density_on_the_demo_track() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let out = dir.path().join("d");
+    let o = bin(&[
+        "density",
+        &track(),
+        "--cell",
+        "25",
+        "--kernels",
+        "gaussian,quartic,uniform",
+        "--bandwidths",
+        "scott,lcv,2x",
+        "--edge",
+        "none,diggle",
+        "--quiet",
+        "--out",
+        out.to_str().expect("path"),
+    ]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let doc: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("density.json")).expect("json"))
+            .expect("parse");
+    assert_eq!(doc["schema"], "patternproof.density/1");
+    let surfaces = doc["surfaces"].as_array().expect("surfaces");
+    assert_eq!(surfaces.len(), 3 * 3 * 2);
+    for s in surfaces {
+        let iso = s["isopleths"].as_array().expect("isopleths");
+        let (a50, a95) = (
+            iso[0]["area"].as_f64().expect("a"),
+            iso[1]["area"].as_f64().expect("a"),
+        );
+        assert!(a50 > 0.0 && a95 > a50, "{s}");
+        assert!(iso[0]["patches"].as_u64().expect("patches") >= 1);
+        if s["edge"] == "none" {
+            let m = s["mass_outside"].as_f64().expect("mass outside");
+            assert!(m > 0.0 && m < 0.9, "{m}");
+        } else {
+            assert!((s["mass_inside"].as_f64().expect("mass") - 1.0).abs() < 1e-3);
+        }
+    }
+    // The reference (gaussian, Scott, first edge) overlaps itself fully.
+    let r = &doc["reference"];
+    assert_eq!(r["kernel"], "gaussian");
+    assert_eq!(
+        r["overlap_with_reference"][1]["jaccard"].as_f64(),
+        Some(1.0)
+    );
+    // Scott's value in the document follows its formula.
+    let sc = &doc["bandwidth_selection"]["scott"];
+    let want =
+        sc["sigma"].as_f64().expect("sigma") * (sc["n"].as_f64().expect("n")).powf(-1.0 / 6.0);
+    assert!((sc["bandwidth"].as_f64().expect("h") - want).abs() < 1e-9);
+    let sentence = doc["verdict"]["sentence"].as_str().expect("sentence");
+    assert!(sentence.contains("95 % area ranges from"), "{sentence}");
+    for f in [
+        "index.html",
+        "isopleths.geojson",
+        "reference.tif",
+        "surfaces.svg",
+        "areas.svg",
+    ] {
+        assert!(out.join(f).is_file(), "{f}");
+    }
+    let html = std::fs::read_to_string(out.join("index.html")).expect("html");
+    assert!(html.contains("id=\"density\"") && html.contains("personal data"));
+    let gj: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("isopleths.geojson")).expect("gj"))
+            .expect("parse");
+    assert_eq!(
+        gj["features"].as_array().expect("features").len(),
+        (18 + 1) * 2
+    );
+}
+
+#[test]
+fn bad_density_input_exits_2() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let out = dir.path().join("d");
+    let o = out.to_str().expect("path");
+    let t = track();
+    for (args, needle) in [
+        (vec!["--kernels", "triweight"], "--kernels"),
+        (vec!["--bandwidths", "wide"], "--bandwidths"),
+        (vec!["--levels", "120"], "--levels"),
+        (vec!["--edge", "mirror"], "--edge"),
+        (vec!["--reference", "gaussian"], "--reference"),
+        (vec!["--cell", "0"], "--cell"),
+    ] {
+        let mut a = vec!["density", t.as_str(), "--out", o];
+        a.extend(args);
+        let r = bin(&a);
+        assert_eq!(r.status.code(), Some(2), "{a:?}");
+        let err = String::from_utf8_lossy(&r.stderr);
+        assert!(err.contains(needle) && err.contains("what to do"), "{err}");
+    }
+    let one = dir.path().join("one.csv");
+    std::fs::write(&one, "x,y\n1,2\n").expect("write");
+    let r = bin(&[
+        "density",
+        one.to_str().expect("p"),
+        "--coords",
+        "projected",
+        "--out",
+        o,
+    ]);
+    assert_eq!(r.status.code(), Some(2));
+    assert!(!out.exists(), "nothing written on failure");
+}

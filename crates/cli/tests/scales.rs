@@ -1,0 +1,159 @@
+//! End-to-end tests of `patternproof scales` on the demo data: the report
+//! folder, its JSON, determinism across thread counts, and refusals of
+//! bad input with exit code 2.
+
+#![allow(clippy::unwrap_used, missing_docs)]
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+fn repo() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("../..")
+}
+
+fn scales(args: &[&str], out: &Path, threads: &str) -> Output {
+    let root = repo();
+    Command::new(env!("CARGO_BIN_EXE_patternproof"))
+        .arg("scales")
+        .arg(root.join("demo-data/meadow-burrows.csv"))
+        .arg("--boundary")
+        .arg(root.join("demo-data/meadow-boundary.geojson"))
+        .args(args)
+        .arg("--out")
+        .arg(out)
+        .arg("--quiet")
+        .env("RAYON_NUM_THREADS", threads)
+        .output()
+        .expect("binary runs")
+}
+
+const SMALL: [&str; 10] = [
+    "--sims",
+    "19",
+    "--steps",
+    "8",
+    "--buffers",
+    "5",
+    "--edges",
+    "isotropic,border",
+    "--rmax",
+    "12",
+];
+
+#[test]
+fn demo_run_writes_the_folder_and_the_verdict() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("scales");
+    let o = scales(&SMALL, &out, "2");
+    let stdout = String::from_utf8_lossy(&o.stdout);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    assert!(stdout.contains("Verdict (isotropic correction"), "{stdout}");
+    assert!(stdout.contains("personal data"), "{stdout}");
+    for f in [
+        "scales.json",
+        "scales.csv",
+        "scales.md",
+        "scales.svg",
+        "corrections.svg",
+    ] {
+        assert!(out.join(f).is_file(), "{f} missing");
+    }
+    let v: serde_json::Value =
+        serde_json::from_slice(&std::fs::read(out.join("scales.json")).unwrap()).unwrap();
+    assert_eq!(v["schema"], "patternproof.scales/1");
+    let r = v["r"].as_array().unwrap();
+    assert_eq!(r.len(), 8);
+    assert_eq!(v["rmax"].as_f64(), Some(12.0));
+    assert!((r[7].as_f64().unwrap() - 12.0).abs() < 1e-12);
+    assert!((r[0].as_f64().unwrap() - 1.5).abs() < 1e-12);
+    let ids: Vec<&str> = v["windows"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|w| w["id"].as_str().unwrap())
+        .collect();
+    assert_eq!(ids, ["bbox", "hull", "hull+5", "concave", "boundary"]);
+    for w in v["windows"].as_array().unwrap() {
+        assert_eq!(w["n"], 143, "every burrow lies inside every window");
+        let t = &w["tests"][0];
+        assert_eq!(t["correction"], "isotropic");
+        let p = t["p"].as_f64().unwrap();
+        // p is a rank p-value with 19 simulations: a multiple of 1/20.
+        assert!(((p * 20.0) - (p * 20.0).round()).abs() < 1e-9 && p > 0.0 && p <= 1.0);
+        // K of the isotropic curve is L² π at every distance.
+        let c = &w["curves"][0];
+        assert_eq!(c["correction"], "isotropic");
+        for k in 0..8 {
+            let kk = c["k"][k].as_f64().unwrap();
+            let l = c["l"][k].as_f64().unwrap();
+            assert!((l * l * std::f64::consts::PI - kk).abs() < 1e-9 * kk.max(1.0));
+        }
+        assert_eq!(w["pairs"]["isotropic_capped"], 0);
+    }
+    // The burrows are clustered (demo data built that way): the verdict
+    // names clustering, and the boundary window rejects CSR.
+    let verdict = v["verdicts"][0]["sentence"].as_str().unwrap();
+    assert!(verdict.starts_with("clustered"), "{verdict}");
+    let boundary = &v["windows"][4]["tests"][0];
+    assert!((boundary["p"].as_f64().unwrap() - 0.05).abs() < 1e-12);
+}
+
+#[test]
+fn same_bytes_for_one_and_two_threads() {
+    let dir = tempfile::tempdir().unwrap();
+    let (a, b) = (dir.path().join("a"), dir.path().join("b"));
+    let args = [
+        "--sims",
+        "9",
+        "--steps",
+        "5",
+        "--buffers",
+        "5",
+        "--alpha",
+        "0.1",
+        "--rmax",
+        "8",
+    ];
+    assert!(scales(&args, &a, "1").status.success());
+    assert!(scales(&args, &b, "2").status.success());
+    for f in ["scales.json", "scales.csv", "scales.svg"] {
+        assert_eq!(
+            std::fs::read(a.join(f)).unwrap(),
+            std::fs::read(b.join(f)).unwrap(),
+            "{f} differs"
+        );
+    }
+}
+
+#[test]
+fn bad_input_exits_2_with_advice() {
+    let dir = tempfile::tempdir().unwrap();
+    let cases: [(&[&str], &str); 6] = [
+        (&["--rmax", "-3"], "--rmax"),
+        (&["--steps", "0"], "--steps"),
+        (&["--edges", "ripley"], "--edges"),
+        (&["--test-edges", "none"], "--test-edges"),
+        (&["--alpha", "1.5"], "--alpha"),
+        (&["--buffers=-1"], "--buffers"),
+    ];
+    for (args, flag) in cases {
+        let out = dir.path().join("never");
+        let o = scales(args, &out, "1");
+        let e = String::from_utf8_lossy(&o.stderr);
+        assert_eq!(o.status.code(), Some(2), "{args:?}: {e}");
+        assert!(
+            e.contains(flag) && e.contains("what to do"),
+            "{args:?}: {e}"
+        );
+        assert!(!out.exists(), "{args:?} wrote a folder");
+    }
+    // A missing point file: exit 2 naming the file.
+    let out = dir.path().join("never");
+    let o = Command::new(env!("CARGO_BIN_EXE_patternproof"))
+        .args(["scales", "no-such-file.csv", "--quiet", "--out"])
+        .arg(&out)
+        .output()
+        .unwrap();
+    assert_eq!(o.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&o.stderr).contains("no-such-file.csv"));
+}

@@ -1,0 +1,390 @@
+//! Kernel density audit: how much a density surface, the areas of its
+//! isopleths and the place of its main hotspot depend on the kernel, the
+//! bandwidth and the edge handling.
+//!
+//! A surface is computed for every kernel × bandwidth × edge handling on one
+//! raster over the window, by linear binning and FFT convolution
+//! ([`convolve`]). Each surface's isopleths ([`isopleth`]) are measured,
+//! split into patches ([`patches`]) and compared with the reference
+//! surface ([`overlap`]); [`verdict`] sums the spread up in one sentence.
+
+pub mod bandwidth;
+pub mod convolve;
+pub mod edge;
+pub mod geotiff;
+pub mod grid;
+pub mod isopleth;
+pub mod kernels;
+pub mod overlap;
+pub mod patches;
+pub mod plot;
+pub mod render;
+pub mod verdict;
+
+use bandwidth::{BandwidthSpec, Lcv, Scott};
+use edge::Edge;
+use geo::{Contains, Intersects, MultiPolygon, Point};
+use grid::Grid;
+use kernels::Kernel;
+use patternproof_core::Xy;
+use rayon::prelude::*;
+
+/// Jaccard overlap at or above which the main hotspot counts as staying in place.
+pub const HOTSPOT_OVERLAP: f64 = 0.5;
+
+/// What to compute.
+#[derive(Debug, Clone)]
+pub struct Config {
+    /// Kernels.
+    pub kernels: Vec<Kernel>,
+    /// Bandwidths.
+    pub bandwidths: Vec<BandwidthSpec>,
+    /// Edge handlings.
+    pub edges: Vec<Edge>,
+    /// Isopleth levels as shares in (0, 1), ascending.
+    pub levels: Vec<f64>,
+    /// Cell side (default: about 250 cells on the long side).
+    pub cell: Option<f64>,
+    /// The reference surface.
+    pub reference: (Kernel, BandwidthSpec, Edge),
+    /// Name of the distance unit (areas are in its square).
+    pub unit: String,
+}
+
+/// Why an analysis cannot be done.
+#[derive(Debug, Clone, PartialEq)]
+pub enum DensityError {
+    /// Fewer than two points inside the window.
+    TooFewPoints(usize),
+    /// The window has no area or no cell centre inside it.
+    EmptyWindow,
+    /// The raster would be too large.
+    TooManyCells(usize),
+    /// The points do not spread in both directions.
+    Degenerate,
+    /// Cross-validation found no bandwidth with a finite likelihood.
+    LcvFailed(Kernel),
+}
+
+impl std::fmt::Display for DensityError {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            DensityError::TooFewPoints(n) => write!(
+                f,
+                "only {n} point(s) inside the window; a density surface needs at least 2"
+            ),
+            DensityError::EmptyWindow => write!(
+                f,
+                "the window has no area at this cell size (no cell centre inside it)"
+            ),
+            DensityError::TooManyCells(n) => write!(
+                f,
+                "the raster would have {n} cells (at most {} allowed)",
+                grid::MAX_CELLS
+            ),
+            DensityError::Degenerate => write!(
+                f,
+                "the points have no spread (all at one place or on one line through a single coordinate), so Scott's rule gives no bandwidth"
+            ),
+            DensityError::LcvFailed(k) => write!(
+                f,
+                "likelihood cross-validation with the {} kernel found no bandwidth on its grid at which every point has a neighbour",
+                k.name()
+            ),
+        }
+    }
+}
+
+impl std::error::Error for DensityError {}
+
+/// One isopleth level of one surface.
+#[derive(Debug, Clone)]
+pub struct Level {
+    /// The region.
+    pub region: isopleth::Region,
+    /// Number of 8-connected patches.
+    pub patches: usize,
+    /// Jaccard overlap with the reference surface's region at this level.
+    pub overlap_with_reference: f64,
+}
+
+/// One surface and its measurements.
+#[derive(Debug, Clone)]
+pub struct Surface {
+    /// Kernel.
+    pub kernel: Kernel,
+    /// The bandwidth as asked for.
+    pub spec: BandwidthSpec,
+    /// Edge handling.
+    pub edge: Edge,
+    /// The bandwidth used, in the kernel's own parametrisation.
+    pub bandwidth: f64,
+    /// The Gaussian standard deviation with the same canonical smoothing.
+    pub gaussian_equivalent: f64,
+    /// How the bandwidth was found, in words.
+    pub rule: String,
+    /// The density raster.
+    pub estimate: edge::Estimate,
+    /// Per level.
+    pub levels: Vec<Level>,
+    /// Centre of the cell of highest density.
+    pub peak: Xy,
+    /// Jaccard overlap of the main hotspot (the patch of the lowest level's
+    /// region that holds the peak) with the reference's.
+    pub hotspot_overlap: f64,
+    /// The main hotspot's cells.
+    pub hotspot: Vec<bool>,
+}
+
+impl Surface {
+    /// `kernel/bandwidth/edge`.
+    pub fn label(&self) -> String {
+        format!(
+            "{}/{}/{}",
+            self.kernel.name(),
+            self.spec.label(),
+            self.edge.name()
+        )
+    }
+}
+
+/// The whole analysis.
+#[derive(Debug, Clone)]
+pub struct Analysis {
+    /// The raster.
+    pub grid: Grid,
+    /// Which cells are inside the window.
+    pub mask: Vec<bool>,
+    /// Points used (inside the window).
+    pub points: Vec<Xy>,
+    /// Points left out because they lie outside the window.
+    pub outside: usize,
+    /// Scott's rule.
+    pub scott: Scott,
+    /// Cross-validations run, one per kernel that needed it.
+    pub lcv: Vec<Lcv>,
+    /// Every kernel × bandwidth × edge, in that nesting order.
+    pub surfaces: Vec<Surface>,
+    /// The reference surface.
+    pub reference: Surface,
+    /// Index of the reference in `surfaces`, if it is one of them.
+    pub reference_index: Option<usize>,
+    /// The verdict.
+    pub verdict: verdict::Verdict,
+    /// Things to know that did not stop the run.
+    pub warnings: Vec<String>,
+    /// The configuration.
+    pub config: Config,
+}
+
+struct Raw {
+    kernel: Kernel,
+    spec: BandwidthSpec,
+    edge: Edge,
+    bandwidth: f64,
+    rule: String,
+    estimate: edge::Estimate,
+}
+
+fn measure(raw: Raw, grid: &Grid, mask: &[bool], levels: &[f64]) -> Surface {
+    let regions: Vec<isopleth::Region> = levels
+        .iter()
+        .map(|l| isopleth::region(&raw.estimate.values, mask, grid.cell_area(), *l))
+        .collect();
+    let levels: Vec<Level> = regions
+        .into_iter()
+        .map(|r| {
+            let (_, n) = patches::label(&r.cells, grid.nx, grid.ny);
+            Level {
+                region: r,
+                patches: n,
+                overlap_with_reference: 0.0,
+            }
+        })
+        .collect();
+    let vals = &raw.estimate.values;
+    let mut best = 0;
+    for k in 0..vals.len() {
+        if vals[k] > vals[best] {
+            best = k;
+        }
+    }
+    let peak = grid.centre(best % grid.nx, best / grid.nx);
+    let hotspot = match levels.first() {
+        Some(l) => {
+            let (lab, _) = patches::label(&l.region.cells, grid.nx, grid.ny);
+            let id = lab[best];
+            lab.iter().map(|x| *x == id && id != usize::MAX).collect()
+        }
+        None => vec![false; vals.len()],
+    };
+    Surface {
+        gaussian_equivalent: raw.kernel.gaussian_equivalent(raw.bandwidth),
+        kernel: raw.kernel,
+        spec: raw.spec,
+        edge: raw.edge,
+        bandwidth: raw.bandwidth,
+        rule: raw.rule,
+        estimate: raw.estimate,
+        levels,
+        peak,
+        hotspot_overlap: 0.0,
+        hotspot,
+    }
+}
+
+/// Run the analysis on `points` in `window`.
+pub fn analyse(
+    points: &[Xy],
+    window: &MultiPolygon<f64>,
+    config: &Config,
+) -> Result<Analysis, DensityError> {
+    let mut warnings = Vec::new();
+    let inside: Vec<Xy> = points
+        .iter()
+        .copied()
+        .filter(|p| {
+            let q = Point::new(p[0], p[1]);
+            window.contains(&q) || window.intersects(&q)
+        })
+        .collect();
+    let outside = points.len() - inside.len();
+    if outside > 0 {
+        warnings.push(format!(
+            "{outside} point(s) lie outside the window and are left out of every surface"
+        ));
+    }
+    if inside.len() < 2 {
+        return Err(DensityError::TooFewPoints(inside.len()));
+    }
+    let grid = Grid::over(window, config.cell).ok_or(DensityError::EmptyWindow)?;
+    if grid.len() > grid::MAX_CELLS {
+        return Err(DensityError::TooManyCells(grid.len()));
+    }
+    let mask = grid.mask(window);
+    if !mask.iter().any(|m| *m) {
+        return Err(DensityError::EmptyWindow);
+    }
+    let scott = bandwidth::scott(&inside);
+    if !(scott.bandwidth.is_finite() && scott.bandwidth > 0.0) {
+        return Err(DensityError::Degenerate);
+    }
+    let mut kernels_needing_lcv: Vec<Kernel> = Vec::new();
+    if config.bandwidths.contains(&BandwidthSpec::Lcv) {
+        kernels_needing_lcv.extend(config.kernels.iter().copied());
+    }
+    if config.reference.1 == BandwidthSpec::Lcv
+        && !kernels_needing_lcv.contains(&config.reference.0)
+    {
+        kernels_needing_lcv.push(config.reference.0);
+    }
+    let bins = grid.bin(&inside, None);
+    let mut lcvs = Vec::new();
+    for k in kernels_needing_lcv {
+        let r = bandwidth::lcv(&inside, k, k.from_gaussian(scott.bandwidth), &grid, &bins)
+            .ok_or(DensityError::LcvFailed(k))?;
+        if r.at_grid_edge {
+            warnings.push(format!(
+                "likelihood cross-validation with the {} kernel chose {:.4}, an end of its grid; the maximiser may lie outside it",
+                k.name(),
+                r.chosen
+            ));
+        }
+        lcvs.push(r);
+    }
+    let resolve = |k: Kernel, s: BandwidthSpec| -> (f64, String) {
+        let hs = k.from_gaussian(scott.bandwidth);
+        let conv = if k == Kernel::Gaussian {
+            String::new()
+        } else {
+            " (canonical equivalent of the Gaussian value)".to_string()
+        };
+        match s {
+            BandwidthSpec::Scott => (hs, format!("Scott's rule σ·n^(−1/6){conv}")),
+            BandwidthSpec::ScottTimes(m) => (m * hs, format!("{m} × Scott's rule{conv}")),
+            BandwidthSpec::Fixed(v) => (v, format!("fixed value ({})", k.bandwidth_meaning())),
+            BandwidthSpec::Lcv => {
+                let h = lcvs.iter().find(|l| l.kernel == k).map_or(hs, |l| l.chosen);
+                (
+                    h,
+                    "likelihood cross-validation (leave-one-out log density)".to_string(),
+                )
+            }
+        }
+    };
+    let mut jobs = Vec::new();
+    for &k in &config.kernels {
+        for &s in &config.bandwidths {
+            for &e in &config.edges {
+                let (h, rule) = resolve(k, s);
+                jobs.push((k, s, e, h, rule));
+            }
+        }
+    }
+    let (rk, rs, re) = config.reference;
+    let (rh, rrule) = resolve(rk, rs);
+    jobs.push((rk, rs, re, rh, rrule));
+    for (k, s, _, h, _) in &jobs {
+        if *h < 2.0 * grid.cell {
+            let w = format!(
+                "bandwidth {:.4} ({} {}) is less than two cells of {:.4}; the raster cannot resolve it: pass a smaller --cell",
+                h,
+                k.name(),
+                s.label(),
+                grid.cell
+            );
+            if !warnings.contains(&w) {
+                warnings.push(w);
+            }
+        }
+    }
+    let mut surfaces: Vec<Surface> = jobs
+        .into_par_iter()
+        .map(|(k, s, e, h, rule)| {
+            let estimate = edge::estimate(&inside, &grid, &mask, k, h, e);
+            measure(
+                Raw {
+                    kernel: k,
+                    spec: s,
+                    edge: e,
+                    bandwidth: h,
+                    rule,
+                    estimate,
+                },
+                &grid,
+                &mask,
+                &config.levels,
+            )
+        })
+        .collect();
+    let mut reference = surfaces.pop().ok_or(DensityError::EmptyWindow)?;
+    let compare = |s: &mut Surface, r: &Surface| {
+        for (l, rl) in s.levels.iter_mut().zip(&r.levels) {
+            l.overlap_with_reference = overlap::jaccard(&l.region.cells, &rl.region.cells);
+        }
+        s.hotspot_overlap = overlap::jaccard(&s.hotspot, &r.hotspot);
+    };
+    let snapshot = reference.clone();
+    compare(&mut reference, &snapshot);
+    for s in &mut surfaces {
+        compare(s, &snapshot);
+    }
+    let reference_index = surfaces
+        .iter()
+        .position(|s| s.kernel == rk && s.spec == rs && s.edge == re);
+    let verdict = verdict::verdict(&surfaces, &config.levels, &config.unit);
+    Ok(Analysis {
+        grid,
+        mask,
+        points: inside,
+        outside,
+        scott,
+        lcv: lcvs,
+        surfaces,
+        reference,
+        reference_index,
+        verdict,
+        warnings,
+        config: config.clone(),
+    })
+}
