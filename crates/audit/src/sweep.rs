@@ -17,7 +17,6 @@ use patternproof_core::monte_carlo::{quantile, two_sided_rank_p};
 use patternproof_core::nearest::{mean, nearest_distances};
 use patternproof_core::normal::two_sided_critical;
 use patternproof_core::{Call, NnRatioTest, Xy, donnelly, guard_zone};
-use rayon::prelude::*;
 use serde::Serialize;
 
 /// Fewest focal points for which the guard-zone row is reported; below it
@@ -201,15 +200,8 @@ pub fn run_audit(
     let mut skipped = Vec::new();
     let mut simulated_means = Vec::new();
 
-    // Windows run in parallel as well as the simulations inside each, so
-    // no thread idles while one window's last simulations finish. The
-    // results are gathered in window order, so the output is the same for
-    // any thread count.
-    let per_window: Vec<_> = windows
-        .par_iter()
-        .map(|w| window_rows(points, w, guard, options, tick))
-        .collect();
-    for (rows, skips, sim_means) in per_window {
+    for w in &windows {
+        let (rows, skips, sim_means) = window_rows(points, w, guard, options, tick);
         results.extend(rows);
         skipped.extend(skips);
         simulated_means.push(sim_means);
