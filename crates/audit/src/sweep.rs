@@ -13,6 +13,7 @@ use crate::robustness::{Summary, summarise};
 use crate::sampling::Sampler;
 use crate::simulation::{Measure, PatternStats, measure, simulate};
 use crate::window::{NamedShape, Outline, Window, WindowKind, WindowOptions, build_windows};
+use geo::Translate;
 use patternproof_core::monte_carlo::{quantile, two_sided_rank_p};
 use patternproof_core::nearest::{mean, nearest_distances};
 use patternproof_core::normal::two_sided_critical;
@@ -193,8 +194,24 @@ pub fn run_audit(
     tick: &(dyn Fn() + Sync),
 ) -> Option<Audit> {
     let z_crit = two_sided_critical(options.alpha)?;
+    // Work in coordinates centred on the data: UTM-sized values (~5·10⁶ m)
+    // would otherwise cost digits in areas, buffers and outline distances.
+    // The origin is a whole number near the data, so the shift is exact.
+    let origin = centre(points);
+    let local: Vec<Xy> = points
+        .iter()
+        .map(|p| [p[0] - origin[0], p[1] - origin[1]])
+        .collect();
+    let local_boundaries: Vec<NamedShape> = boundaries
+        .iter()
+        .map(|b| NamedShape {
+            shape: b.shape.translate(-origin[0], -origin[1]),
+            ..b.clone()
+        })
+        .collect();
+    let points = &local[..];
     let all_nn = mean(&nearest_distances(points)?)?;
-    let (windows, notes) = build_windows(points, all_nn, boundaries, &options.windows);
+    let (mut windows, notes) = build_windows(points, all_nn, &local_boundaries, &options.windows);
     let guard = options.guard.unwrap_or(all_nn);
     let mut results = Vec::new();
     let mut skipped = Vec::new();
@@ -207,6 +224,16 @@ pub fn run_audit(
         simulated_means.push(sim_means);
     }
     let flip = flip_entries(points.len(), all_nn, z_crit, &windows, &options.edges);
+    // Back to the caller's coordinates for outlines and rectangles.
+    for w in &mut windows {
+        if let Some(s) = &w.shape {
+            w.shape = Some(s.translate(origin[0], origin[1]));
+        }
+        if let Some(r) = &mut w.rectangle {
+            r.min = [r.min[0] + origin[0], r.min[1] + origin[1]];
+            r.max = [r.max[0] + origin[0], r.max[1] + origin[1]];
+        }
+    }
     let summary = summarise(&results, &windows, options.alpha);
     Some(Audit {
         n: points.len(),
@@ -226,6 +253,22 @@ pub fn run_audit(
         summary,
         simulated_means,
     })
+}
+
+/// A whole-numbered point near the middle of the data's bounding box.
+fn centre(points: &[Xy]) -> Xy {
+    let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
+    for p in points {
+        for k in 0..2 {
+            lo[k] = lo[k].min(p[k]);
+            hi[k] = hi[k].max(p[k]);
+        }
+    }
+    let mid = |k: usize| {
+        let m = ((lo[k] + hi[k]) / 2.0).round();
+        if m.is_finite() { m } else { 0.0 }
+    };
+    [mid(0), mid(1)]
 }
 
 /// The rows of one window: its observed statistics, its simulations and
