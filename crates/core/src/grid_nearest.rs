@@ -35,14 +35,15 @@ use crate::Xy;
 use crate::toroidal::Rect;
 use rayon::prelude::*;
 
-/// Target number of points per cell. About two keeps the 3 × 3 block that
-/// settles most queries small while leaving few cells empty (measured on
-/// the demo sweep; 1 and 3 were slower).
+/// Target number of points per cell. About one keeps the 3 × 3 block that
+/// settles most queries small without many empty cells to visit (counted
+/// in instructions on 143 uniform points: 0.7–1 did best of 0.5 to 4; see
+/// docs/performance.md).
 const POINTS_PER_CELL: f64 = 1.0;
 
 /// Average number of candidate checks per point (estimated from the cell
 /// counts over each cell's 3 × 3 block) above which the grid hands over to
-/// the R*-tree. CSR data at two points per cell needs about 20.
+/// the R*-tree. CSR data at one point per cell needs about 10.
 const WORK_PER_POINT: usize = 96;
 
 /// Point count from which queries are spread over threads (same rule as
@@ -73,7 +74,7 @@ pub struct Grid {
     walls_y: Vec<f64>,
     /// `nx` and `ny` as floats, for bucketing.
     limits: [f64; 2],
-    /// Start of each cell's run in `xs`/`ys` (`nx·ny + 1` entries).
+    /// Start of each cell's run in `sorted` (`nx·ny + 1` entries).
     start: Vec<usize>,
     /// The points sorted by cell.
     sorted: Vec<Xy>,
