@@ -48,6 +48,16 @@ pub enum CoordsArg {
     Lonlat,
 }
 
+impl From<CoordsArg> for patternproof_io::CoordChoice {
+    fn from(c: CoordsArg) -> Self {
+        match c {
+            CoordsArg::Auto => Self::Auto,
+            CoordsArg::Projected => Self::Projected,
+            CoordsArg::Lonlat => Self::LonLat,
+        }
+    }
+}
+
 /// Inputs shared by the commands that read one data set.
 #[derive(Debug, Args)]
 pub struct InputArgs {

@@ -1,6 +1,6 @@
 //! `patternproof audit`: load, sweep, write the report folder, print.
 
-use crate::args::{AuditArgs, CoordsArg, InputArgs};
+use crate::args::{AuditArgs, InputArgs};
 use crate::fail::Failure;
 use crate::progress::Progress;
 use patternproof_audit::window::{NamedShape, WindowOptions};
@@ -237,11 +237,7 @@ fn internal(e: std::io::Error) -> Failure {
 
 /// Load points and boundaries with the shared input flags.
 pub fn load(input: &InputArgs) -> Result<Dataset, Failure> {
-    let coords = match input.coords {
-        CoordsArg::Auto => CoordChoice::Auto,
-        CoordsArg::Projected => CoordChoice::Projected,
-        CoordsArg::Lonlat => CoordChoice::LonLat,
-    };
+    let coords = CoordChoice::from(input.coords);
     Ok(Dataset::load(
         &input.points,
         &input.boundaries,

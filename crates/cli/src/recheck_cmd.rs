@@ -105,11 +105,7 @@ pub fn run(a: &RecheckArgs) -> Result<(), Failure> {
     let f = figures(a)?;
     let data = match &a.points {
         Some(path) => {
-            let coords = match a.coords {
-                CoordsArg::Auto => CoordChoice::Auto,
-                CoordsArg::Projected => CoordChoice::Projected,
-                CoordsArg::Lonlat => CoordChoice::LonLat,
-            };
+            let coords = CoordChoice::from(a.coords);
             let options = LoadOptions {
                 coords,
                 unit: a.unit.clone(),

@@ -119,11 +119,7 @@ pub fn run(a: &SitesArgs) -> Result<(), Failure> {
 }
 
 fn coords(c: CoordsArg) -> CoordChoice {
-    match c {
-        CoordsArg::Auto => CoordChoice::Auto,
-        CoordsArg::Projected => CoordChoice::Projected,
-        CoordsArg::Lonlat => CoordChoice::LonLat,
-    }
+    CoordChoice::from(c)
 }
 
 fn load_sites(a: &SitesArgs) -> Result<(Vec<Loaded>, Vec<Dataset>), Failure> {
