@@ -255,8 +255,10 @@ pub fn run_audit(
     })
 }
 
-/// A whole-numbered point near the middle of the data's bounding box.
-fn centre(points: &[Xy]) -> Xy {
+/// A whole-numbered point near the middle of the data's bounding box:
+/// the origin of the local coordinates every computation works in (the
+/// shift by a whole number is exact).
+pub fn centre(points: &[Xy]) -> Xy {
     let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
     for p in points {
         for k in 0..2 {

@@ -130,6 +130,18 @@ pub struct AuditArgs {
     /// reruns give the same bytes).
     #[arg(long)]
     pub stamp: bool,
+    /// Also audit Ripley's K and the L function in every window (as
+    /// `patternproof scales` with its defaults), adding its files and a
+    /// section to `index.html`.
+    #[arg(long)]
+    pub scales: bool,
+    /// CSR simulations per window for the K envelope test of `--scales`.
+    #[arg(long, default_value_t = 199, value_name = "N")]
+    pub scales_sims: usize,
+    /// Largest distance of `--scales` (default: a quarter of the shorter
+    /// side of the bounding rectangle of the window where that side is smallest).
+    #[arg(long, value_name = "R", allow_hyphen_values = true)]
+    pub scales_rmax: Option<f64>,
     /// No progress bar.
     #[arg(long, short)]
     pub quiet: bool,

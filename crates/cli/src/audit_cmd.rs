@@ -3,16 +3,18 @@
 use crate::args::{AuditArgs, InputArgs};
 use crate::fail::Failure;
 use crate::progress::Progress;
+use crate::scales_cmd;
 use patternproof_audit::window::{NamedShape, WindowOptions};
 use patternproof_audit::{AuditOptions, BufferRule, Edge, run_audit};
 use patternproof_io::{CoordChoice, Dataset, LoadOptions};
 use patternproof_report::document::BoundarySource;
 use patternproof_report::document::{FileDigest, ReportProvenance};
-use patternproof_report::html::{self, Picture, Provenance};
+use patternproof_report::html::{self, Picture, Provenance, Section};
 use patternproof_report::{
     AuditReport, InputSummary, OutputFolder, markdown, outlines, sensitivity_plot, simulation_plot,
     table, window_map, write_folder_with,
 };
+use patternproof_scales::{ScalesOptions, ScalesRun};
 use sha2::Digest;
 
 /// Run the command.
@@ -38,6 +40,13 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
         return Err(Failure::Input(format!(
             "--concavity {}: must be a positive number\n  what to do: leave it out for geo's default 2.0",
             a.concavity
+        )));
+    }
+    if let Some(r) = a.scales_rmax
+        && !(r > 0.0 && r.is_finite())
+    {
+        return Err(Failure::Input(format!(
+            "--scales-rmax {r}: the largest distance must be a positive number in the data's unit\n  what to do: give e.g. --scales-rmax 40, or leave it out for a quarter of the window's shorter side"
         )));
     }
     let data = load(&a.input)?;
@@ -87,16 +96,39 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
     );
     let mut report = report;
     report.provenance = provenance(&data)?;
+    let scales = if a.scales {
+        let options = ScalesOptions {
+            rmax: a.scales_rmax,
+            sims: a.scales_sims,
+            seed: a.seed,
+            alpha: a.alpha,
+            ..ScalesOptions::default()
+        };
+        Some(scales_cmd::compute(
+            &data,
+            buffers.clone(),
+            a.concavity,
+            &options,
+            a.quiet,
+        )?)
+    } else {
+        None
+    };
     let choices = RenderChoices {
         picture_window: a.picture_window.clone(),
         no_map: a.no_map,
         stamp: a.stamp,
         protocol: None,
+        scales: scales.as_ref().map(|(run, _)| run.clone()),
     };
     let folder = render(&report, &data.points, data.projection.as_ref(), &choices)?;
     write_folder_with(&a.out, &folder, a.force).map_err(|e| Failure::Input(e.to_string()))?;
 
     print_summary(&report, &a.out, &folder);
+    if let Some((run, notes)) = &scales {
+        println!("\nRipley's K across the same windows (--scales):");
+        scales_cmd::print_lines(run, notes);
+    }
     Ok(())
 }
 
@@ -112,6 +144,9 @@ pub struct RenderChoices {
     pub stamp: bool,
     /// The protocol followed, in words (id and hash), if any.
     pub protocol: Option<String>,
+    /// The K audit of the same windows (`audit --scales`): its files join
+    /// the folder and its section the page.
+    pub scales: Option<ScalesRun>,
 }
 
 /// Every file of the report folder, rendered in memory first so that
@@ -198,9 +233,19 @@ pub fn render(
             .stamp
             .then(|| humantime::format_rfc3339_seconds(std::time::SystemTime::now()).to_string()),
     };
+    let mut sections = Vec::new();
+    if let Some(k) = &a.scales {
+        scales_cmd::add_files(&mut folder, k)?;
+        let svg = patternproof_scales::plot::scales_svg(k);
+        sections.push(Section {
+            id: "scales".into(),
+            title: "Ripley's K and L across the same windows".into(),
+            html: patternproof_scales::summary::html_section(k, svg.as_deref()),
+        });
+    }
     folder.add(
         "index.html",
-        html::index_html(report, &pictures, &run).into_bytes(),
+        html::index_html(report, &pictures, &sections, &run).into_bytes(),
     );
     Ok(folder)
 }

@@ -10,11 +10,16 @@ use crate::audit_cmd::{check_alpha, load, named_shapes, parse_buffers};
 use crate::fail::Failure;
 use crate::progress::Progress;
 use clap::Args;
-use patternproof_audit::window::{WindowOptions, build_windows};
+use geo::Translate;
+use patternproof_audit::BufferRule;
+use patternproof_audit::sweep::centre;
+use patternproof_audit::window::{NamedShape, WindowOptions, build_windows};
+use patternproof_core::Xy;
 use patternproof_core::nearest::{mean, nearest_distances};
+use patternproof_io::Dataset;
 use patternproof_report::{OutputFolder, write_folder_with};
 use patternproof_scales::summary;
-use patternproof_scales::{Correction, ScalesOptions, run_scales};
+use patternproof_scales::{Correction, ScalesOptions, ScalesRun, run_scales};
 use std::path::PathBuf;
 
 /// Largest accepted `--steps`.
@@ -137,26 +142,6 @@ pub fn run(a: &ScalesArgs) -> Result<(), Failure> {
         )));
     }
     let data = load(&a.input)?;
-    let points_file = a.input.points.display().to_string();
-    let mean_nn = nearest_distances(&data.points)
-        .and_then(|d| mean(&d))
-        .ok_or_else(|| {
-            Failure::Input(format!(
-                "{points_file}: K needs at least two points, the file has {}\n  what to do: check the point file",
-                data.points.len()
-            ))
-        })?;
-    let shapes = named_shapes(&data);
-    let (windows, notes) = build_windows(
-        &data.points,
-        mean_nn,
-        &shapes,
-        &WindowOptions {
-            buffers,
-            area: None,
-            concavity: a.concavity,
-        },
-    );
     let options = ScalesOptions {
         corrections,
         tested,
@@ -166,10 +151,72 @@ pub fn run(a: &ScalesArgs) -> Result<(), Failure> {
         seed: a.seed,
         alpha: a.alpha,
     };
-    let progress = Progress::new((a.sims * windows.len()) as u64, a.quiet, "simulating CSR");
-    let run = run_scales(&data.points, &windows, &data.unit, &options, &|| {
-        progress.tick()
-    });
+    let (run, notes) = compute(&data, buffers, a.concavity, &options, a.quiet)?;
+    let mut folder = OutputFolder::default();
+    add_files(&mut folder, &run)?;
+    write_folder_with(&a.out, &folder, a.force).map_err(|e| Failure::Input(e.to_string()))?;
+
+    for w in &data.warnings {
+        eprintln!("patternproof: warning: {w}");
+    }
+    print_lines(&run, &notes);
+    println!(
+        "\nwrote {} to {}",
+        folder.names().collect::<Vec<_>>().join(", "),
+        a.out.display()
+    );
+    Ok(())
+}
+
+/// The K audit of `data` in every window of the sweep, in coordinates
+/// centred on the data (as the nearest-neighbour audit), with a progress
+/// bar unless `quiet`. Also returns the window notes of the sweep.
+/// Shared by `scales` and `audit --scales`.
+pub fn compute(
+    data: &Dataset,
+    buffers: Vec<BufferRule>,
+    concavity: f64,
+    options: &ScalesOptions,
+    quiet: bool,
+) -> Result<(ScalesRun, Vec<String>), Failure> {
+    let points_file = data.points_file.display().to_string();
+    let origin = centre(&data.points);
+    let points: Vec<Xy> = data
+        .points
+        .iter()
+        .map(|p| [p[0] - origin[0], p[1] - origin[1]])
+        .collect();
+    let shapes: Vec<NamedShape> = named_shapes(data)
+        .into_iter()
+        .map(|b| NamedShape {
+            shape: b.shape.translate(-origin[0], -origin[1]),
+            ..b
+        })
+        .collect();
+    let mean_nn = nearest_distances(&points)
+        .and_then(|d| mean(&d))
+        .ok_or_else(|| {
+            Failure::Input(format!(
+                "{points_file}: K needs at least two points, the file has {}\n  what to do: check the point file",
+                points.len()
+            ))
+        })?;
+    let (windows, notes) = build_windows(
+        &points,
+        mean_nn,
+        &shapes,
+        &WindowOptions {
+            buffers,
+            area: None,
+            concavity,
+        },
+    );
+    let progress = Progress::new(
+        (options.sims * windows.len()) as u64,
+        quiet,
+        "simulating CSR for K",
+    );
+    let run = run_scales(&points, &windows, &data.unit, options, &|| progress.tick());
     progress.finish();
     if run.windows.is_empty() {
         let mut why: Vec<String> = notes.clone();
@@ -183,24 +230,28 @@ pub fn run(a: &ScalesArgs) -> Result<(), Failure> {
             why.join("; ")
         )));
     }
+    Ok((run, notes))
+}
 
-    let mut folder = OutputFolder::default();
-    let json = serde_json::to_vec_pretty(&run)
+/// The files of a K audit: scales.json, scales.csv, scales.md and the
+/// two pictures.
+pub fn add_files(folder: &mut OutputFolder, run: &ScalesRun) -> Result<(), Failure> {
+    let json = serde_json::to_vec_pretty(run)
         .map_err(|e| Failure::Internal(format!("could not write scales.json: {e}")))?;
     folder.add("scales.json", json);
-    folder.add("scales.csv", summary::csv(&run).into_bytes());
-    folder.add("scales.md", summary::markdown(&run).into_bytes());
-    if let Some(svg) = patternproof_scales::plot::scales_svg(&run) {
+    folder.add("scales.csv", summary::csv(run).into_bytes());
+    folder.add("scales.md", summary::markdown(run).into_bytes());
+    if let Some(svg) = patternproof_scales::plot::scales_svg(run) {
         folder.add("scales.svg", svg.into_bytes());
     }
-    if let Some(svg) = patternproof_scales::plot::corrections_svg(&run) {
+    if let Some(svg) = patternproof_scales::plot::corrections_svg(run) {
         folder.add("corrections.svg", svg.into_bytes());
     }
-    write_folder_with(&a.out, &folder, a.force).map_err(|e| Failure::Input(e.to_string()))?;
+    Ok(())
+}
 
-    for w in &data.warnings {
-        eprintln!("patternproof: warning: {w}");
-    }
+/// The terminal lines of a K audit.
+pub fn print_lines(run: &ScalesRun, notes: &[String]) {
     println!(
         "L(r) − r up to {} {} ({} steps; {}), {} CSR simulations per window, seed {}:",
         patternproof_scales::verdict::distance(run.rmax),
@@ -220,7 +271,7 @@ pub fn run(a: &ScalesArgs) -> Result<(), Failure> {
             r[0], r[1], r[2], r[3], r[4], r[5]
         );
     }
-    for n in &notes {
+    for n in notes {
         println!("note: {n}");
     }
     for s in &run.skipped {
@@ -237,10 +288,4 @@ pub fn run(a: &ScalesArgs) -> Result<(), Failure> {
     for c in &run.cautions {
         println!("  caution: {c}");
     }
-    println!(
-        "\nwrote {} to {}",
-        folder.names().collect::<Vec<_>>().join(", "),
-        a.out.display()
-    );
-    Ok(())
 }

@@ -297,6 +297,7 @@ fn outputs(
         no_map: a.no_map,
         stamp: false,
         protocol: Some(format!("{} (SHA-256 {hash})", a.protocol.display())),
+        scales: None,
     };
     let per_site: Vec<Result<Option<(String, OutputFolder)>, Failure>> = sites
         .par_iter()

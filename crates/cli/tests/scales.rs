@@ -157,3 +157,128 @@ fn bad_input_exits_2_with_advice() {
     assert_eq!(o.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&o.stderr).contains("no-such-file.csv"));
 }
+
+/// `audit --scales` runs the same K audit as `scales` with the audit's
+/// seed and α: identical scales.json bytes, its files in the audit folder,
+/// and a section of index.html with the verdict sentence and the picture.
+#[test]
+fn audit_with_scales_adds_the_same_k_audit() {
+    let root = repo();
+    let dir = tempfile::tempdir().unwrap();
+    let alone = dir.path().join("alone");
+    let o = scales(
+        &[
+            "--sims", "19", "--seed", "7", "--rmax", "12", "--steps", "10",
+        ],
+        &alone,
+        "2",
+    );
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let joint = dir.path().join("joint");
+    let o = Command::new(env!("CARGO_BIN_EXE_patternproof"))
+        .arg("audit")
+        .arg(root.join("demo-data/meadow-burrows.csv"))
+        .arg("--boundary")
+        .arg(root.join("demo-data/meadow-boundary.geojson"))
+        .args([
+            "--sims",
+            "39",
+            "--seed",
+            "7",
+            "--scales",
+            "--scales-sims",
+            "19",
+            "--scales-rmax",
+            "12",
+            "--quiet",
+            "--out",
+        ])
+        .arg(&joint)
+        .output()
+        .unwrap();
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let stdout = String::from_utf8_lossy(&o.stdout);
+    assert!(
+        stdout.contains("Ripley's K across the same windows"),
+        "{stdout}"
+    );
+    // --steps is fixed at the default 50 under audit: compare the windows'
+    // curves at the shared grid points r = 12·k/10 = 12·5k/50.
+    let a: serde_json::Value =
+        serde_json::from_slice(&std::fs::read(alone.join("scales.json")).unwrap()).unwrap();
+    let j: serde_json::Value =
+        serde_json::from_slice(&std::fs::read(joint.join("scales.json")).unwrap()).unwrap();
+    assert_eq!(j["r"].as_array().unwrap().len(), 50);
+    assert_eq!(j["sims"], 19);
+    let ids = |v: &serde_json::Value| -> Vec<String> {
+        v["windows"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|w| w["id"].as_str().unwrap().to_string())
+            .collect()
+    };
+    assert_eq!(ids(&a), ids(&j));
+    let report: serde_json::Value =
+        serde_json::from_slice(&std::fs::read(joint.join("report.json")).unwrap()).unwrap();
+    let audit_ids: Vec<String> = report["windows"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|w| w["id"].as_str().unwrap().to_string())
+        .collect();
+    assert_eq!(ids(&j), audit_ids, "the K audit covers the audit's windows");
+    for (wa, wj) in a["windows"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .zip(j["windows"].as_array().unwrap())
+    {
+        assert_eq!(wa["area"], wj["area"]);
+        for (ca, cj) in wa["curves"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .zip(wj["curves"].as_array().unwrap())
+        {
+            // Same pairs and weights; the cumulative sums group the bins
+            // differently, so allow the last bits.
+            for k in 0..10 {
+                let (x, y) = (
+                    ca["k"][k].as_f64().unwrap(),
+                    cj["k"][5 * k + 4].as_f64().unwrap(),
+                );
+                assert!(
+                    (x - y).abs() <= 1e-12 * x.abs(),
+                    "{} {}: {x} vs {y}",
+                    wa["id"],
+                    ca["correction"]
+                );
+            }
+        }
+    }
+    let page = std::fs::read_to_string(joint.join("index.html")).unwrap();
+    roxmltree::Document::parse_with_options(
+        &page,
+        roxmltree::ParsingOptions {
+            allow_dtd: true,
+            ..Default::default()
+        },
+    )
+    .expect("index.html is well-formed XML");
+    // Apostrophes are escaped as &#39; (HTML escaping of every string).
+    assert!(page.contains("<h2 id=\"scales\">Ripley&#39;s K and L across the same windows</h2>"));
+    let sentence = j["verdicts"][0]["sentence"]
+        .as_str()
+        .unwrap()
+        .replace('\'', "&#39;");
+    assert!(page.contains(&sentence), "{sentence}");
+    assert_eq!(
+        page.matches("<svg").count(),
+        4,
+        "three audit pictures and scales.svg"
+    );
+    for f in ["scales.csv", "scales.md", "scales.svg", "corrections.svg"] {
+        assert!(joint.join(f).is_file(), "{f}");
+    }
+}

@@ -23,6 +23,19 @@ pub struct Picture {
     pub caption: String,
 }
 
+/// A section made by another analysis of the same run (e.g. the K audit
+/// of `audit --scales`), placed after the flip statement. `html` is
+/// trusted markup: its maker escapes every user string with [`escape`].
+#[derive(Debug, Clone)]
+pub struct Section {
+    /// Anchor id (letters, digits and `-` only).
+    pub id: String,
+    /// Heading (escaped here).
+    pub title: String,
+    /// The body, already escaped markup.
+    pub html: String,
+}
+
 /// What the page says about how the run came about.
 #[derive(Debug, Clone, Default)]
 pub struct Provenance {
@@ -62,7 +75,12 @@ pre{white-space:pre-wrap;word-break:break-all;background:#f2f2f2;padding:.5em}\
 .caution{color:#5a3a00}@media print{figure{break-inside:avoid}}";
 
 /// Render the page.
-pub fn index_html(report: &AuditReport, pictures: &[Picture], provenance: &Provenance) -> String {
+pub fn index_html(
+    report: &AuditReport,
+    pictures: &[Picture],
+    sections: &[Section],
+    provenance: &Provenance,
+) -> String {
     let mut h = String::new();
     let i = &report.input;
     let u = escape(&i.unit);
@@ -220,6 +238,15 @@ pub fn index_html(report: &AuditReport, pictures: &[Picture], provenance: &Prove
     }
     h.push_str("</ul>\n");
 
+    for sec in sections {
+        let id: String = sec
+            .id
+            .chars()
+            .filter(|c| c.is_ascii_alphanumeric() || *c == '-')
+            .collect();
+        let _ = writeln!(h, "<h2 id=\"{id}\">{}</h2>\n{}", e(&sec.title), sec.html);
+    }
+
     // Methods.
     let _ = writeln!(
         h,
@@ -266,7 +293,7 @@ pub fn index_html(report: &AuditReport, pictures: &[Picture], provenance: &Prove
 }
 
 /// Inline SVG must not carry an XML declaration.
-fn strip_xml_declaration(svg: &str) -> &str {
+pub fn strip_xml_declaration(svg: &str) -> &str {
     let t = svg.trim_start();
     if t.starts_with("<?xml") {
         t.find("?>").map_or(t, |k| t[k + 2..].trim_start())
