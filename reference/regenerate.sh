@@ -1,5 +1,6 @@
 #!/usr/bin/env bash
-# Rebuild reference/values.json with the pinned reference libraries.
+# Rebuild reference/values.json (and the other reference JSON files and
+# GeoPackage fixtures) with the pinned reference libraries.
 # Exits non-zero on any failure; callers fall back to the committed values.json.
 set -euo pipefail
 here="$(cd "$(dirname "${BASH_SOURCE[0]}")" && pwd)"
@@ -11,3 +12,4 @@ fi
 "$venv/bin/python" "$here/make_reference.py"
 "$venv/bin/python" "$here/make_scales_reference.py"
 "$venv/bin/python" "$here/make_density_reference.py"
+"$venv/bin/python" "$here/make_gpkg_reference.py"

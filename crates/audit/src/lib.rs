@@ -4,6 +4,7 @@
 //! | module | job |
 //! |---|---|
 //! | [`window`] | builds the study-area variants (`bbox`, `hull`, `hull+D`, `concave`, `boundary`, `area`) |
+//! | [`cover`] | which points a window covers: geo's point-in-polygon answer from edges bucketed by height |
 //! | [`edge`] | the edge-handling choices as one enum |
 //! | [`sampling`] | exact uniform points in a polygon with holes (for simulations) |
 //! | [`streams`] | per-simulation random streams derived from one seed |
@@ -17,6 +18,7 @@
 //! [`sweep`], and its tests; a new window kind is one more
 //! [`window::WindowKind`] and a builder in [`window`].
 
+pub mod cover;
 pub mod curves;
 pub mod edge;
 pub mod flip;

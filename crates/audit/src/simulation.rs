@@ -42,6 +42,17 @@ pub fn measure(points: &[Xy], m: Measure<'_>) -> Option<PatternStats> {
     measure_with(points, m, &mut Distances::new())
 }
 
+/// [`measure`] for a pattern whose plain nearest-neighbour distances
+/// `plane` (input order) are already known; no torus distances (`m` must
+/// not ask for them). `None` for fewer than two points or a length
+/// mismatch.
+pub fn measure_known(points: &[Xy], m: Measure<'_>, plane: &[f64]) -> Option<PatternStats> {
+    if points.len() < 2 || plane.len() != points.len() || m.rectangle.is_some() {
+        return None;
+    }
+    Some(stats_from(points, m, plane, &[]))
+}
+
 /// [`measure`] with the distance buffers supplied by the caller, so a loop
 /// over many patterns reuses them instead of allocating per pattern.
 fn measure_with(points: &[Xy], m: Measure<'_>, ws: &mut Distances) -> Option<PatternStats> {
@@ -49,8 +60,13 @@ fn measure_with(points: &[Xy], m: Measure<'_>, ws: &mut Distances) -> Option<Pat
     if !ws.measure(points, m.rectangle) {
         return None;
     }
-    let d = &ws.plane;
-    let mean_nn = mean(d)?;
+    Some(stats_from(points, m, &ws.plane, &ws.torus))
+}
+
+/// The statistics from the plain distances `d` and the torus distances
+/// (empty when not measured).
+fn stats_from(points: &[Xy], m: Measure<'_>, d: &[f64], torus: &[f64]) -> PatternStats {
+    let mean_nn = mean(d).unwrap_or(f64::NAN);
     let border = match (m.outline, m.guard) {
         (Some(outline), Some(w)) => {
             // A focal point's neighbour may be any point, so its distance is
@@ -75,12 +91,12 @@ fn measure_with(points: &[Xy], m: Measure<'_>, ws: &mut Distances) -> Option<Pat
         }
         _ => None,
     };
-    let torus_mean = mean(&ws.torus);
-    Some(PatternStats {
+    let torus_mean = mean(torus);
+    PatternStats {
         mean_nn,
         border,
         torus_mean,
-    })
+    }
 }
 
 /// `sims` CSR patterns of `n` points in the sampler's window, measured.

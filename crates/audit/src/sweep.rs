@@ -11,7 +11,7 @@ use crate::edge::Edge;
 use crate::flip::{FlipEntry, flip_entries};
 use crate::robustness::{Summary, summarise};
 use crate::sampling::Sampler;
-use crate::simulation::{Measure, PatternStats, measure, simulate};
+use crate::simulation::{Measure, PatternStats, measure, measure_known, simulate};
 use crate::window::{NamedShape, Outline, Window, WindowKind, WindowOptions, build_windows};
 use geo::Translate;
 use patternproof_core::monte_carlo::{quantile, two_sided_rank_p};
@@ -210,7 +210,8 @@ pub fn run_audit(
         })
         .collect();
     let points = &local[..];
-    let all_nn = mean(&nearest_distances(points)?)?;
+    let all_distances = nearest_distances(points)?;
+    let all_nn = mean(&all_distances)?;
     let (mut windows, notes) = build_windows(points, all_nn, &local_boundaries, &options.windows);
     let guard = options.guard.unwrap_or(all_nn);
     let mut results = Vec::new();
@@ -218,7 +219,11 @@ pub fn run_audit(
     let mut simulated_means = Vec::new();
 
     for w in &windows {
-        let (rows, skips, sim_means) = window_rows(points, w, guard, options, tick);
+        // A window that covers every point sees the same pattern, so its
+        // plain distances are the ones just measured (same engine, same
+        // bits): only its torus distances, if any, need a new search.
+        let known = (w.inside.len() == points.len()).then_some(&all_distances[..]);
+        let (rows, skips, sim_means) = rows_of_window(points, w, guard, options, tick, known);
         results.extend(rows);
         skipped.extend(skips);
         simulated_means.push(sim_means);
@@ -283,6 +288,19 @@ pub fn window_rows(
     options: &AuditOptions,
     tick: &(dyn Fn() + Sync),
 ) -> (Vec<ResultRow>, Vec<Skipped>, Vec<f64>) {
+    rows_of_window(points, w, guard, options, tick, None)
+}
+
+/// [`window_rows`], given the plain nearest-neighbour distances of the
+/// window's points when they are already known.
+fn rows_of_window(
+    points: &[Xy],
+    w: &Window,
+    guard: f64,
+    options: &AuditOptions,
+    tick: &(dyn Fn() + Sync),
+    known: Option<&[f64]>,
+) -> (Vec<ResultRow>, Vec<Skipped>, Vec<f64>) {
     let alpha = options.alpha;
     let mut rows = Vec::new();
     let mut skips = Vec::new();
@@ -291,7 +309,12 @@ pub fn window_rows(
         edge,
         reason: reason.to_string(),
     };
-    let used: Vec<Xy> = w.inside.iter().map(|&i| points[i]).collect();
+    // A window that covers every point uses them as they are (no copy).
+    let used: std::borrow::Cow<[Xy]> = if w.inside.len() == points.len() {
+        std::borrow::Cow::Borrowed(points)
+    } else {
+        std::borrow::Cow::Owned(w.inside.iter().map(|&i| points[i]).collect())
+    };
     let n = used.len();
     if n < 2 {
         for &e in &options.edges {
@@ -314,7 +337,11 @@ pub fn window_rows(
             None
         },
     };
-    let Some(observed) = measure(&used, m) else {
+    let observed = match known {
+        Some(d) if m.rectangle.is_none() => measure_known(&used, m, d),
+        _ => measure(&used, m),
+    };
+    let Some(observed) = observed else {
         return (rows, skips, Vec::new());
     };
     let sims: Vec<PatternStats> = match (&w.shape, options.sims) {

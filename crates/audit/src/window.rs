@@ -14,8 +14,8 @@
 
 use geo::algorithm::Buffer;
 use geo::{
-    Area, BoundingRect, ConcaveHull, ConvexHull, Coord, Euclidean, Intersects, Length, LineString,
-    MultiPoint, MultiPolygon, Point, Polygon, Rect as GeoRect,
+    Area, BoundingRect, ConcaveHull, ConvexHull, Euclidean, Length, LineString, MultiPoint,
+    MultiPolygon, Point, Polygon, Rect as GeoRect,
 };
 use patternproof_core::Xy;
 use patternproof_core::toroidal::Rect;
@@ -181,6 +181,7 @@ pub fn build_windows(
                 MultiPolygon::new(vec![r.to_polygon()]),
                 Some(rect),
                 points,
+                Coverage::All,
             ));
         }
         _ => notes.push(
@@ -200,6 +201,7 @@ pub fn build_windows(
             hull_shape,
             None,
             points,
+            Coverage::All,
         ));
         let distances: Vec<f64> = options
             .buffers
@@ -222,6 +224,7 @@ pub fn build_windows(
                 buffered,
                 None,
                 points,
+                buffered_coverage(&hull, d),
             ));
         }
         let concave = multipoint.concave_hull_with_options(
@@ -239,6 +242,7 @@ pub fn build_windows(
                 MultiPolygon::new(vec![concave]),
                 None,
                 points,
+                Coverage::Test,
             ));
         } else {
             notes.push("concave skipped: the concave hull has zero area".into());
@@ -263,6 +267,7 @@ pub fn build_windows(
             b.shape.clone(),
             rect,
             points,
+            Coverage::Test,
         );
         if windows.iter().any(|o| o.id == w.id) {
             w.id = format!("{}#{}", w.id, windows.len());
@@ -287,6 +292,21 @@ pub fn build_windows(
     (windows, notes)
 }
 
+/// How a window learns which points it covers.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Coverage {
+    /// Every point, by construction: the bounding rectangle (its sides are
+    /// the extreme coordinates), the convex hull (geo builds it with exact
+    /// orientation tests, so every point is inside or on it) and a buffered
+    /// hull whose buffer clears the hull by far more than rounding.
+    All,
+    /// Test each point ([`crate::cover::Cover`], geo's answer without
+    /// rescanning the outline per point). Concave hulls are tested too:
+    /// geo's digging step does not promise to keep every point inside.
+    Test,
+}
+
+#[allow(clippy::too_many_arguments)] // one call per window kind, all named
 fn from_shape(
     id: &str,
     kind: WindowKind,
@@ -295,15 +315,14 @@ fn from_shape(
     shape: MultiPolygon<f64>,
     rectangle: Option<Rect>,
     points: &[Xy],
+    coverage: Coverage,
 ) -> Window {
     // Intersects counts points on the outline as inside: hull vertices are
     // data points and must be covered by their own hull.
-    let inside: Vec<usize> = points
-        .iter()
-        .enumerate()
-        .filter(|(_, p)| shape.intersects(&Coord { x: p[0], y: p[1] }))
-        .map(|(i, _)| i)
-        .collect();
+    let inside: Vec<usize> = match coverage {
+        Coverage::All => (0..points.len()).collect(),
+        Coverage::Test => crate::cover::Cover::new(&shape).covered(points),
+    };
     Window {
         id: id.to_string(),
         kind,
@@ -315,6 +334,27 @@ fn from_shape(
         shape: Some(shape),
         rectangle,
         inside,
+    }
+}
+
+/// [`Coverage::All`] for a buffer of `d` around the convex `hull` when `d`
+/// is at least a millionth of the hull's size: geo's buffer rounds its
+/// outline to about a billionth of the extent, and its chords stay within
+/// d·(1 − cos 0.2) of the exact offset, so the outline keeps more than
+/// 0.9·d from every hull point. A smaller buffer is tested point by point.
+fn buffered_coverage(hull: &Polygon<f64>, d: f64) -> Coverage {
+    let Some(r) = hull.bounding_rect() else {
+        return Coverage::Test;
+    };
+    let size = r.width()
+        + r.height()
+        + [r.min().x, r.min().y, r.max().x, r.max().y]
+            .iter()
+            .fold(0.0f64, |m, v| m.max(v.abs()));
+    if d.is_finite() && d >= 1e-6 * size {
+        Coverage::All
+    } else {
+        Coverage::Test
     }
 }
 
@@ -470,9 +510,12 @@ mod tests {
             (state.wrapping_mul(0x2545_F491_4F6C_DD1D) >> 11) as f64 / (1u64 << 53) as f64
         };
         let plain = Outline::new(&shape, None);
-        for w in [0.6, 2.5, 9.0] {
+        // 0.01 would need 10⁸ cells of w/2: the grid gets wider cells
+        // (more than w across, so none is blocked outright) instead.
+        for w in [0.6, 2.5, 9.0, 0.01] {
             let o = Outline::new(&shape, Some(w));
-            assert!(o.grid.is_some());
+            let g = o.grid.as_ref().expect("guard grid");
+            assert!(w > 0.1 || g.cell > w, "{w} {}", g.cell);
             for _ in 0..3_000 {
                 let p = [unit() * 130.0 - 65.0, unit() * 130.0 - 65.0];
                 let want = distance_to_outline(&shape, p) >= w;
@@ -537,12 +580,13 @@ struct GuardGrid {
     state: Vec<u8>,
     /// For cell c, its candidate segments are
     /// `segments[near[c]..near[c + 1]]` (empty unless state is 0).
-    near: Vec<usize>,
+    near: Vec<u32>,
     segments: Vec<rstar::primitives::Line<Xy>>,
 }
 
-/// Largest grid the guard test builds (cells).
-const MAX_GUARD_CELLS: usize = 4_000_000;
+/// Largest grid the guard test builds (cells); a larger window gets wider
+/// cells instead (more of them undecided, the answers just as exact).
+const MAX_GUARD_CELLS: f64 = 1_048_576.0;
 
 impl Outline {
     /// Index every ring edge of `shape`; with `guard` = Some(w), also
@@ -565,22 +609,62 @@ impl Outline {
         };
         if let (Some(w), Some(r)) = (guard, shape.bounding_rect())
             && w > 0.0
+            && w.is_finite()
         {
-            let cell = w / 2.0;
+            let cell = (w / 2.0).max((r.width() * r.height() / MAX_GUARD_CELLS).sqrt());
             let nx = (r.width() / cell).ceil() as usize + 1;
             let ny = (r.height() / cell).ceil() as usize + 1;
-            if nx.saturating_mul(ny) <= MAX_GUARD_CELLS {
+            if nx.saturating_mul(ny) <= 2 * MAX_GUARD_CELLS as usize
+                && outline.tree.size() < u32::MAX as usize / 4
+            {
                 let h = cell * std::f64::consts::FRAC_1_SQRT_2;
                 let origin = [r.min().x, r.min().y];
-                let mut state = Vec::with_capacity(nx * ny);
-                let mut near = Vec::with_capacity(nx * ny + 1);
-                let mut segments = Vec::new();
-                near.push(0);
                 // Any point of the cell is within h of its centre (1.5·h
                 // leaves room for rounding at the cell walls).
                 let reach = w + 1.5 * h;
+                // Only cells whose centre lies within `reach` of some
+                // segment's bounding box can be anything but clear: a centre
+                // farther than that from every segment puts every point of
+                // the cell more than w + h/2 from the outline.
+                let mut near_outline = vec![false; nx * ny];
+                let index = |v: f64, o: f64, count: usize| -> usize {
+                    // Centre i sits at o + (i + 0.5)·cell.
+                    let t = ((v - o) / cell - 0.5).floor();
+                    if t <= 0.0 {
+                        0
+                    } else {
+                        (t as usize).min(count - 1)
+                    }
+                };
+                for line in outline.tree.iter() {
+                    let (a, b) = (line.from, line.to);
+                    let (x0, x1) = (a[0].min(b[0]) - reach, a[0].max(b[0]) + reach);
+                    let (y0, y1) = (a[1].min(b[1]) - reach, a[1].max(b[1]) + reach);
+                    // One cell of slack on each side for the rounding of
+                    // the index itself.
+                    let (i0, i1) = (
+                        index(x0, origin[0], nx).saturating_sub(1),
+                        (index(x1, origin[0], nx) + 2).min(nx - 1),
+                    );
+                    let (j0, j1) = (
+                        index(y0, origin[1], ny).saturating_sub(1),
+                        (index(y1, origin[1], ny) + 2).min(ny - 1),
+                    );
+                    for j in j0..=j1 {
+                        near_outline[j * nx + i0..=j * nx + i1].fill(true);
+                    }
+                }
+                let mut state = Vec::with_capacity(nx * ny);
+                let mut near = Vec::with_capacity(nx * ny + 1);
+                let mut segments = Vec::new();
+                near.push(0u32);
                 for j in 0..ny {
                     for i in 0..nx {
+                        if !near_outline[j * nx + i] {
+                            state.push(1);
+                            near.push(segments.len() as u32);
+                            continue;
+                        }
                         let c = [
                             origin[0] + (i as f64 + 0.5) * cell,
                             origin[1] + (j as f64 + 0.5) * cell,
@@ -602,19 +686,21 @@ impl Outline {
                             );
                         }
                         state.push(s);
-                        near.push(segments.len());
+                        near.push(segments.len() as u32);
                     }
                 }
-                outline.grid = Some(GuardGrid {
-                    w,
-                    origin,
-                    cell,
-                    nx,
-                    ny,
-                    state,
-                    near,
-                    segments,
-                });
+                if segments.len() < u32::MAX as usize {
+                    outline.grid = Some(GuardGrid {
+                        w,
+                        origin,
+                        cell,
+                        nx,
+                        ny,
+                        state,
+                        near,
+                        segments,
+                    });
+                }
             }
         }
         outline
@@ -643,7 +729,7 @@ impl Outline {
                     1 => true,
                     2 => false,
                     // Strictly closer than w disqualifies.
-                    _ => !g.segments[g.near[c]..g.near[c + 1]]
+                    _ => !g.segments[g.near[c] as usize..g.near[c + 1] as usize]
                         .iter()
                         .any(|line| line.distance_2(&p) < w * w),
                 };

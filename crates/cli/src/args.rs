@@ -61,12 +61,21 @@ impl From<CoordsArg> for patternproof_io::CoordChoice {
 /// Inputs shared by the commands that read one data set.
 #[derive(Debug, Args)]
 pub struct InputArgs {
-    /// Point file: CSV (columns x,y / easting,northing / lon,lat / longitude,latitude) or GeoJSON.
+    /// Point file: CSV (columns x,y / easting,northing / lon,lat / longitude,latitude), GeoJSON or GeoPackage (.gpkg).
     #[arg(value_name = "POINTS")]
     pub points: PathBuf,
-    /// A study-area boundary (GeoJSON Polygon/MultiPolygon or WKT); repeat for several.
+    /// A study-area boundary (GeoJSON Polygon/MultiPolygon, WKT or GeoPackage); repeat for several.
     #[arg(long = "boundary", value_name = "FILE")]
     pub boundaries: Vec<PathBuf>,
+    /// GeoPackage point layer to read (needed when the file holds more than one feature layer).
+    #[arg(long, value_name = "NAME")]
+    pub layer: Option<String>,
+    /// GeoPackage polygon layer of the `--boundary` GeoPackage files.
+    #[arg(long, value_name = "NAME")]
+    pub boundary_layer: Option<String>,
+    /// Keep only the GeoPackage points whose column FIELD equals VALUE (e.g. `--where year=2024`).
+    #[arg(long = "where", value_name = "FIELD=VALUE")]
+    pub filter: Option<String>,
     /// How to read coordinates.
     #[arg(long, value_enum, default_value_t = CoordsArg::Auto)]
     pub coords: CoordsArg,

@@ -121,7 +121,8 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
         protocol: None,
         scales: scales.as_ref().map(|(run, _)| run.clone()),
     };
-    let folder = render(&report, &data.points, data.projection.as_ref(), &choices)?;
+    let mut folder = render(&report, &data.points, data.projection.as_ref(), &choices)?;
+    folder.add("windows.gpkg", windows_gpkg(&report, &data, a.stamp)?);
     write_folder_with(&a.out, &folder, a.force).map_err(|e| Failure::Input(e.to_string()))?;
 
     print_summary(&report, &a.out, &folder);
@@ -291,8 +292,41 @@ pub fn load(input: &InputArgs) -> Result<Dataset, Failure> {
             unit: input.unit.clone(),
             drop_duplicates: input.drop_duplicates,
             field: None,
+            gpkg: gpkg_choice(
+                input.layer.clone(),
+                input.boundary_layer.clone(),
+                input.filter.as_deref(),
+            )?,
         },
     )?)
+}
+
+/// `--layer`, `--boundary-layer` and `--where` as the reader wants them.
+pub fn gpkg_choice(
+    layer: Option<String>,
+    boundary_layer: Option<String>,
+    filter: Option<&str>,
+) -> Result<patternproof_io::GpkgChoice, Failure> {
+    Ok(patternproof_io::GpkgChoice {
+        layer,
+        boundary_layer,
+        filter: filter
+            .map(patternproof_io::geopackage::parse_filter)
+            .transpose()
+            .map_err(Failure::Input)?,
+    })
+}
+
+/// `windows.gpkg`: the outlines in the plane the report measured them in.
+/// `last_change` is fixed unless `--stamp` asks for the time of the run.
+pub fn windows_gpkg(report: &AuditReport, data: &Dataset, stamp: bool) -> Result<Vec<u8>, Failure> {
+    let last_change = if stamp {
+        humantime::format_rfc3339_millis(std::time::SystemTime::now()).to_string()
+    } else {
+        patternproof_gpkg::write::FIXED_LAST_CHANGE.to_string()
+    };
+    patternproof_report::windows_gpkg::windows_gpkg(report, &data.plane_srs(), &last_change)
+        .map_err(|e| Failure::Internal(format!("could not write windows.gpkg in memory: {e}")))
 }
 
 /// The boundaries as the audit wants them.
@@ -310,7 +344,10 @@ pub fn named_shapes(data: &Dataset) -> Vec<NamedShape> {
 /// What the report says about the input.
 pub fn input_summary(data: &Dataset) -> InputSummary {
     InputSummary {
-        points_file: data.points_file.display().to_string(),
+        points_file: match &data.layer {
+            Some(layer) => format!("{} ({layer})", data.points_file.display()),
+            None => data.points_file.display().to_string(),
+        },
         n: data.points.len(),
         n_read: data.n_read,
         duplicates: data.duplicates,

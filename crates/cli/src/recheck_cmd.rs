@@ -111,6 +111,7 @@ pub fn run(a: &RecheckArgs) -> Result<(), Failure> {
                 unit: a.unit.clone(),
                 drop_duplicates: a.drop_duplicates,
                 field: None,
+                gpkg: Default::default(),
             };
             Some(Dataset::load(path, &a.boundaries, &options)?)
         }

@@ -25,9 +25,15 @@ pub struct SitesArgs {
     /// Point files, one per site (the file stem is the site name), or one file with --site-field.
     #[arg(value_name = "INPUT", required = true)]
     pub inputs: Vec<PathBuf>,
-    /// Column (CSV) or property (GeoJSON) naming each point's site, for one file holding all sites.
+    /// Column (CSV, GeoPackage) or property (GeoJSON) naming each point's site, for one file holding all sites.
     #[arg(long, value_name = "NAME")]
     pub site_field: Option<String>,
+    /// GeoPackage point layer to read from each input (needed when a file holds more than one feature layer).
+    #[arg(long, value_name = "NAME")]
+    pub layer: Option<String>,
+    /// Keep only the GeoPackage points whose column FIELD equals VALUE (e.g. `--where year=2024`).
+    #[arg(long = "where", value_name = "FIELD=VALUE")]
+    pub filter: Option<String>,
     /// GeoJSON FeatureCollection with one boundary per site, matched by name.
     #[arg(long, value_name = "FILE")]
     pub boundaries: Option<PathBuf>,
@@ -123,11 +129,13 @@ fn coords(c: CoordsArg) -> CoordChoice {
 }
 
 fn load_sites(a: &SitesArgs) -> Result<(Vec<Loaded>, Vec<Dataset>), Failure> {
+    let gpkg = crate::audit_cmd::gpkg_choice(a.layer.clone(), None, a.filter.as_deref())?;
     let options = |field: Option<String>| LoadOptions {
         coords: coords(a.coords),
         unit: a.unit.clone(),
         drop_duplicates: a.drop_duplicates,
         field,
+        gpkg: gpkg.clone(),
     };
     let mut sites: Vec<Loaded> = Vec::new();
     let mut datasets: Vec<Dataset> = Vec::new();

@@ -41,6 +41,10 @@ use rayon::prelude::*;
 /// docs/performance.md).
 const POINTS_PER_CELL: f64 = 1.0;
 
+/// Finest grid tried when the cells overfill: this many cells per point
+/// at most (clusters then get cells of their own size, up to a point).
+const MAX_CELLS_PER_POINT: f64 = 16.0;
+
 /// Average number of candidate checks per point (estimated from the cell
 /// counts over each cell's 3 × 3 block) above which the grid hands over to
 /// the R*-tree. CSR data at one point per cell needs about 10.
@@ -74,15 +78,14 @@ pub struct Grid {
     walls_y: Vec<f64>,
     /// `nx` and `ny` as floats, for bucketing.
     limits: [f64; 2],
-    /// Start of each cell's run in `sorted` (`nx·ny + 1` entries).
-    start: Vec<usize>,
+    /// Start of each cell's run in `sorted` (`nx·ny + 1` entries; 32
+    /// bits, so a finer grid for clustered data stays affordable).
+    start: Vec<u32>,
     /// The points sorted by cell.
     sorted: Vec<Xy>,
     /// Position of each input point in the sorted order, so a query skips
     /// itself by position instead of testing every candidate's index.
     slot: Vec<usize>,
-    /// Next free slot per cell while sorting (kept to reuse its buffer).
-    fill: Vec<usize>,
     /// Number of points indexed.
     n: usize,
 }
@@ -104,7 +107,7 @@ impl Grid {
         self.n = 0;
         self.period = None;
         let n = points.len();
-        if n < 2 {
+        if n < 2 || n > u32::MAX as usize {
             return false;
         }
         let mut lo = [f64::INFINITY; 2];
@@ -158,52 +161,68 @@ impl Grid {
             }
         }
 
-        let (nx, ny) = grid_shape(n, extent);
-        self.origin = origin;
-        self.nx = nx;
-        self.ny = ny;
-        self.limits = [nx as f64, ny as f64];
-        self.cell = [extent[0] / self.limits[0], extent[1] / self.limits[1]];
+        // About one point per cell; when clusters overfill the cells, a
+        // grid 4 and then 16 times finer, and the tree beyond that.
+        let mut per_cell = if n >= SAMPLE_FROM {
+            sampled_density(points, origin, extent)
+        } else {
+            POINTS_PER_CELL
+        };
+        let cells = loop {
+            let (nx, ny) = grid_shape(n, extent, per_cell);
+            self.origin = origin;
+            self.nx = nx;
+            self.ny = ny;
+            self.limits = [nx as f64, ny as f64];
+            self.cell = [extent[0] / self.limits[0], extent[1] / self.limits[1]];
+            let cells = nx * ny;
+            self.start.clear();
+            self.start.resize(cells + 1, 0);
+            self.cell_of.clear();
+            let mut fullest = 0;
+            for p in points {
+                let (col, row) = (self.column_of(p[0]), self.row_of(p[1]));
+                let c = row * nx + col;
+                self.cell_of.push([col, row, c]);
+                self.start[c + 1] += 1;
+                fullest = fullest.max(self.start[c + 1] as usize);
+            }
+            // Each point checks at most 9 · fullest candidates in its 3 × 3
+            // block, so the full estimate is needed only past that.
+            if !(9 * fullest > WORK_PER_POINT && self.too_full(n)) {
+                break cells;
+            }
+            per_cell /= 4.0;
+            if per_cell < 1.0 / MAX_CELLS_PER_POINT || cells >= n.saturating_mul(8) {
+                self.start.clear();
+                self.cell_of.clear();
+                return false;
+            }
+        };
+        let (nx, ny) = (self.nx, self.ny);
         self.walls_x.clear();
         self.walls_x
             .extend((0..=nx).map(|k| origin[0] + k as f64 * self.cell[0]));
         self.walls_y.clear();
         self.walls_y
             .extend((0..=ny).map(|k| origin[1] + k as f64 * self.cell[1]));
-
-        let cells = nx * ny;
-        self.start.clear();
-        self.start.resize(cells + 1, 0);
-        self.cell_of.clear();
-        let mut fullest = 0;
-        for p in points {
-            let (col, row) = (self.column_of(p[0]), self.row_of(p[1]));
-            let c = row * nx + col;
-            self.cell_of.push([col, row, c]);
-            self.start[c + 1] += 1;
-            fullest = fullest.max(self.start[c + 1]);
-        }
-        // Each point checks at most 9 · fullest candidates in its 3 × 3
-        // block, so the full estimate is needed only past that.
-        if 9 * fullest > WORK_PER_POINT && self.too_full(n) {
-            return false;
-        }
         for c in 0..cells {
             self.start[c + 1] += self.start[c];
         }
-        // Counting sort; `fill` walks each cell's run from its start.
+        // Counting sort, points of a cell in input order: `start[c]` serves
+        // as the cell's fill cursor, then everything moves back one place.
         self.sorted.clear();
         self.sorted.resize(n, [0.0, 0.0]);
         self.slot.clear();
         self.slot.resize(n, 0);
-        self.fill.clear();
-        self.fill.extend_from_slice(&self.start[..cells]);
         for (i, (p, &[_, _, c])) in points.iter().zip(&self.cell_of).enumerate() {
-            let at = self.fill[c];
+            let at = self.start[c] as usize;
             self.sorted[at] = *p;
             self.slot[i] = at;
-            self.fill[c] += 1;
+            self.start[c] += 1;
         }
+        self.start.copy_within(0..cells, 1);
+        self.start[0] = 0;
         self.n = n;
         true
     }
@@ -238,12 +257,8 @@ impl Grid {
                     .map(|(i, p)| self.plane_nearest(i, *p).sqrt()),
             );
         } else {
-            out.par_extend(
-                points
-                    .par_iter()
-                    .enumerate()
-                    .map(|(i, p)| self.plane_nearest(i, *p).sqrt()),
-            );
+            let d = self.in_cell_order(|s, p, ci, cj| self.plane_nearest_at(s, p, ci, cj));
+            out.par_extend(self.slot.par_iter().map(|&s| d[s]));
         }
         true
     }
@@ -267,14 +282,28 @@ impl Grid {
                     .map(|(i, p)| self.torus_nearest(i, *p, period).sqrt()),
             );
         } else {
-            out.par_extend(
-                points
-                    .par_iter()
-                    .enumerate()
-                    .map(|(i, p)| self.torus_nearest(i, *p, period).sqrt()),
-            );
+            let d = self.in_cell_order(|s, p, ci, cj| self.torus_nearest_at(s, p, ci, cj, period));
+            out.par_extend(self.slot.par_iter().map(|&s| d[s]));
         }
         true
+    }
+
+    /// `query` (a squared distance) for every point, square-rooted, in
+    /// sorted order: cell by cell, rows in parallel, so that consecutive
+    /// queries read neighbouring memory. Each value depends only on its
+    /// point, so the order changes no bit of the result.
+    fn in_cell_order(&self, query: impl Fn(usize, Xy, usize, usize) -> f64 + Sync) -> Vec<f64> {
+        let nx = self.nx;
+        (0..self.ny)
+            .into_par_iter()
+            .flat_map_iter(|j| {
+                let query = &query;
+                (0..nx).flat_map(move |i| {
+                    let (from, to) = self.span(j, i, i);
+                    (from..to).map(move |s| query(s, self.sorted[s], i, j).sqrt())
+                })
+            })
+            .collect()
     }
 
     fn column_of(&self, x: f64) -> usize {
@@ -290,7 +319,7 @@ impl Grid {
     /// count of cell `c` when this is called.
     fn too_full(&self, n: usize) -> bool {
         let (nx, ny) = (self.nx, self.ny);
-        let count = |i: usize, j: usize| self.start[j * nx + i + 1];
+        let count = |i: usize, j: usize| self.start[j * nx + i + 1] as usize;
         let mut work = 0usize;
         for j in 0..ny {
             for i in 0..nx {
@@ -313,7 +342,12 @@ impl Grid {
     /// Squared distance from point `i` at `p` to its nearest other point.
     fn plane_nearest(&self, i: usize, p: Xy) -> f64 {
         let [ci, cj, _] = self.cell_of[i];
-        let own = self.slot[i];
+        self.plane_nearest_at(self.slot[i], p, ci, cj)
+    }
+
+    /// Squared distance from the point at sorted position `own` (at `p`,
+    /// in cell (ci, cj)) to its nearest other point.
+    fn plane_nearest_at(&self, own: usize, p: Xy, ci: usize, cj: usize) -> f64 {
         let mut best = f64::INFINITY;
         let scan = |run: (usize, usize), best: f64| {
             self.others(run, own, best, |points, best| closest_in(points, p, best))
@@ -381,13 +415,18 @@ impl Grid {
     /// Squared torus distance from point `i` at `p` to its nearest other
     /// point, `period` = [w, h].
     fn torus_nearest(&self, i: usize, p: Xy, period: [f64; 2]) -> f64 {
+        let [ci, cj, _] = self.cell_of[i];
+        self.torus_nearest_at(self.slot[i], p, ci, cj, period)
+    }
+
+    /// [`Grid::torus_nearest`] for the point at sorted position `own`, in
+    /// cell (ci, cj).
+    fn torus_nearest_at(&self, own: usize, p: Xy, ci: usize, cj: usize, period: [f64; 2]) -> f64 {
         let [w, h] = period;
         // The three shifted copies per axis, as `p[a] + s` for s in
         // [−w, 0, w]: the expressions `toroidal` has always used.
         let xs = [p[0] + -w, p[0] + 0.0, p[0] + w];
         let ys = [p[1] + -h, p[1] + 0.0, p[1] + h];
-        let [ci, cj, _] = self.cell_of[i];
-        let own = self.slot[i];
         let (nx, ny) = (self.nx, self.ny);
         let closest = |points: &[Xy], best: f64| closest_in_torus(points, xs, ys, best);
         // Columns at offsets lo..=hi (stored shifted by nx, so unsigned) of
@@ -472,7 +511,10 @@ impl Grid {
     /// order.
     fn span(&self, row: usize, lo: usize, hi: usize) -> (usize, usize) {
         let base = row * self.nx;
-        (self.start[base + lo], self.start[base + hi + 1])
+        (
+            self.start[base + lo] as usize,
+            self.start[base + hi + 1] as usize,
+        )
     }
 
     /// Fold `closest` over the sorted points of run `(from, to)` without
@@ -548,11 +590,68 @@ fn min_square(v: f64, shifted: [f64; 3]) -> f64 {
     if c < ab { c } else { ab }
 }
 
+/// Point count from which [`sampled_density`] picks the grid's fineness
+/// before the full build.
+const SAMPLE_FROM: usize = 1 << 16;
+
+/// Points per cell for a large pattern, guessed from every k-th point
+/// (about 4 096 of them): the coarsest of 1, 1/4 and 1/16 at which the
+/// sample's estimated scan work, scaled up to all points, stays within
+/// `WORK_PER_POINT` a point. Only a guess to skip builds that would be
+/// refused; the full build still checks its own cells and goes finer if
+/// the guess was low.
+fn sampled_density(points: &[Xy], origin: Xy, extent: [f64; 2]) -> f64 {
+    let n = points.len();
+    let step = (n / 4096).max(1);
+    let sample: Vec<Xy> = points.iter().step_by(step).copied().collect();
+    let f = sample.len() as f64 / n as f64;
+    let mut per_cell = POINTS_PER_CELL;
+    while per_cell > 1.0 / MAX_CELLS_PER_POINT {
+        let (nx, ny) = grid_shape(n, extent, per_cell);
+        let limits = [nx as f64, ny as f64];
+        let size = [extent[0] / limits[0], extent[1] / limits[1]];
+        let mut cells: Vec<(usize, usize)> = sample
+            .iter()
+            .map(|p| {
+                (
+                    bucket(p[1], origin[1], size[1], ny, limits[1]),
+                    bucket(p[0], origin[0], size[0], nx, limits[0]),
+                )
+            })
+            .collect();
+        cells.sort_unstable();
+        let count = |c: (usize, usize)| {
+            cells.partition_point(|&x| x <= c) - cells.partition_point(|&x| x < c)
+        };
+        let mut pairs = 0.0;
+        let mut k = 0;
+        while k < cells.len() {
+            let c = cells[k];
+            let own = count(c);
+            let mut block = 0;
+            for r in c.0.saturating_sub(1)..=(c.0 + 1).min(ny - 1) {
+                for q in c.1.saturating_sub(1)..=(c.1 + 1).min(nx - 1) {
+                    block += count((r, q));
+                }
+            }
+            // Pairs other than a point with itself, scaled from the sample.
+            pairs += (own * block - own) as f64;
+            k += own;
+        }
+        let work = pairs / (f * f) + n as f64;
+        if work <= (WORK_PER_POINT * n) as f64 {
+            break;
+        }
+        per_cell /= 4.0;
+    }
+    per_cell.max(1.0 / MAX_CELLS_PER_POINT)
+}
+
 /// Columns and rows for `n` points over `extent`: cells of about
-/// `POINTS_PER_CELL` points, at least one and at most `n` along each axis
-/// (so never more than about `n` cells, even for a line of points).
-fn grid_shape(n: usize, extent: [f64; 2]) -> (usize, usize) {
-    let target = (n as f64 / POINTS_PER_CELL).max(1.0);
+/// `per_cell` points, at least one and at most `n` along each axis (so
+/// never more than about `n / per_cell` cells, even for a line of points).
+fn grid_shape(n: usize, extent: [f64; 2], per_cell: f64) -> (usize, usize) {
+    let target = (n as f64 / per_cell).max(1.0);
     let along = |e: f64, side: f64| -> usize {
         if e > 0.0 && side > 0.0 {
             ((e / side).floor() as usize).clamp(1, n)

@@ -6,6 +6,7 @@
 //! |---|---|
 //! | [`nearest`] | exact nearest-neighbour distances (grid buckets, R*-tree from `rstar` as fallback) |
 //! | [`grid_nearest`] | the uniform bucket grid behind them, plane and torus |
+//! | [`curve_tree`] | the Z-order tree of boxes that takes over where the grid's cells overfill |
 //! | [`clark_evans`] | the Clark & Evans (1954) ratio, its standard error, z and p |
 //! | [`normal`] | normal tail probabilities and critical values (`statrs`) |
 //! | [`call`] | the verdict of one row at a chosen α |
@@ -20,6 +21,7 @@
 
 pub mod call;
 pub mod clark_evans;
+pub mod curve_tree;
 pub mod donnelly;
 pub mod flip;
 pub mod grid_nearest;

@@ -16,6 +16,7 @@
 //! own index, so the output does not depend on the thread count.
 
 use crate::Xy;
+use crate::curve_tree::CurveTree;
 use crate::grid_nearest::Grid;
 use crate::toroidal::{Rect, torus_tree_distances};
 use rayon::prelude::*;
@@ -60,6 +61,16 @@ pub fn tree_nearest_distances(points: &[Xy]) -> Option<Vec<f64>> {
     })
 }
 
+/// The Z-order tree engine alone ([`crate::curve_tree`]): same answers as
+/// [`nearest_distances`], public so that tests and benchmarks can compare
+/// the engines. `None` for fewer than two points or a non-finite
+/// coordinate.
+pub fn curve_tree_distances(points: &[Xy]) -> Option<Vec<f64>> {
+    let mut tree = CurveTree::new();
+    let mut out = Vec::new();
+    (tree.rebuild(points) && tree.plane_distances_into(points.len(), &mut out)).then_some(out)
+}
+
 /// Nearest-neighbour distance of each focal point, neighbours taken from all
 /// points. Used by the guard-zone (border) method, where only points far
 /// enough from the boundary are focal but any point may be their neighbour.
@@ -75,6 +86,7 @@ pub fn nearest_distances_of(points: &[Xy], focal: &[usize]) -> Option<Vec<f64>> 
 #[derive(Debug, Clone, Default)]
 pub struct Distances {
     grid: Grid,
+    tree: CurveTree,
     /// Plane distances of the last pattern measured, input order.
     pub plane: Vec<f64>,
     /// Torus distances of the last pattern, input order; empty when no
@@ -100,12 +112,18 @@ impl Distances {
             return false;
         }
         let torus = torus.filter(|r| r.max[0] - r.min[0] > 0.0 && r.max[1] - r.min[1] > 0.0);
+        let n = points.len();
         let on_grid = self.grid.rebuild(points, torus);
-        if !(on_grid && self.grid.plane_distances_into(points, &mut self.plane)) {
+        let mut on_tree = None;
+        let mut tree = |t: &mut CurveTree| *on_tree.get_or_insert_with(|| t.rebuild(points));
+        if !(on_grid && self.grid.plane_distances_into(points, &mut self.plane))
+            && !(tree(&mut self.tree) && self.tree.plane_distances_into(n, &mut self.plane))
+        {
             self.plane = tree_nearest_distances(points).unwrap_or_default();
         }
         if let Some(r) = torus
             && !(on_grid && self.grid.torus_distances_into(points, &mut self.torus))
+            && !(tree(&mut self.tree) && self.tree.torus_distances_into(n, r, &mut self.torus))
         {
             self.torus = torus_tree_distances(points, r).unwrap_or_default();
         }
@@ -270,6 +288,11 @@ mod tests {
                 want,
                 "case {case}"
             );
+            assert_eq!(
+                curve_tree_distances(&pts).expect("at least two points"),
+                want,
+                "case {case} (Z-order tree)"
+            );
             if Grid::new().rebuild(&pts, None) {
                 on_grid += 1;
             }
@@ -332,6 +355,11 @@ mod tests {
                 want,
                 "case {case}"
             );
+            let mut curve = CurveTree::new();
+            let mut d = Vec::new();
+            assert!(curve.rebuild(&raw));
+            assert!(curve.torus_distances_into(raw.len(), r, &mut d));
+            assert_eq!(d, want, "case {case} (Z-order tree)");
             // Plane and torus from one shared workspace.
             let mut ws = Distances::new();
             assert!(ws.measure(&raw, Some(r)));
@@ -343,6 +371,116 @@ mod tests {
             }
         }
         assert!(wrapped > 120, "torus grid used for {wrapped} of 200");
+    }
+
+    /// Patterns above `PARALLEL_FROM`, where the grid queries cell by cell
+    /// on several threads, densifies its cells for clusters, or hands over
+    /// to the Z-order tree: every engine against the O(n²) scan, bit for
+    /// bit, on uniform, Thomas-like clustered, duplicate-heavy, collinear,
+    /// far-offset and ultra-tight clustered patterns of 4 200 points, with
+    /// the path each one takes checked too.
+    #[test]
+    fn large_patterns_match_brute_force_on_every_engine_path() {
+        let mut g = Gen(0x5DEE_CE66_D1CE_4E5B);
+        let n = 4_200;
+        let uniform: Vec<Xy> = (0..n)
+            .map(|_| [g.unit() * 300.0, g.unit() * 200.0])
+            .collect();
+        // 60 parents, offspring within ±3 of them: clusters overfill cells
+        // of the mean spacing, so the grid goes 4 or 16 times finer.
+        let parents: Vec<Xy> = (0..60)
+            .map(|_| [g.unit() * 300.0, g.unit() * 200.0])
+            .collect();
+        let clustered: Vec<Xy> = (0..n)
+            .map(|k| {
+                let c = parents[k % 60];
+                [c[0] + 6.0 * (g.unit() - 0.5), c[1] + 6.0 * (g.unit() - 0.5)]
+            })
+            .collect();
+        // Every point three times.
+        let base: Vec<Xy> = (0..n / 3)
+            .map(|_| [g.unit() * 50.0, g.unit() * 50.0])
+            .collect();
+        let mut tripled: Vec<Xy> = base.iter().chain(&base).chain(&base).copied().collect();
+        tripled.push([25.0, 25.0]);
+        let line: Vec<Xy> = (0..n)
+            .map(|_| {
+                let t = g.unit() * 1000.0;
+                [0.6 * t + 3.0, 0.8 * t - 1.0]
+            })
+            .collect();
+        let far: Vec<Xy> = (0..n)
+            .map(|_| [6.1e6 + g.unit() * 800.0, -4.5e5 + g.unit() * 600.0])
+            .collect();
+        // 12 clusters 1e-9 wide in a 1e6 square: no grid fits, the tree does.
+        let tight_parents: Vec<Xy> = (0..12).map(|_| [g.unit() * 1e6, g.unit() * 1e6]).collect();
+        let tight: Vec<Xy> = (0..n)
+            .map(|k| {
+                let c = tight_parents[k % 12];
+                [c[0] + 1e-9 * g.unit(), c[1] + 1e-9 * g.unit()]
+            })
+            .collect();
+        let mut grid = Grid::new();
+        for (name, pts, on_grid) in [
+            ("uniform", &uniform, true),
+            ("clustered", &clustered, true),
+            ("tripled", &tripled, true),
+            ("collinear", &line, true),
+            ("far", &far, true),
+            ("tight", &tight, false),
+        ] {
+            assert!(pts.len() >= PARALLEL_FROM, "{name}");
+            let want = brute(pts);
+            assert_eq!(grid.rebuild(pts, None), on_grid, "{name}: grid used");
+            assert_eq!(nearest_distances(pts).expect("points"), want, "{name}");
+            assert_eq!(
+                curve_tree_distances(pts).expect("points"),
+                want,
+                "{name} (tree)"
+            );
+        }
+        // Torus distances of the uniform pattern in its 300 × 200 frame, on
+        // the grid and on the Z-order tree.
+        let r = Rect {
+            min: [0.0, 0.0],
+            max: [300.0, 200.0],
+        };
+        let want: Vec<f64> = uniform
+            .iter()
+            .enumerate()
+            .map(|(i, p)| {
+                let mut best = f64::INFINITY;
+                for (j, q) in uniform.iter().enumerate() {
+                    if i != j {
+                        // Nearest of the three copies on each axis, exactly
+                        // as the nine-copy definition evaluates it.
+                        let sx = [p[0] + -300.0, p[0] + 0.0, p[0] + 300.0]
+                            .map(|s| (q[0] - s) * (q[0] - s));
+                        let sy = [p[1] + -200.0, p[1] + 0.0, p[1] + 200.0]
+                            .map(|s| (q[1] - s) * (q[1] - s));
+                        let m = |a: [f64; 3]| a[0].min(a[1]).min(a[2]);
+                        best = best.min(m(sx) + m(sy));
+                    }
+                }
+                best.sqrt()
+            })
+            .collect();
+        let mut ws = Distances::new();
+        assert!(ws.measure(&uniform, Some(r)));
+        assert_eq!(ws.torus, want, "uniform torus (grid)");
+        let mut curve = CurveTree::new();
+        let mut d = Vec::new();
+        assert!(curve.rebuild(&uniform));
+        assert!(curve.torus_distances_into(uniform.len(), r, &mut d));
+        assert_eq!(d, want, "uniform torus (tree)");
+        // The tight clusters' torus distances come from the tree as well.
+        let rt = Rect {
+            min: [-1.0, -1.0],
+            max: [1e6 + 1.0, 1e6 + 1.0],
+        };
+        assert!(ws.measure(&tight, Some(rt)));
+        assert_eq!(ws.plane, brute(&tight));
+        assert_eq!(ws.torus.len(), tight.len());
     }
 
     #[test]

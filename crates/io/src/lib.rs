@@ -8,6 +8,7 @@
 //! | [`points`] | CSV and GeoJSON point readers |
 //! | [`boundary`] | GeoJSON and WKT polygon readers, with validity checks |
 //! | [`coords`] | the projected / lon-lat decision and the Lambert azimuthal equal-area projection |
+//! | [`geopackage`] | GeoPackage point and polygon layers, their coordinate system, `--where` |
 //! | [`dataset`] | loads points and boundaries together into one planar data set |
 //!
 //! Nothing here guesses silently: an ambiguous coordinate system stops with
@@ -17,8 +18,11 @@ pub mod boundary;
 pub mod coords;
 pub mod dataset;
 pub mod error;
+pub mod geopackage;
 pub mod points;
 
 pub use coords::{CoordChoice, CoordSystem, Projection};
 pub use dataset::{Boundary, Dataset, LoadOptions};
 pub use error::InputError;
+pub use geopackage::GpkgChoice;
+pub use patternproof_gpkg::{Filter, SpatialRef};

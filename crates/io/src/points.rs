@@ -20,6 +20,8 @@ pub enum Place {
     Line(u64),
     /// A GeoJSON feature (1-based).
     Feature(u32),
+    /// A GeoPackage feature, by its `fid`.
+    Fid(i64),
 }
 
 impl std::fmt::Display for Place {
@@ -27,6 +29,7 @@ impl std::fmt::Display for Place {
         match self {
             Place::Line(n) => write!(f, "line {n}"),
             Place::Feature(n) => write!(f, "feature {n}"),
+            Place::Fid(n) => write!(f, "feature fid {n}"),
         }
     }
 }
@@ -252,14 +255,14 @@ fn read_csv_points<R: std::io::Read>(
         let place = Place::Line(line);
         let x = parse_number(
             path,
-            &place.to_string(),
+            place,
             &headers[cols.0],
             record.get(cols.0).unwrap_or(""),
             lenient_decimal_comma,
         )?;
         let y = parse_number(
             path,
-            &place.to_string(),
+            place,
             &headers[cols.1],
             record.get(cols.1).unwrap_or(""),
             lenient_decimal_comma,
@@ -314,9 +317,11 @@ fn csv_error(path: &Path, e: csv::Error, line: u64) -> InputError {
     }
 }
 
+/// `place` is formatted only when the value is refused, so the common
+/// case allocates nothing per row.
 fn parse_number(
     path: &Path,
-    place: &str,
+    place: Place,
     column: &str,
     raw: &str,
     decimal_comma: bool,
@@ -335,19 +340,19 @@ fn parse_number(
             format!("column '{column}' holds '{raw}', which is not a finite number"),
             "remove or fix the row; missing or infinite coordinates cannot be placed",
         )
-        .at(place)),
+        .at(place.to_string())),
         None if raw.contains(',') && raw.replace(',', ".").parse::<f64>().is_ok() => Err(InputError::new(
             path,
             format!("column '{column}' holds '{raw}': a decimal comma in a comma-separated file"),
             "write decimals with a point (512.25), or separate the columns with ';' so that decimal commas can be read",
         )
-        .at(place)),
+        .at(place.to_string())),
         None => Err(InputError::new(
             path,
             format!("column '{column}' holds '{raw}', which is not a number"),
             "coordinates must be plain decimal numbers (e.g. 512.25); fix or remove the row",
         )
-        .at(place)),
+        .at(place.to_string())),
     }
 }
 
@@ -377,7 +382,7 @@ pub(crate) fn crs_is_lonlat(crs: &serde_json::Value) -> Option<bool> {
 /// Well-known EPSG codes: geographic 2-D systems (lon/lat on some datum)
 /// and projected families. Anything else is not guessed: a wrong guess
 /// would turn degrees into metres.
-fn epsg_is_lonlat(code: u32) -> Option<bool> {
+pub(crate) fn epsg_is_lonlat(code: u32) -> Option<bool> {
     const GEOGRAPHIC: [u32; 15] = [
         4326, 4258, 4269, 4283, 7844, 4167, 4617, 4019, 4674, 4612, 6668, 4490, 4230, 4277, 4267,
     ];

@@ -9,6 +9,7 @@
 //! | [`markdown`] | `verdict.md` |
 //! | [`methods`] | the methods paragraph for a manuscript |
 //! | [`outlines`] | `windows.geojson` |
+//! | [`windows_gpkg`] | `windows.gpkg`, the outlines as a GeoPackage layer in the measured plane |
 //! | [`window_map`] | `windows.svg`, the map of points and window outlines |
 //! | [`sensitivity_plot`] | `sensitivity.svg`, R and z against the study area |
 //! | [`simulation_plot`] | `simulation.svg`, the simulated means of one window |
@@ -30,6 +31,7 @@ pub mod sensitivity_plot;
 pub mod simulation_plot;
 pub mod table;
 pub mod window_map;
+pub mod windows_gpkg;
 
 pub use document::{AuditReport, InputSummary, SCHEMA};
 pub use folder::{OutputFolder, write_folder, write_folder_with};

@@ -8,6 +8,9 @@ use patternproof_core::Xy;
 use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 
+/// Point count up to which every point gets its own dot on the map.
+pub const MAP_ALL_POINTS: usize = 20_000;
+
 /// Render the map as an SVG string. `None` when nothing has an outline.
 pub fn window_map_svg(report: &AuditReport, points: &[Xy]) -> Option<String> {
     let shapes: Vec<_> = report
@@ -61,12 +64,29 @@ pub fn window_map_svg(report: &AuditReport, points: &[Xy]) -> Option<String> {
                 (cy - half_y)..(cy + half_y),
             )
             .ok()?;
+        // Above MAP_ALL_POINTS, one dot per 2 × 2 pixel block (the first
+        // point in it, in file order): the dots are 4 pixels across, so the
+        // map looks the same, and a million points no longer make a file of
+        // about 90 MB (and its copy inside index.html).
+        let mut taken = vec![false; (px_w as usize).div_ceil(2) * (px_h as usize).div_ceil(2)];
+        let blocks_x = (px_w as usize).div_ceil(2);
+        let thin = points.len() > MAP_ALL_POINTS;
+        let shown = points.iter().filter(|p| {
+            if !thin {
+                return true;
+            }
+            let (x, y) = chart.backend_coord(&(p[0], p[1]));
+            if x < 0 || y < 0 || x >= px_w as i32 || y >= px_h as i32 {
+                return true;
+            }
+            let k = (y as usize / 2) * blocks_x + x as usize / 2;
+            !std::mem::replace(&mut taken[k], true)
+        });
+        let dots: Vec<Circle<(f64, f64), i32>> = shown
+            .map(|p| Circle::new((p[0], p[1]), 2, BLACK.filled()))
+            .collect();
         chart
-            .draw_series(
-                points
-                    .iter()
-                    .map(|p| Circle::new((p[0], p[1]), 2, BLACK.filled())),
-            )
+            .draw_series(dots)
             .ok()?
             .label("points")
             .legend(|(x, y)| Circle::new((x + 10, y), 2, BLACK.filled()));

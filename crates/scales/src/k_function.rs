@@ -126,12 +126,26 @@ pub fn k_curves(
         want(Correction::Border),
     );
     let pairs = close_pairs(points, rmax, parallel);
-    let b = if do_border {
+    // Distance of every point to the outline: the border estimator's
+    // rule, and the isotropic shortcut (a circle shorter than it lies
+    // wholly inside, weight exactly 1, no edge search).
+    let b = if do_border || do_iso {
         border::outline_distances(region, points, parallel)
     } else {
         Vec::new()
     };
-    let border_end: Vec<usize> = b.iter().map(|&d| border::counted_up_to(grid, d)).collect();
+    let border_end: Vec<usize> = if do_border {
+        b.iter().map(|&d| border::counted_up_to(grid, d)).collect()
+    } else {
+        Vec::new()
+    };
+    let iso_weight = |i: usize, d: f64| -> (f64, bool) {
+        if d < b[i] {
+            (1.0, false)
+        } else {
+            isotropic::weight(region, points[i], d)
+        }
+    };
 
     let per_centre = |i: usize| -> (Vec<Contribution>, usize, usize) {
         let mut out = Vec::with_capacity(pairs[i].len());
@@ -142,8 +156,8 @@ pub fn k_curves(
                 continue;
             }
             let iso = if do_iso {
-                let (a, ca) = isotropic::weight(region, points[i], d);
-                let (c, cc) = isotropic::weight(region, points[j], d);
+                let (a, ca) = iso_weight(i, d);
+                let (c, cc) = iso_weight(j, d);
                 capped += usize::from(ca) + usize::from(cc);
                 a + c
             } else {
@@ -288,6 +302,28 @@ mod tests {
             }
         }
         v
+    }
+
+    /// The tabulated translation overlaps move K̂ by a negligible amount:
+    /// against exact per-pair intersections (geo boolean operations) on
+    /// 400 points in a window with a hole, within 2e-5 relative at every r.
+    #[test]
+    fn translation_table_keeps_k() {
+        let mut reg = holed();
+        let pts = pattern(&reg, 400);
+        let grid = distance_grid(4.0, 8);
+        let c = [Correction::Translation];
+        let (exact, _) = k_curves(&pts, &reg, &grid, &c, true);
+        reg.overlap_table = Some(translation::OverlapTable::new(&reg, 4.0));
+        let (tabled, _) = k_curves(&pts, &reg, &grid, &c, true);
+        let mut worst: f64 = 0.0;
+        for (a, b) in exact[0].k.iter().zip(&tabled[0].k) {
+            let (a, b) = (a.unwrap_or(f64::NAN), b.unwrap_or(f64::NAN));
+            worst = worst.max((a - b).abs() / a);
+        }
+        println!("translation table: worst relative change of K {worst:.2e}");
+        assert!(worst < 2e-5, "{worst}");
+        assert_ne!(exact[0].k, tabled[0].k, "the table was used");
     }
 
     /// Every correction against the O(n²) double loop over all ordered

@@ -25,6 +25,9 @@ pub struct Region {
     /// Set when the window is one axis-aligned rectangle without holes, so
     /// that the closed-form translation weight applies.
     pub rectangle: Option<Rect>,
+    /// Tabulated overlaps |W ∩ (W + v)| for the translation weight, set by
+    /// a run with many pairs ([`crate::translation::worth_a_table`]).
+    pub overlap_table: Option<crate::translation::OverlapTable>,
     edges: RTree<Line<Xy>>,
 }
 
@@ -56,6 +59,7 @@ impl Region {
             area,
             bounds: [[r.min().x, r.min().y], [r.max().x, r.max().y]],
             rectangle,
+            overlap_table: None,
             edges: RTree::bulk_load(lines),
         })
     }

@@ -4,6 +4,7 @@
 use crate::envelope::{EnvelopeTest, mad_test, simulate, stream_label};
 use crate::k_function::{Correction, KCurve, PairNotes, distance_grid, k_curves};
 use crate::region::Region;
+use crate::translation;
 use crate::verdict::{Band, bands, sentence};
 use patternproof_audit::sampling::Sampler;
 use patternproof_audit::{Window, WindowKind};
@@ -68,6 +69,11 @@ pub struct WindowScales {
     pub bands: Vec<Vec<Band>>,
     /// Pair counts and special cases.
     pub pairs: PairNotes,
+    /// How the translation weights' overlap areas were found: `closed form`
+    /// (rectangle), `exact` (one polygon intersection per pair), `table`
+    /// (interpolated from exact intersections on a polar grid, for runs
+    /// with many pairs); `None` when translation was not estimated.
+    pub translation_weights: Option<&'static str>,
 }
 
 /// A window that could not be analysed, and why.
@@ -146,6 +152,34 @@ pub fn cautions() -> Vec<String> {
     ]
 }
 
+/// Decide how the translation overlaps of one window are found, and
+/// tabulate them when the run weighs many pairs
+/// ([`translation::worth_a_table`]).
+fn translation_weights(
+    region: &mut Region,
+    n: usize,
+    rmax: f64,
+    options: &ScalesOptions,
+) -> Option<&'static str> {
+    if !options.corrections.contains(&Correction::Translation) {
+        return None;
+    }
+    if region.rectangle.is_some() {
+        return Some("closed form");
+    }
+    let patterns = 1 + if options.tested.contains(&Correction::Translation) {
+        options.sims
+    } else {
+        0
+    };
+    if translation::worth_a_table(region, n, rmax, patterns) {
+        region.overlap_table = Some(translation::OverlapTable::new(region, rmax));
+        Some("table")
+    } else {
+        Some("exact")
+    }
+}
+
 /// Run every window. `tick` is called once per simulated pattern.
 pub fn run_scales(
     points: &[Xy],
@@ -193,6 +227,9 @@ pub fn run_scales(
     let mut results = Vec::new();
     for (w, region) in &usable {
         let pts: Vec<Xy> = w.inside.iter().map(|&i| points[i]).collect();
+        let mut region = region.clone();
+        let translation_weights = translation_weights(&mut region, pts.len(), rmax, options);
+        let region = &region;
         let (curves, pair_notes) = k_curves(&pts, region, &grid, &options.corrections, true);
         let mut tests = Vec::new();
         if options.sims > 0 && !options.tested.is_empty() {
@@ -231,6 +268,7 @@ pub fn run_scales(
             tests,
             bands: window_bands,
             pairs: pair_notes,
+            translation_weights,
         });
     }
     let verdicts = options
