@@ -41,15 +41,16 @@
 //! which is monotone in the same way.
 //!
 //! Complexity: O(n log n) to sort, O(n) for the boxes, about O(log n) per
-//! query. Memory: about 40 bytes per point while building, 28 after.
+//! query. Memory: about 50 bytes per point while building (keys, sorted
+//! points, order, boxes), 30 after.
 
 use crate::Xy;
 use crate::toroidal::Rect;
 use rayon::prelude::*;
 
-/// Points per leaf. Eight keeps the leaf scan short while the tree stays
-/// shallow; 4, 8 and 16 were tried on 1 M uniform and clustered points
-/// (see docs/performance.md).
+/// Points per leaf. Sixteen keeps the leaf scan short while the tree stays
+/// shallow; 8, 16, 32 and 64 were tried on 1 M uniform and clustered
+/// points (see docs/performance.md).
 pub const LEAF: usize = 16;
 
 /// Point count from which the tree is built and queried on several threads.

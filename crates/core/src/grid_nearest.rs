@@ -27,9 +27,16 @@
 //!
 //! Heavily clustered data would put many points in a few cells and make
 //! the scan quadratic. [`Grid::rebuild`] estimates the scan's work from the
-//! cell counts and refuses (returns `false`) when it exceeds
-//! `WORK_PER_POINT` candidate checks per point on average; the callers then
-//! use the R*-tree, so there is no pathological slowdown.
+//! cell counts; past `WORK_PER_POINT` candidate checks per point on average
+//! it tries cells 4 and then 16 times smaller (for large patterns a sample
+//! guesses the fineness first), and beyond that refuses (returns `false`).
+//! The callers then use the Z-order tree of [`crate::curve_tree`], so there
+//! is no pathological slowdown.
+//!
+//! Large patterns (from `PARALLEL_FROM` points) are queried cell by cell
+//! in the sorted order, rows in parallel, so that consecutive queries read
+//! neighbouring memory; each distance depends only on its point, so the
+//! order changes no bit.
 
 use crate::Xy;
 use crate::toroidal::Rect;

@@ -4,7 +4,7 @@
 //!
 //! | module | what it computes |
 //! |---|---|
-//! | [`nearest`] | exact nearest-neighbour distances (grid buckets, R*-tree from `rstar` as fallback) |
+//! | [`nearest`] | exact nearest-neighbour distances behind one interface (grid buckets, Z-order tree, R*-tree from `rstar` as last resort) |
 //! | [`grid_nearest`] | the uniform bucket grid behind them, plane and torus |
 //! | [`curve_tree`] | the Z-order tree of boxes that takes over where the grid's cells overfill |
 //! | [`clark_evans`] | the Clark & Evans (1954) ratio, its standard error, z and p |

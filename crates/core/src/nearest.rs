@@ -1,12 +1,13 @@
 //! Exact nearest-neighbour distances.
 //!
 //! Each point's distance to its closest *other* point. No approximation.
-//! Two engines give the same bits: a uniform bucket grid
+//! Three engines give the same bits: a uniform bucket grid
 //! ([`crate::grid_nearest`]), used whenever the points are spread well
-//! enough for it to pay, and an R*-tree (`rstar`), which returns
-//! neighbours in exact order of distance and takes over for heavily
-//! clustered or non-finite data. Both take the square root of the same
-//! `dx·dx + dy·dy`. Duplicate points are each other's nearest neighbour at
+//! enough for it to pay; a Z-order tree of bounding boxes
+//! ([`crate::curve_tree`]), which takes over for clusters too tight for
+//! the grid; and an R*-tree (`rstar`), which returns neighbours in exact
+//! order of distance and is the last resort (non-finite coordinates). All
+//! take the square root of the same `dx·dx + dy·dy`. Duplicate points are each other's nearest neighbour at
 //! distance 0, which is what the Clark–Evans statistic expects of them
 //! (they are counted and reported by the caller).
 //!
@@ -116,14 +117,15 @@ impl Distances {
         let on_grid = self.grid.rebuild(points, torus);
         let mut on_tree = None;
         let mut tree = |t: &mut CurveTree| *on_tree.get_or_insert_with(|| t.rebuild(points));
-        if !(on_grid && self.grid.plane_distances_into(points, &mut self.plane))
-            && !(tree(&mut self.tree) && self.tree.plane_distances_into(n, &mut self.plane))
-        {
+        // Grid first, then the Z-order tree, then the R*-tree.
+        let plane_done = (on_grid && self.grid.plane_distances_into(points, &mut self.plane))
+            || (tree(&mut self.tree) && self.tree.plane_distances_into(n, &mut self.plane));
+        if !plane_done {
             self.plane = tree_nearest_distances(points).unwrap_or_default();
         }
         if let Some(r) = torus
-            && !(on_grid && self.grid.torus_distances_into(points, &mut self.torus))
-            && !(tree(&mut self.tree) && self.tree.torus_distances_into(n, r, &mut self.torus))
+            && !((on_grid && self.grid.torus_distances_into(points, &mut self.torus))
+                || (tree(&mut self.tree) && self.tree.torus_distances_into(n, r, &mut self.torus)))
         {
             self.torus = torus_tree_distances(points, r).unwrap_or_default();
         }
