@@ -87,7 +87,15 @@ fn draw_line<DB: DrawingBackend>(
     Some(())
 }
 
-fn window_panel(area: &Area<'_>, run: &ScalesRun, w: &WindowScales) -> Option<()> {
+/// One window's panel. The legend is the same in every panel, so only the
+/// first draws it, above the curves in headroom of its own (a legend drawn
+/// over the data hid the observed curve where it rises highest).
+fn window_panel(
+    area: &Area<'_>,
+    run: &ScalesRun,
+    w: &WindowScales,
+    with_legend: bool,
+) -> Option<()> {
     let r = &run.r;
     let test = w.tests.first();
     let tested = test.map(|t| t.correction).unwrap_or(Correction::Isotropic);
@@ -101,7 +109,10 @@ fn window_panel(area: &Area<'_>, run: &ScalesRun, w: &WindowScales) -> Option<()
             t.pointwise_hi.as_slice(),
         ]);
     }
-    let (lo, hi) = y_range(all.into_iter());
+    let (lo, mut hi) = y_range(all.into_iter());
+    if with_legend {
+        hi += 0.6 * (hi - lo);
+    }
     let title = match test {
         Some(t) => format!("`{}` (n = {}): MAD p = {}", w.id, w.n, p_value(t.p)),
         None => format!("`{}` (n = {}): no test", w.id, w.n),
@@ -175,14 +186,16 @@ fn window_panel(area: &Area<'_>, run: &ScalesRun, w: &WindowScales) -> Option<()
         correction_ink(tested),
         Some(format!("observed, {} correction", tested.as_str())),
     )?;
-    chart
-        .configure_series_labels()
-        .background_style(WHITE.mix(0.9))
-        .border_style(BLACK)
-        .label_font(("sans-serif", 11))
-        .position(SeriesLabelPosition::UpperLeft)
-        .draw()
-        .ok()?;
+    if with_legend {
+        chart
+            .configure_series_labels()
+            .background_style(WHITE.mix(0.9))
+            .border_style(BLACK)
+            .label_font(("sans-serif", 11))
+            .position(SeriesLabelPosition::UpperLeft)
+            .draw()
+            .ok()?;
+    }
     Some(())
 }
 
@@ -217,8 +230,8 @@ pub fn scales_svg(run: &ScalesRun) -> Option<String> {
         ))
         .ok()?;
         let panels = body.split_evenly((rows, cols));
-        for (w, area) in run.windows.iter().zip(panels.iter()) {
-            window_panel(area, run, w)?;
+        for (k, (w, area)) in run.windows.iter().zip(panels.iter()).enumerate() {
+            window_panel(area, run, w, k == 0)?;
         }
         root.present().ok()?;
     }
