@@ -45,6 +45,7 @@
 //! points, order, boxes), 30 after.
 
 use crate::Xy;
+use crate::grid_nearest::finite_bounds;
 use crate::toroidal::Rect;
 use rayon::prelude::*;
 
@@ -102,17 +103,9 @@ impl CurveTree {
         if n < 2 || n > u32::MAX as usize {
             return false;
         }
-        let mut lo = [f64::INFINITY; 2];
-        let mut hi = [f64::NEG_INFINITY; 2];
-        for p in points {
-            for a in 0..2 {
-                if !p[a].is_finite() {
-                    return false;
-                }
-                lo[a] = lo[a].min(p[a]);
-                hi[a] = hi[a].max(p[a]);
-            }
-        }
+        let Some((lo, hi)) = finite_bounds(points) else {
+            return false;
+        };
         // Quantisation only orders the points; exactness never depends on
         // it, so any rounding here is harmless.
         let top = (1u64 << 31) as f64;

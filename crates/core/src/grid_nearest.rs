@@ -117,17 +117,9 @@ impl Grid {
         if n < 2 || n > u32::MAX as usize {
             return false;
         }
-        let mut lo = [f64::INFINITY; 2];
-        let mut hi = [f64::NEG_INFINITY; 2];
-        for p in points {
-            for a in 0..2 {
-                if !p[a].is_finite() {
-                    return false;
-                }
-                lo[a] = lo[a].min(p[a]);
-                hi[a] = hi[a].max(p[a]);
-            }
-        }
+        let Some((lo, hi)) = finite_bounds(points) else {
+            return false;
+        };
         let (origin, extent) = match frame {
             Some(r) => {
                 let extent = [r.max[0] - r.min[0], r.max[1] - r.min[1]];
@@ -718,8 +710,25 @@ fn wrapped_span(k: usize, count: usize) -> (usize, usize) {
     (a, b)
 }
 
+/// The bounding box `(lo, hi)` of `points`; `None` when a coordinate is
+/// not finite (the engines then leave the pattern to the R*-tree).
+pub(crate) fn finite_bounds(points: &[Xy]) -> Option<(Xy, Xy)> {
+    let mut lo = [f64::INFINITY; 2];
+    let mut hi = [f64::NEG_INFINITY; 2];
+    for p in points {
+        for a in 0..2 {
+            if !p[a].is_finite() {
+                return None;
+            }
+            lo[a] = lo[a].min(p[a]);
+            hi[a] = hi[a].max(p[a]);
+        }
+    }
+    Some((lo, hi))
+}
+
 #[cfg(test)]
-mod tests {
+pub(crate) mod tests {
     use super::*;
 
     /// Brute-force oracle (the O(n²) scan of every pair, the definition of
@@ -744,7 +753,7 @@ mod tests {
 
     /// Brute-force torus oracle: every other point against the nine shifted
     /// copies of the query (the definition of the flat torus distance).
-    fn brute_torus(points: &[Xy], r: Rect) -> Vec<f64> {
+    pub(crate) fn brute_torus(points: &[Xy], r: Rect) -> Vec<f64> {
         let (w, h) = (r.max[0] - r.min[0], r.max[1] - r.min[1]);
         points
             .iter()

@@ -330,25 +330,8 @@ mod tests {
                 assert!(crate::toroidal::torus_nearest_distances(&raw, r).is_none());
                 continue;
             }
-            let want: Vec<f64> = raw
-                .iter()
-                .enumerate()
-                .map(|(i, p)| {
-                    let mut best = f64::INFINITY;
-                    for (j, q) in raw.iter().enumerate() {
-                        if i == j {
-                            continue;
-                        }
-                        for sx in [-w, 0.0, w] {
-                            for sy in [-h, 0.0, h] {
-                                let (dx, dy) = (q[0] - (p[0] + sx), q[1] - (p[1] + sy));
-                                best = best.min(dx * dx + dy * dy);
-                            }
-                        }
-                    }
-                    best.sqrt()
-                })
-                .collect();
+            // Brute force: every other point against the nine shifted copies.
+            let want = crate::grid_nearest::tests::brute_torus(&raw, r);
             let grid =
                 crate::toroidal::torus_nearest_distances(&raw, r).expect("at least two points");
             assert_eq!(grid, want, "case {case}");
