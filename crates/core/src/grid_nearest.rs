@@ -956,7 +956,7 @@ fn grid_shape(n: usize, extent: [f64; 2], per_cell: f64) -> (usize, usize) {
 /// `count` cells of `size` (`limit` = count as f64), clamped into
 /// 0..count. Clamping keeps each point on the correct side of every cell
 /// wall, which is all the search bounds need.
-fn bucket(v: f64, origin: f64, size: f64, count: usize, limit: f64) -> usize {
+pub(crate) fn bucket(v: f64, origin: f64, size: f64, count: usize, limit: f64) -> usize {
     // Zero on a flat axis (one cell); never NaN, as coordinates are finite.
     if size <= 0.0 {
         return 0;

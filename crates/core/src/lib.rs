@@ -6,6 +6,7 @@
 //! |---|---|
 //! | [`nearest`] | exact nearest-neighbour distances behind one interface (grid buckets, Z-order tree, R*-tree from `rstar` as last resort) |
 //! | [`grid_nearest`] | the uniform bucket grid behind them, plane and torus |
+//! | [`close_pairs`] | every pair closer than a radius (the K function's range search), from a bucket grid |
 //! | [`curve_tree`] | the Z-order tree of boxes that takes over where the grid's cells overfill |
 //! | [`clark_evans`] | the Clark & Evans (1954) ratio, its standard error, z and p |
 //! | [`normal`] | normal tail probabilities and critical values (`statrs`) |
@@ -21,6 +22,7 @@
 
 pub mod call;
 pub mod clark_evans;
+pub mod close_pairs;
 pub mod curve_tree;
 pub mod donnelly;
 pub mod flip;

@@ -15,10 +15,10 @@
 
 use crate::border;
 use crate::isotropic;
-use crate::pairs::close_pairs;
 use crate::region::Region;
 use crate::translation;
 use patternproof_core::Xy;
+use patternproof_core::close_pairs::close_pairs;
 use rayon::prelude::*;
 use serde::Serialize;
 use std::f64::consts::PI;

@@ -9,7 +9,6 @@
 //! | module | job |
 //! |---|---|
 //! | [`region`] | a window prepared for geometric queries (edge index, point-in-window, outline distance) |
-//! | [`pairs`] | all ordered pairs closer than r_max, found with an R*-tree, parallel over centres |
 //! | [`isotropic`] | Ripley's (1977) isotropic weight from the exact arc length of a circle inside the window |
 //! | [`translation`] | the Ohser–Stoyan translation weight from an exact polygon intersection area |
 //! | [`border`] | the reduced-sample (border) estimator |
@@ -24,7 +23,6 @@ pub mod border;
 pub mod envelope;
 pub mod isotropic;
 pub mod k_function;
-pub mod pairs;
 pub mod plot;
 pub mod region;
 pub mod scales;

@@ -53,7 +53,7 @@ fn csr_mean_k_is_pi_r_squared() {
     let mut uncorrected = 0.0;
     for k in 0..m {
         let pts = sampler.sample(60, &mut stream(11, "unbiased", k));
-        let close: usize = patternproof_scales::pairs::close_pairs(&pts, 2.5, false)
+        let close: usize = patternproof_core::close_pairs::close_pairs(&pts, 2.5, false)
             .iter()
             .map(Vec::len)
             .sum();
