@@ -14,7 +14,8 @@
 //! at distance d < r is 2·acos(d/r), the arcs outside two adjacent sides
 //! overlap by acos(d₁/r) + acos(d₂/r) − π/2 when the corner lies inside the
 //! circle, and arcs outside opposite sides never meet (inclusion–exclusion;
-//! the rectangle case of Ripley 1977, as in Diggle 2003, ch. 4).
+//! the rectangle case of Ripley 1977; the citation is recalled from
+//! memory, and the test checks the formula against the arc method).
 
 use crate::region::Region;
 use patternproof_core::Xy;
