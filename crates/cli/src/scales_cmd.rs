@@ -262,13 +262,13 @@ pub fn print_lines(run: &ScalesRun, notes: &[String]) {
         run.seed
     );
     println!(
-        "{:<14} {:>5}  {:<11} {:>9} {:>7}  bands outside the global envelope",
-        "window", "n", "correction", "MAD T", "p"
+        "{:<14} {:>5}  {:<11} {:>9} {:>7} {:>7}  bands outside the MAD envelope",
+        "window", "n", "correction", "MAD T", "MAD p", "ERL p"
     );
     for r in summary::table_rows(&run) {
         println!(
-            "{:<14} {:>5}  {:<11} {:>9} {:>7}  {}",
-            r[0], r[1], r[2], r[3], r[4], r[5]
+            "{:<14} {:>5}  {:<11} {:>9} {:>7} {:>7}  {}",
+            r[0], r[1], r[2], r[3], r[4], r[5], r[6]
         );
     }
     for n in notes {

@@ -60,7 +60,7 @@ fn demo_run_writes_the_folder_and_the_verdict() {
     }
     let v: serde_json::Value =
         serde_json::from_slice(&std::fs::read(out.join("scales.json")).unwrap()).unwrap();
-    assert_eq!(v["schema"], "patternproof.scales/1");
+    assert_eq!(v["schema"], "patternproof.scales/2");
     let r = v["r"].as_array().unwrap();
     assert_eq!(r.len(), 8);
     assert_eq!(v["rmax"].as_f64(), Some(12.0));

@@ -27,6 +27,7 @@
 //! more often than α under CSR.
 
 use crate::k_function::{Correction, k_curves};
+use crate::rank_envelope::{RankEnvelope, rank_envelope};
 use crate::region::Region;
 use patternproof_audit::sampling::Sampler;
 use patternproof_audit::streams::stream;
@@ -101,6 +102,23 @@ pub struct EnvelopeTest {
     /// Grid distances left out of the statistic because some curve is
     /// undefined there (border estimator without centres).
     pub undefined_distances: usize,
+    /// The second global test on the same curves: the rank envelope with
+    /// ERL ordering ([`crate::rank_envelope`]). `None` from [`mad_test`]
+    /// alone; [`global_tests`] fills it.
+    pub rank: Option<RankEnvelope>,
+}
+
+/// Both global tests on the same curves: MAD (whose band decides the
+/// distance bands and the verdict sentence, as before) and ERL.
+pub fn global_tests(
+    correction: Correction,
+    observed: &[Option<f64>],
+    simulated: &[Vec<Option<f64>>],
+    alpha: f64,
+) -> EnvelopeTest {
+    let mut t = mad_test(correction, observed, simulated, alpha);
+    t.rank = Some(rank_envelope(observed, simulated, alpha));
+    t
 }
 
 /// Run the MAD test on the observed curve `observed` against `simulated`
@@ -185,6 +203,7 @@ pub fn mad_test(
         departure,
         undefined_distances: defined.iter().filter(|d| !**d).count(),
         centre,
+        rank: None,
     }
 }
 

@@ -14,6 +14,7 @@
 //! | [`border`] | the reduced-sample (border) estimator |
 //! | [`k_function`] | K̂, L̂ and L̂ − r on a distance grid for any correction |
 //! | [`envelope`] | CSR simulations, the maximum absolute deviation test and its global band |
+//! | [`rank_envelope`] | the global rank envelope test with extreme-rank-length ordering (ERL), its p-value and band |
 //! | [`verdict`] | distance bands of clustering / regularity and the sentence across windows |
 //! | [`plot`] | the SVG pictures |
 //! | [`scales`] | the whole run over windows × corrections |
@@ -24,6 +25,7 @@ pub mod envelope;
 pub mod isotropic;
 pub mod k_function;
 pub mod plot;
+pub mod rank_envelope;
 pub mod region;
 pub mod scales;
 pub mod summary;

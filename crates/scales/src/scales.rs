@@ -1,7 +1,7 @@
 //! The whole run: every window of the audit sweep × every correction, the
 //! envelope test per window, the bands and the verdict sentences.
 
-use crate::envelope::{EnvelopeTest, mad_test, simulate, stream_label};
+use crate::envelope::{EnvelopeTest, global_tests, simulate, stream_label};
 use crate::k_function::{Correction, KCurve, PairNotes, distance_grid, k_curves};
 use crate::region::Region;
 use crate::translation;
@@ -12,7 +12,7 @@ use patternproof_core::Xy;
 use serde::Serialize;
 
 /// Schema id of `scales.json` (docs/scales-schema.md).
-pub const SCHEMA: &str = "patternproof.scales/1";
+pub const SCHEMA: &str = "patternproof.scales/2";
 
 /// Settings of a run.
 #[derive(Debug, Clone)]
@@ -147,6 +147,7 @@ pub fn cautions() -> Vec<String> {
     vec![
         "The envelope test compares the pattern with complete spatial randomness in each window separately; a departure says the points are not CSR in that window at those distances, not why (first-order trend in intensity looks like clustering).".into(),
         "Only the global band is a test over the whole distance range; the pointwise envelope is drawn for orientation and is exceeded somewhere far more often than α under CSR.".into(),
+        "Two global tests are run on the same simulated curves: MAD (its band decides the distance bands and the verdict) and the rank envelope with ERL ordering (Myllymäki et al. 2017), which weighs every distance alike where MAD is decided by the distances where L̂ − r varies most. When they disagree, say so; reporting only the smaller p is a choice made after seeing the data.".into(),
         "Bands are read on a grid of distances; a band '4–40 m' covers the grid points from 4 to 40 m.".into(),
         "Point locations of people are personal data: keep the input and any map of it under the same protection as the original records.".into(),
     ]
@@ -253,7 +254,7 @@ pub fn run_scales(
                         .unwrap_or_else(|| vec![None; grid.len()]);
                     let simulated: Vec<Vec<Option<f64>>> =
                         sims.iter().map(|s| s[t].clone()).collect();
-                    tests.push(mad_test(c, &observed, &simulated, options.alpha));
+                    tests.push(global_tests(c, &observed, &simulated, options.alpha));
                 }
             }
         }

@@ -14,7 +14,7 @@ fn opt(v: Option<f64>) -> String {
 /// envelope columns filled for the tested corrections. Full precision.
 pub fn csv(run: &ScalesRun) -> String {
     let mut s = String::from(
-        "window,correction,r,k,l,l_minus_r,centre,global_lo,global_hi,pointwise_lo,pointwise_hi,departure\n",
+        "window,correction,r,k,l,l_minus_r,centre,global_lo,global_hi,pointwise_lo,pointwise_hi,departure,erl_lo,erl_hi,erl_departure\n",
     );
     for w in &run.windows {
         for c in &w.curves {
@@ -23,9 +23,10 @@ pub fn csv(run: &ScalesRun) -> String {
                 let t = |f: fn(&crate::envelope::EnvelopeTest) -> &Vec<Option<f64>>| {
                     test.map_or(String::new(), |t| opt(f(t)[k]))
                 };
+                let rank = test.and_then(|t| t.rank.as_ref());
                 let _ = writeln!(
                     s,
-                    "{},{},{r},{},{},{},{},{},{},{},{},{}",
+                    "{},{},{r},{},{},{},{},{},{},{},{},{},{},{},{}",
                     w.id,
                     c.correction.as_str(),
                     opt(c.k[k]),
@@ -37,6 +38,9 @@ pub fn csv(run: &ScalesRun) -> String {
                     t(|t| &t.pointwise_lo),
                     t(|t| &t.pointwise_hi),
                     test.map_or(String::new(), |t| t.departure[k].to_string()),
+                    rank.map_or(String::new(), |e| opt(e.lo[k])),
+                    rank.map_or(String::new(), |e| opt(e.hi[k])),
+                    rank.map_or(String::new(), |e| e.departure[k].to_string()),
                 );
             }
         }
@@ -45,7 +49,7 @@ pub fn csv(run: &ScalesRun) -> String {
 }
 
 /// The per-window table lines (terminal and Markdown share them).
-pub fn table_rows(run: &ScalesRun) -> Vec<[String; 6]> {
+pub fn table_rows(run: &ScalesRun) -> Vec<[String; 7]> {
     let u = &run.unit;
     let mut rows = Vec::new();
     for w in &run.windows {
@@ -83,6 +87,7 @@ pub fn table_rows(run: &ScalesRun) -> Vec<[String; 6]> {
                 t.correction.as_str().to_string(),
                 sig(t.statistic, 3),
                 p_value(t.p),
+                t.rank.as_ref().map_or("–".to_string(), |e| p_value(e.p)),
                 bands,
             ]);
         }
@@ -112,13 +117,13 @@ pub fn markdown(run: &ScalesRun) -> String {
     if run.verdicts.is_empty() {
         s.push_str("- no envelope test was run (`--sims 0`).\n");
     }
-    s.push_str("\n## Global test per window (maximum absolute deviation, Diggle 2003)\n\n");
-    s.push_str("| window | n | correction | MAD T | p | bands outside the global envelope |\n|---|---:|---|---:|---:|---|\n");
+    s.push_str("\n## Global tests per window\n\nMAD: maximum absolute deviation (Diggle 2003); its band gives the distance bands. ERL: the rank envelope with extreme-rank-length ordering (Myllymäki et al. 2017) on the same simulated curves.\n\n");
+    s.push_str("| window | n | correction | MAD T | MAD p | ERL p | bands outside the MAD envelope |\n|---|---:|---|---:|---:|---:|---|\n");
     for r in table_rows(run) {
         let _ = writeln!(
             s,
-            "| `{}` | {} | {} | {} | {} | {} |",
-            r[0], r[1], r[2], r[3], r[4], r[5]
+            "| `{}` | {} | {} | {} | {} | {} | {} |",
+            r[0], r[1], r[2], r[3], r[4], r[5], r[6]
         );
     }
     for k in &run.skipped {
@@ -173,17 +178,18 @@ pub fn html_section(run: &ScalesRun, svg: Option<&str>) -> String {
             strip_xml_declaration(svg)
         );
     }
-    h.push_str("<table>\n<tr><th>window</th><th>n</th><th>correction</th><th>MAD T</th><th>p</th><th>bands outside the global envelope</th></tr>\n");
+    h.push_str("<table>\n<tr><th>window</th><th>n</th><th>correction</th><th>MAD T</th><th>MAD p</th><th>ERL p</th><th>bands outside the MAD envelope</th></tr>\n");
     for r in table_rows(run) {
         let _ = writeln!(
             h,
-            "<tr><td><code>{}</code></td><td class=\"num\">{}</td><td>{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td>{}</td></tr>",
+            "<tr><td><code>{}</code></td><td class=\"num\">{}</td><td>{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td>{}</td></tr>",
             e(&r[0]),
             e(&r[1]),
             e(&r[2]),
             e(&r[3]),
             e(&r[4]),
-            e(&r[5])
+            e(&r[5]),
+            e(&r[6])
         );
     }
     h.push_str("</table>\n");

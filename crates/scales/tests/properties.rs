@@ -9,6 +9,7 @@ use patternproof_audit::streams::stream;
 use patternproof_audit::window::{WindowOptions, build_windows};
 use patternproof_scales::envelope::{mad_test, simulate};
 use patternproof_scales::k_function::k_curves;
+use patternproof_scales::rank_envelope::rank_envelope;
 use patternproof_scales::{Correction, Region, ScalesOptions, run_scales};
 use rand::RngExt;
 use std::f64::consts::PI;
@@ -92,14 +93,17 @@ fn csr_mean_k_is_pi_r_squared() {
 /// The MAD test holds its size: 200 CSR data sets of 20 points, each tested with 19
 /// simulations at α = 0.05 (exact size 1/20). Rejections follow
 /// Binomial(200, 0.05); 2 ≤ X ≤ 22 has probability above 0.999
-/// (binomial tail sums).
+/// (binomial tail sums). The ERL test on the same curves is exact up to
+/// ties, which only make it reject less, so its count must stay ≤ 22; and
+/// wherever its band shows a departure its p-value must be ≤ α.
 #[test]
-fn mad_test_holds_its_size() {
+fn global_tests_hold_their_size() {
     let shape = holed();
     let region = Region::new(&shape, None).unwrap();
     let sampler = Sampler::new(&shape).unwrap();
     let grid: Vec<f64> = (1..=6).map(|k| 0.25 * f64::from(k)).collect();
     let mut rejections = 0;
+    let mut rank_rejections = 0;
     for rep in 0..200u64 {
         let pts = sampler.sample(20, &mut stream(5, "size-observed", rep));
         let (obs, _) = k_curves(&pts, &region, &grid, &[Correction::Isotropic], false);
@@ -115,6 +119,12 @@ fn mad_test_holds_its_size() {
             &|| {},
         );
         let simulated: Vec<Vec<Option<f64>>> = sims.into_iter().map(|mut s| s.remove(0)).collect();
+        let erl = rank_envelope(&obs[0].l_minus_r, &simulated, 0.05);
+        if erl.p <= 0.05 {
+            rank_rejections += 1;
+        } else {
+            assert!(erl.departure.iter().all(|&d| d == 0), "ERL p > α, outside");
+        }
         let t = mad_test(Correction::Isotropic, &obs[0].l_minus_r, &simulated, 0.05);
         if t.p <= 0.05 {
             rejections += 1;
@@ -133,6 +143,10 @@ fn mad_test_holds_its_size() {
         (2..=22).contains(&rejections),
         "{rejections} rejections of 200"
     );
+    assert!(rank_rejections <= 22, "{rank_rejections} ERL rejections");
+    // Not a test that cannot fail: a broken order (say, the most extreme
+    // curve ranked last) would reject almost never or almost always.
+    assert!(rank_rejections >= 1, "{rank_rejections} ERL rejections");
 }
 
 /// A seeded Thomas cluster process (Gaussian offspring about uniform
@@ -178,6 +192,12 @@ fn detects_a_thomas_cluster_process() {
     assert!((t.p - 1.0 / 40.0).abs() < 1e-12, "p {}", t.p);
     assert_eq!(t.departure[1], 1, "{:?}", t.departure);
     assert!(t.departure.iter().all(|&d| d >= 0));
+    // The ERL test sees it too: the observed curve is above every
+    // simulated one at some distance (extreme rank 1) and its p is small.
+    let erl = rank_envelope(&obs[0].l_minus_r, &simulated, 0.05);
+    assert_eq!(erl.extreme_rank, 1);
+    assert!(erl.p <= 0.05, "ERL p {}", erl.p);
+    assert!(erl.departure.iter().all(|&d| d >= 0), "{:?}", erl.departure);
 }
 
 /// Same seed, same numbers for 1 and 2 threads: the whole run serialised.
