@@ -1,6 +1,7 @@
 //! Command-line definitions (clap derive). Every flag is declared once
 //! here; help text, defaults and validation come from this table.
 
+use crate::window_args::WindowArgs;
 use clap::{Args, Parser, Subcommand, ValueEnum};
 use std::path::PathBuf;
 
@@ -92,15 +93,8 @@ pub struct InputArgs {
 pub struct AuditArgs {
     #[command(flatten)]
     pub input: InputArgs,
-    /// Buffer distances for the buffered-hull windows: plain numbers are distances in the
-    /// unit, a trailing `x` means a multiple of the observed mean nearest-neighbour distance.
-    #[arg(
-        long,
-        value_delimiter = ',',
-        default_value = "0.5x,1x,2x",
-        value_name = "D,…"
-    )]
-    pub buffers: Vec<String>,
+    #[command(flatten)]
+    pub window: WindowArgs,
     /// A bare study-area value (unit²), to reproduce an analysis whose outline is unknown.
     #[arg(long, value_name = "A")]
     pub area: Option<f64>,
@@ -124,9 +118,6 @@ pub struct AuditArgs {
     /// Seed of every random stream (printed in the report).
     #[arg(long, default_value_t = 1)]
     pub seed: u64,
-    /// Concavity of the concave hull (geo's parameter; smaller cuts deeper).
-    #[arg(long, default_value_t = 2.0)]
-    pub concavity: f64,
     /// Window whose simulated means `simulation.svg` shows (default: the
     /// first boundary, else the hull).
     #[arg(long, value_name = "ID")]

@@ -19,7 +19,7 @@ use sha2::Digest;
 
 /// Run the command.
 pub fn run(a: &AuditArgs) -> Result<(), Failure> {
-    let buffers = parse_buffers(&a.buffers)?;
+    let (buffers, concavity) = a.window.checked()?;
     let edges = parse_edges(&a.edges)?;
     check_alpha(a.alpha)?;
     if let Some(area) = a.area
@@ -36,12 +36,6 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
             "--guard {g}: the guard width must be a non-negative distance\n  what to do: give a width in the data's unit, or leave it out for the default"
         )));
     }
-    if !(a.concavity > 0.0 && a.concavity.is_finite()) {
-        return Err(Failure::Input(format!(
-            "--concavity {}: must be a positive number\n  what to do: leave it out for geo's default 2.0",
-            a.concavity
-        )));
-    }
     if let Some(r) = a.scales_rmax
         && !(r > 0.0 && r.is_finite())
     {
@@ -55,7 +49,7 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
         windows: WindowOptions {
             buffers: buffers.clone(),
             area: a.area,
-            concavity: a.concavity,
+            concavity: concavity,
         },
         alpha: a.alpha,
         edges,
@@ -92,7 +86,7 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
             .map(|b| b.describe())
             .collect::<Vec<_>>()
             .join(","),
-        a.concavity,
+        concavity,
     );
     let mut report = report;
     report.provenance = provenance(&data)?;
@@ -107,7 +101,7 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
         Some(scales_cmd::compute(
             &data,
             buffers.clone(),
-            a.concavity,
+            concavity,
             &options,
             a.quiet,
         )?)

@@ -14,6 +14,7 @@ mod protocol_cmd;
 mod recheck_cmd;
 mod scales_cmd;
 mod sites_cmd;
+mod window_args;
 
 use clap::Parser;
 use std::process::ExitCode;

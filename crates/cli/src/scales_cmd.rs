@@ -6,9 +6,10 @@
 //! the test are in the `patternproof-scales` crate.
 
 use crate::args::InputArgs;
-use crate::audit_cmd::{check_alpha, load, named_shapes, parse_buffers};
+use crate::audit_cmd::{check_alpha, load, named_shapes};
 use crate::fail::Failure;
 use crate::progress::Progress;
+use crate::window_args::WindowArgs;
 use clap::Args;
 use geo::Translate;
 use patternproof_audit::BufferRule;
@@ -35,15 +36,8 @@ const MAX_STEPS: usize = 10_000;
 pub struct ScalesArgs {
     #[command(flatten)]
     pub input: InputArgs,
-    /// Buffer distances for the buffered-hull windows: plain numbers are distances in the
-    /// unit, a trailing `x` means a multiple of the observed mean nearest-neighbour distance.
-    #[arg(
-        long,
-        value_delimiter = ',',
-        default_value = "0.5x,1x,2x",
-        value_name = "D,…"
-    )]
-    pub buffers: Vec<String>,
+    #[command(flatten)]
+    pub window: WindowArgs,
     /// Edge corrections whose curves are estimated: border, isotropic, translation.
     #[arg(
         long,
@@ -76,9 +70,6 @@ pub struct ScalesArgs {
     /// Significance level of the global test.
     #[arg(long, default_value_t = 0.05, allow_hyphen_values = true)]
     pub alpha: f64,
-    /// Concavity of the concave hull (geo's parameter; smaller cuts deeper).
-    #[arg(long, default_value_t = 2.0)]
-    pub concavity: f64,
     /// Replace an earlier report in `--out` (a folder that is not a
     /// patternproof report is never replaced).
     #[arg(long)]
@@ -113,7 +104,7 @@ fn parse_corrections(flag: &str, words: &[String]) -> Result<Vec<Correction>, Fa
 
 /// Run the command.
 pub fn run(a: &ScalesArgs) -> Result<(), Failure> {
-    let buffers = parse_buffers(&a.buffers)?;
+    let (buffers, concavity) = a.window.checked()?;
     let mut corrections = parse_corrections("--edges", &a.edges)?;
     let tested = parse_corrections("--test-edges", &a.test_edges)?;
     for &t in &tested {
@@ -135,12 +126,6 @@ pub fn run(a: &ScalesArgs) -> Result<(), Failure> {
             a.steps
         )));
     }
-    if !(a.concavity > 0.0 && a.concavity.is_finite()) {
-        return Err(Failure::Input(format!(
-            "--concavity {}: must be a positive number\n  what to do: leave it out for geo's default 2.0",
-            a.concavity
-        )));
-    }
     let data = load(&a.input)?;
     let options = ScalesOptions {
         corrections,
@@ -151,7 +136,7 @@ pub fn run(a: &ScalesArgs) -> Result<(), Failure> {
         seed: a.seed,
         alpha: a.alpha,
     };
-    let (run, notes) = compute(&data, buffers, a.concavity, &options, a.quiet)?;
+    let (run, notes) = compute(&data, buffers, concavity, &options, a.quiet)?;
     let mut folder = OutputFolder::default();
     add_files(&mut folder, &run)?;
     write_folder_with(&a.out, &folder, a.force).map_err(|e| Failure::Input(e.to_string()))?;

@@ -1,0 +1,40 @@
+//! The window-shaping options that `audit` and `scales` share, defined
+//! once so that both commands offer the same flags with the same defaults,
+//! help and checks.
+
+use crate::audit_cmd::parse_buffers;
+use crate::fail::Failure;
+use clap::Args;
+use patternproof_audit::BufferRule;
+
+/// `--buffers` and `--concavity`.
+#[derive(Debug, Clone, Args)]
+pub struct WindowArgs {
+    /// Buffer distances for the buffered-hull windows: plain numbers are distances in the
+    /// unit, a trailing `x` means a multiple of the observed mean nearest-neighbour distance.
+    #[arg(
+        long,
+        value_delimiter = ',',
+        default_value = "0.5x,1x,2x",
+        value_name = "D,…"
+    )]
+    pub buffers: Vec<String>,
+    /// Concavity of the concave hull (geo's parameter; smaller cuts deeper).
+    #[arg(long, default_value_t = 2.0)]
+    pub concavity: f64,
+}
+
+impl WindowArgs {
+    /// The buffer rules and the concavity, checked: exit 2 with the flag
+    /// named and what to do, before any file is read.
+    pub fn checked(&self) -> Result<(Vec<BufferRule>, f64), Failure> {
+        let buffers = parse_buffers(&self.buffers)?;
+        if !(self.concavity > 0.0 && self.concavity.is_finite()) {
+            return Err(Failure::Input(format!(
+                "--concavity {}: must be a positive number\n  what to do: leave it out for geo's default 2.0",
+                self.concavity
+            )));
+        }
+        Ok((buffers, self.concavity))
+    }
+}
