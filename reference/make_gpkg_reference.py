@@ -130,6 +130,23 @@ def rect(x0, y0, x1, y1):
     return [(x0, y0), (x1, y0), (x1, y1), (x0, y1), (x0, y0)]
 
 
+def write_bad_multipoint():
+    """tests/bad-inputs/bad-multipoint.gpkg: a MULTIPOINT layer whose fid 3
+    has a second member with the EWKB SRID flag (0x20000000) in its type
+    word, the shape of a crash `cargo fuzz` found (target gpkg_geometry).
+    Packed by hand: shapely writes no such member."""
+    p = BAD / "bad-multipoint.gpkg"
+    db = new_gpkg(p, [("WGS 84 / UTM zone 33N", 32633, "EPSG", 32633, UTM33, None)])
+    pairs = [[(500010.5, 5600020.25), (500110.5, 5600070.75)], [(500210.0, 5600120.5), (500305.25, 5600180.0)]]
+    rows = [(blob(MultiPoint(pair), 32633),) for pair in pairs]
+    bad = b"GP" + bytes([0, 1]) + struct.pack("<i", 32633) + struct.pack("<BII", 1, 4, 2)
+    bad += struct.pack("<BIdd", 1, 1, 500400.5, 5600230.25) + struct.pack("<BIdd", 1, 0x20000001, 500500.5, 5600290.75)
+    rows.append((bad,))
+    add_layer(db, "plots", "MULTIPOINT", 32633, [], rows)
+    db.commit()
+    db.close()
+
+
 def main():
     OUT.mkdir(exist_ok=True)
     rng = np.random.default_rng(SEED)
@@ -168,6 +185,28 @@ def main():
     (OUT / "area_utm.wkt").write_text(shapely.to_wkt(area_utm, rounding_precision=-1) + "\n")
     (OUT / "area_wgs84.wkt").write_text(shapely.to_wkt(area_wgs84, rounding_precision=-1) + "\n")
 
+    # One boundary per site for `sites --boundaries`: site "north" in two
+    # features (parts of one site: the survey box and a detached plot), and
+    # "south" in one (a larger box); every site's points lie inside its own
+    # boundary. A third name matches no site. The same shapes as GeoJSON
+    # with the UTM crs.
+    north_parts = [Polygon(rect(499950.0, 5599950.0, 500850.0, 5600650.0)),
+                   Polygon(rect(501000.0, 5600000.0, 501100.0, 5600100.0))]
+    south = Polygon(rect(499900.0, 5599900.0, 500900.0, 5600700.0))
+    elsewhere = Polygon(rect(510000.0, 5610000.0, 510100.0, 5610100.0))
+    named = [("north", north_parts[0]), ("south", south), ("north", north_parts[1]), ("pond", elsewhere)]
+    p = OUT / "site_areas.gpkg"
+    db = new_gpkg(p, [("WGS 84 / UTM zone 33N", 32633, "EPSG", 32633, UTM33, None)])
+    add_layer(db, "site_areas", "POLYGON", 32633, [("site", "TEXT")],
+              [(blob(g, 32633, envelope=True), n) for n, g in named])
+    db.commit()
+    db.execute("VACUUM")
+    db.close()
+    features = [{"type": "Feature", "properties": {"site": n}, "geometry": shapely.geometry.mapping(g)} for n, g in named]
+    fc = {"type": "FeatureCollection", "crs": {"type": "name", "properties": {"name": "urn:ogc:def:crs:EPSG::32633"}},
+          "features": features}
+    (OUT / "site_areas.geojson").write_text(json.dumps(fc, indent=1) + "\n")
+
     # Bad inputs. corrupt.gpkg: a valid SQLite header page followed by noise.
     good = path.read_bytes()
     noise = np.random.default_rng(SEED + 1).integers(0, 256, 3 * 1024, dtype=np.uint8).tobytes()
@@ -190,6 +229,7 @@ def main():
     add_layer(db, "plots", "POINT", 32633, [], rows)
     db.commit()
     db.close()
+    write_bad_multipoint()
 
     out = {
         "versions": {

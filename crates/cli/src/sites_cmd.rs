@@ -7,7 +7,8 @@ use crate::protocol_cmd::read_verified;
 use clap::Args;
 use patternproof_audit::window::NamedShape;
 use patternproof_io::boundary::read_named_boundaries;
-use patternproof_io::{CoordChoice, Dataset, LoadOptions};
+use patternproof_io::geopackage::{self, is_geopackage};
+use patternproof_io::{CoordChoice, CoordSystem, Dataset, LoadOptions};
 use patternproof_protocol::Protocol;
 use patternproof_report::document::{FileDigest, ReportProvenance};
 use patternproof_report::{AuditReport, OutputFolder, write_folder_with};
@@ -34,10 +35,16 @@ pub struct SitesArgs {
     /// Keep only the GeoPackage points whose column FIELD equals VALUE (e.g. `--where year=2024`).
     #[arg(long = "where", value_name = "FIELD=VALUE")]
     pub filter: Option<String>,
-    /// GeoJSON FeatureCollection with one boundary per site, matched by name.
+    /// One boundary per site, matched by name: a GeoJSON FeatureCollection or a
+    /// GeoPackage polygon layer.
     #[arg(long, value_name = "FILE")]
     pub boundaries: Option<PathBuf>,
-    /// Property of the boundary features that holds the site name.
+    /// GeoPackage polygon layer of `--boundaries` (needed when the file holds more than one
+    /// feature layer).
+    #[arg(long, value_name = "NAME")]
+    pub boundary_layer: Option<String>,
+    /// Property (GeoJSON) or column (GeoPackage) of the boundary features that holds the site
+    /// name.
     #[arg(long, default_value = "name", value_name = "NAME")]
     pub boundary_field: String,
     /// How to read coordinates.
@@ -202,8 +209,25 @@ fn load_sites(a: &SitesArgs) -> Result<(Vec<Loaded>, Vec<Dataset>), Failure> {
             datasets.push(data);
         }
     }
+    if a.boundary_layer.is_some() && !a.boundaries.as_deref().is_some_and(is_geopackage) {
+        return Err(Failure::Input(
+            "--boundary-layer was given but --boundaries is not a GeoPackage\n  what to do: give --boundaries FILE.gpkg --boundary-layer NAME, or leave --boundary-layer out".into(),
+        ));
+    }
     if let Some(bfile) = &a.boundaries {
-        let raws = read_named_boundaries(bfile, &a.boundary_field)?;
+        let mut layer_srs = None;
+        let raws = if is_geopackage(bfile) {
+            let (raws, layer, srs) = geopackage::read_named_boundaries(
+                bfile,
+                a.boundary_layer.as_deref(),
+                &a.boundary_field,
+                coords(a.coords),
+            )?;
+            layer_srs = srs.map(|s| (layer, s));
+            raws
+        } else {
+            read_named_boundaries(bfile, &a.boundary_field)?
+        };
         for raw in &raws {
             if !sites.iter().any(|s| s.input.name == raw.name) {
                 eprintln!(
@@ -215,6 +239,21 @@ fn load_sites(a: &SitesArgs) -> Result<(Vec<Loaded>, Vec<Dataset>), Failure> {
         }
         for s in &mut sites {
             if let Some(raw) = raws.iter().find(|r| r.name == s.input.name) {
+                let data = &datasets[s.data];
+                // Projected layers must share the points' system: nothing
+                // here reprojects between two projected systems.
+                if let (Some((layer, b)), Some(p), CoordSystem::Projected, CoordChoice::Auto) =
+                    (&layer_srs, &data.srs, data.system, coords(a.coords))
+                    && !geopackage::same_system(p, b)
+                {
+                    return Err(Failure::Input(format!(
+                        "{}: layer `{layer}` is in {} but the points of site `{}` are in {}\n  what to do: reproject the boundaries to the points' coordinate system in a GIS and export them again",
+                        bfile.display(),
+                        b.label(),
+                        s.input.name,
+                        p.label()
+                    )));
+                }
                 let b = datasets[s.data].planar(bfile, raw.clone(), coords(a.coords))?;
                 s.input.boundary = Some(NamedShape {
                     name: b.name.clone(),

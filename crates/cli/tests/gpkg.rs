@@ -432,3 +432,109 @@ fn sites_from_a_layer_match_sites_from_csv() {
     assert_eq!(w.as_array().unwrap().len(), 2);
     assert_ne!(w, g);
 }
+
+/// `sites --boundaries` from a GeoPackage polygon layer (one site per value
+/// of `--boundary-field`, parts of a site merged) gives every site the
+/// same boundary window as the same shapes in GeoJSON; the fixture is
+/// written by reference/make_gpkg_reference.py with shapely. A layer
+/// without the named column is refused with exit 2, naming the column.
+#[test]
+fn sites_boundaries_from_a_layer_match_geojson() {
+    let dir = tempfile::tempdir().unwrap();
+    let protocol = dir.path().join("protocol.json");
+    let o = run(&[
+        "protocol",
+        "new",
+        "--window",
+        "boundary",
+        "--sims",
+        "19",
+        "--out",
+        protocol.to_str().unwrap(),
+    ]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let survey = fixture("survey.gpkg");
+    let sites = |out: &str, extra: &[&str]| -> Output {
+        let o_str = dir.path().join(out).display().to_string();
+        let mut args = vec![
+            "sites",
+            &survey,
+            "--layer",
+            "plots_utm",
+            "--protocol",
+            protocol.to_str().unwrap(),
+            "--site-field",
+            "site",
+            "--boundary-field",
+            "site",
+            "--sweep-sims",
+            "9",
+            "--out",
+            &o_str,
+        ];
+        args.extend_from_slice(extra);
+        run(&args)
+    };
+    let areas = |out: &str| -> Vec<(String, f64, f64)> {
+        let v: Value = serde_json::from_str(
+            &std::fs::read_to_string(dir.path().join(out).join("sites.json")).unwrap(),
+        )
+        .unwrap();
+        v["sites"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|s| {
+                (
+                    format!("{} {} {}", s["site"], s["status"], s["window"]),
+                    s["window_area"].as_f64().unwrap_or(f64::NAN),
+                    s["p"].as_f64().unwrap_or(f64::NAN),
+                )
+            })
+            .collect()
+    };
+    let gpkg = fixture("site_areas.gpkg");
+    let o = sites("g", &["--boundaries", &gpkg]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    assert!(
+        String::from_utf8_lossy(&o.stderr).contains("boundary `pond` matches no site"),
+        "{}",
+        String::from_utf8_lossy(&o.stderr)
+    );
+    let o = sites("j", &["--boundaries", &fixture("site_areas.geojson")]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let (g, j) = (areas("g"), areas("j"));
+    assert_eq!(g.len(), 2);
+    assert_eq!(g, j);
+    // The fixture's areas (rectangles, so exact): north = 900·700 +
+    // 100·100 m² in two parts, south = 1000·800 m².
+    let area_of = |name: &str| {
+        g.iter()
+            .find(|s| s.0.starts_with(&format!("\"{name}\" \"tested\"")))
+            .map(|s| s.1)
+    };
+    assert_eq!(area_of("north"), Some(900.0 * 700.0 + 100.0 * 100.0));
+    assert_eq!(area_of("south"), Some(1000.0 * 800.0));
+
+    let o = run(&[
+        "sites",
+        &survey,
+        "--layer",
+        "plots_utm",
+        "--protocol",
+        protocol.to_str().unwrap(),
+        "--site-field",
+        "site",
+        "--boundaries",
+        &gpkg,
+        "--out",
+        dir.path().join("bad").to_str().unwrap(),
+    ]);
+    assert_eq!(o.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert!(
+        err.contains("no column `name`") && err.contains("--boundary-field"),
+        "{err}"
+    );
+    assert!(!dir.path().join("bad").exists());
+}

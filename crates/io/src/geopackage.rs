@@ -456,6 +456,90 @@ pub fn read_boundary(
     })
 }
 
+/// The boundaries of many sites in one GeoPackage polygon layer, one site
+/// per value of the column `field` (features sharing a value are parts of
+/// one site), in order of first appearance: the GeoPackage form of
+/// [`crate::boundary::read_named_boundaries`]. Also returns the layer's
+/// name and coordinate system row.
+pub fn read_named_boundaries(
+    path: &Path,
+    layer_name: Option<&str>,
+    field: &str,
+    choice: CoordChoice,
+) -> Result<(Vec<RawBoundary>, String, Option<SpatialRef>), InputError> {
+    let gpkg = GeoPackage::open(path).map_err(|e| gpkg_error(path, e, "--boundary-layer"))?;
+    let layer = choose_layer(path, &gpkg, layer_name, "--boundary-layer")?;
+    let srs = srs_of(path, &gpkg, &layer)?;
+    let declared = match choice {
+        CoordChoice::Auto => Some(decide(path, &layer, srs.as_ref(), choice)?.system),
+        _ => None,
+    };
+    let (columns, _) = gpkg
+        .columns(&layer)
+        .map_err(|e| gpkg_error(path, e, "--boundary-layer"))?;
+    if !columns.iter().any(|c| c == field) {
+        return Err(InputError::new(
+            path,
+            format!(
+                "layer `{}` has no column `{field}` naming the sites (its columns: {})",
+                layer.name,
+                columns.join(", ")
+            ),
+            "choose the column that holds the site names with --boundary-field",
+        ));
+    }
+    let features = gpkg
+        .features(&layer, Some(field), None)
+        .map_err(|e| gpkg_error(path, e, "--boundary-layer"))?;
+    let mut out: Vec<RawBoundary> = Vec::new();
+    for f in &features {
+        let at = || format!("layer `{}`, feature fid {}", layer.name, f.fid);
+        let polygons = match &f.shape {
+            None => continue,
+            Some(Shape::Polygons(mp)) => mp,
+            Some(other) => {
+                return Err(InputError::new(
+                    path,
+                    format!(
+                        "a boundary must be polygons, this feature is a {}",
+                        other.type_name()
+                    ),
+                    "choose a polygon layer with --boundary-layer NAME",
+                )
+                .at(at()));
+            }
+        };
+        let Some(name) = f.value.clone() else {
+            return Err(InputError::new(
+                path,
+                format!("the feature has no value in column `{field}` naming its site"),
+                "give every boundary feature its site's name, or choose another column with --boundary-field",
+            )
+            .at(at()));
+        };
+        match out.iter_mut().find(|b| b.name == name) {
+            Some(b) => b.shape.0.extend(polygons.0.iter().cloned()),
+            None => out.push(RawBoundary {
+                name,
+                shape: polygons.clone(),
+                declared,
+            }),
+        }
+    }
+    if out.is_empty() {
+        return Err(InputError::new(
+            path,
+            format!(
+                "layer `{}` holds no polygon ({} feature(s), all empty or without geometry)",
+                layer.name,
+                features.len()
+            ),
+            "choose a polygon layer with --boundary-layer NAME",
+        ));
+    }
+    Ok((out, layer.name.clone(), srs))
+}
+
 /// Do two coordinate-system rows describe the same system? Same
 /// organisation and code, or the same definition text.
 pub fn same_system(a: &SpatialRef, b: &SpatialRef) -> bool {
