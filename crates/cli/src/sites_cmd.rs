@@ -370,12 +370,18 @@ fn outputs(
                     .collect::<Result<_, _>>()?,
             };
             report.protocol_sha256 = Some(hash.clone());
-            let folder = render(
+            let mut folder = render(
                 &report,
                 &s.input.points,
                 datasets[s.data].projection.as_ref(),
                 &choices,
             )?;
+            // The same outlines file as `audit` writes, so a site's
+            // windows can be laid over its map in a GIS.
+            folder.add(
+                "windows.gpkg",
+                crate::audit_cmd::windows_gpkg(&report, &datasets[s.data], false)?,
+            );
             let dir = folders
                 .iter()
                 .find(|f| f.0 == s.input.name)

@@ -515,6 +515,34 @@ fn sites_boundaries_from_a_layer_match_geojson() {
     };
     assert_eq!(area_of("north"), Some(900.0 * 700.0 + 100.0 * 100.0));
     assert_eq!(area_of("south"), Some(1000.0 * 800.0));
+    // Each site's folder carries windows.gpkg like `audit`'s, holding the
+    // site report's windows; its boundary window has the fixture's area.
+    {
+        use geo::Area;
+        let site = dir.path().join("g").join("site").join("north");
+        let report: Value =
+            serde_json::from_str(&std::fs::read_to_string(site.join("report.json")).unwrap())
+                .unwrap();
+        let ids: Vec<&str> = report["windows"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .filter(|w| w["id"] != "area")
+            .map(|w| w["id"].as_str().unwrap())
+            .collect();
+        let read = windows_in(&site);
+        assert_eq!(read.iter().map(|w| w.0.as_str()).collect::<Vec<_>>(), ids);
+        let boundary = read
+            .iter()
+            .find(|w| w.1 == "boundary")
+            .expect("boundary window");
+        assert_rel(
+            "north boundary",
+            boundary.4.unsigned_area(),
+            900.0 * 700.0 + 100.0 * 100.0,
+            1e-12,
+        );
+    }
 
     let o = run(&[
         "sites",
