@@ -114,7 +114,7 @@ pub fn rectangle_share(rect: Rect, c: Xy, r: f64) -> Option<f64> {
         c[1] - rect.min[1],
         rect.max[1] - c[1],
     ];
-    if d.iter().any(|&v| !(v >= 0.0)) {
+    if d.iter().any(|&v| v.is_nan() || v < 0.0) {
         return None;
     }
     // Half-width of the arc beyond each side: left, right, bottom, top.
@@ -213,9 +213,9 @@ mod tests {
             max: [10.0, 10.0],
         };
         assert_eq!(rectangle_share(sq, [5.0, 5.0], 2.0), Some(1.0));
-        assert!((rectangle_share(sq, [5.0, 0.0], 2.0).unwrap() - 0.5).abs() < 1e-15);
-        assert!((rectangle_share(sq, [0.0, 0.0], 2.0).unwrap() - 0.25).abs() < 1e-15);
-        assert!((rectangle_share(sq, [5.0, 1.0], 2.0).unwrap() - 2.0 / 3.0).abs() < 1e-15);
+        assert!((rectangle_share(sq, [5.0, 0.0], 2.0).expect("inside") - 0.5).abs() < 1e-15);
+        assert!((rectangle_share(sq, [0.0, 0.0], 2.0).expect("inside") - 0.25).abs() < 1e-15);
+        assert!((rectangle_share(sq, [5.0, 1.0], 2.0).expect("inside") - 2.0 / 3.0).abs() < 1e-15);
         assert_eq!(rectangle_share(sq, [5.0, 5.0], 100.0), Some(0.0));
         // A centre outside the rectangle is left to the arc method.
         assert_eq!(rectangle_share(sq, [-1.0, 5.0], 2.0), None);
