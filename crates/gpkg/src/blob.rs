@@ -195,10 +195,50 @@ pub fn decode(bytes: &[u8]) -> Result<Decoded, BlobError> {
     if used < body.len() {
         return Err(BlobError::Trailing(body.len() - used));
     }
+    if let GeometryType::MultiPoint(mp) = wkb.as_type() {
+        check_members(mp)?;
+    }
     Ok(Decoded {
         header,
         shape: shape_of(&wkb),
     })
+}
+
+/// Read every member of a MultiPoint as a point of its own before the
+/// members are iterated. The `wkb` reader (0.9.3) checks only the
+/// MultiPoint's total length and then unwraps each member's header as it
+/// goes, so a member flagged with an EWKB SRID (found by `cargo fuzz`,
+/// target `gpkg_geometry`) panicked there. A member in the other byte
+/// order is refused as well: that reader would take its coordinates in
+/// the MultiPoint's order and give wrong points without a word.
+fn check_members(mp: &wkb::reader::MultiPoint<'_>) -> Result<(), BlobError> {
+    let buf = mp.buf();
+    let n = mp.num_points();
+    for i in 0..n {
+        let problem =
+            |what: String| BlobError::Wkb(format!("MultiPoint member {} of {n}: {what}", i + 1));
+        let (start, end) = (mp.point_offset(i as u64), mp.point_offset(i as u64 + 1));
+        let member = usize::try_from(start)
+            .ok()
+            .zip(usize::try_from(end).ok())
+            .and_then(|(s, e)| buf.get(s..e))
+            .ok_or_else(|| problem("it lies beyond the end of the geometry".into()))?;
+        if member.first() != buf.first() {
+            return Err(problem(
+                "written in a different byte order from its MultiPoint, which patternproof does not read".into(),
+            ));
+        }
+        let point = wkb::reader::read_wkb(member).map_err(|e| problem(e.to_string()))?;
+        if !matches!(point.as_type(), GeometryType::Point(_))
+            || point.dim() != mp.dim()
+            || point.buf().len() != member.len()
+        {
+            return Err(problem(
+                "not a plain point with the MultiPoint's own coordinate dimensions".into(),
+            ));
+        }
+    }
+    Ok(())
 }
 
 fn xy(c: &impl CoordTrait<T = f64>) -> Option<Coord<f64>> {
@@ -368,6 +408,33 @@ mod tests {
         let mut b = point_blob(0, 0);
         b.push(0);
         assert_eq!(decode(&b).unwrap_err(), BlobError::Trailing(1));
+    }
+
+    /// A MultiPoint whose second member carries the EWKB SRID flag
+    /// (0x20000000 in its type word): the `gpkg_geometry` fuzz crash,
+    /// reduced by hand. The `wkb` reader unwrapped that member's header.
+    #[test]
+    fn multipoint_member_with_an_srid_flag_is_an_error() {
+        let mut b = vec![b'G', b'P', 0, 1, 0, 0, 0, 0, 1];
+        b.extend_from_slice(&4u32.to_le_bytes());
+        b.extend_from_slice(&2u32.to_le_bytes());
+        for (ty, x) in [(1u32, 1.0f64), (0x2000_0001, 2.0)] {
+            b.push(1);
+            b.extend_from_slice(&ty.to_le_bytes());
+            b.extend_from_slice(&x.to_le_bytes());
+            b.extend_from_slice(&x.to_le_bytes());
+        }
+        let e = decode(&b).unwrap_err();
+        assert!(
+            matches!(&e, BlobError::Wkb(m) if m.starts_with("MultiPoint member 2 of 2")),
+            "{e}"
+        );
+        // The same member as a plain point reads.
+        b[39..43].copy_from_slice(&1u32.to_le_bytes());
+        assert!(matches!(decode(&b).unwrap().shape, Some(Shape::Points(p)) if p.len() == 2));
+        // A member in big-endian order inside a little-endian MultiPoint.
+        b[38] = 0;
+        assert!(decode(&b).is_err());
     }
 
     #[test]

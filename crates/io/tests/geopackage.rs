@@ -427,3 +427,45 @@ fn layer_options_need_a_geopackage() {
     .unwrap_err();
     assert!(e.what.contains("GeoPackage"), "{e}");
 }
+
+/// The `gpkg_geometry` fuzz crash in a file: a MultiPoint whose second
+/// member carries the EWKB SRID flag panicked inside the WKB reader; it
+/// must be an error naming the layer and the feature.
+#[test]
+fn multipoint_member_with_an_srid_flag_is_an_error_at_its_feature() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("member.gpkg");
+    let c = skeleton(&path, &[]);
+    let mut rows = grid(-1)[..3].to_vec();
+    let mut bad = vec![b'G', b'P', 0, 1];
+    bad.extend_from_slice(&(-1i32).to_le_bytes());
+    bad.push(1);
+    bad.extend_from_slice(&4u32.to_le_bytes());
+    bad.extend_from_slice(&2u32.to_le_bytes());
+    for (ty, x) in [(1u32, 3.0f64), (0x2000_0001, 4.0)] {
+        bad.push(1);
+        bad.extend_from_slice(&ty.to_le_bytes());
+        bad.extend_from_slice(&x.to_le_bytes());
+        bad.extend_from_slice(&x.to_le_bytes());
+    }
+    rows.push((bad, 2024));
+    point_layer(&c, "pts", -1, &rows);
+    drop(c);
+    let e = geopackage::read_points(
+        &path,
+        CoordChoice::Auto,
+        None,
+        &GpkgChoice {
+            layer: Some("pts".into()),
+            ..GpkgChoice::default()
+        },
+    )
+    .unwrap_err();
+    assert_eq!(
+        e.location.as_deref(),
+        Some("layer `pts`, feature fid 4"),
+        "{e}"
+    );
+    assert!(e.what.contains("MultiPoint member 2 of 2"), "{e}");
+    assert!(e.hint.contains("repair"), "{e}");
+}
