@@ -565,4 +565,21 @@ fn sites_boundaries_from_a_layer_match_geojson() {
         "{err}"
     );
     assert!(!dir.path().join("bad").exists());
+    // --boundary-layer with GeoJSON boundaries is a usage error, exit 2.
+    let o = sites(
+        "bad2",
+        &[
+            "--boundaries",
+            &fixture("site_areas.geojson"),
+            "--boundary-layer",
+            "site_areas",
+        ],
+    );
+    assert_eq!(o.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert!(
+        err.contains("not a GeoPackage") && err.contains("what to do"),
+        "{err}"
+    );
+    assert!(!dir.path().join("bad2").exists());
 }
