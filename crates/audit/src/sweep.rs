@@ -324,7 +324,10 @@ fn rows_of_window(
     }
     let wants = |e: Edge| options.edges.contains(&e);
     let outline = if wants(Edge::Border) {
-        w.shape.as_ref().map(|s| Outline::new(s, Some(guard)))
+        w.shape.as_ref().map(|s| match (&w.hull, w.buffer) {
+            (Some(hull), Some(d)) => Outline::around_buffered_hull(s, hull, d, Some(guard)),
+            _ => Outline::new(s, Some(guard)),
+        })
     } else {
         None
     };

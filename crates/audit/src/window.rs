@@ -14,8 +14,8 @@
 
 use geo::algorithm::Buffer;
 use geo::{
-    Area, BoundingRect, ConcaveHull, ConvexHull, Euclidean, Length, LineString, MultiPoint,
-    MultiPolygon, Point, Polygon, Rect as GeoRect,
+    Area, BoundingRect, ConcaveHull, ConvexHull, Coord, Euclidean, Length, LineString, MultiPoint,
+    MultiPolygon, Orientation, Point, Polygon, Rect as GeoRect,
 };
 use patternproof_core::Xy;
 use patternproof_core::toroidal::Rect;
@@ -102,6 +102,10 @@ pub struct Window {
     /// Indices of the points the window covers.
     #[serde(skip)]
     pub inside: Vec<usize>,
+    /// For `hull+D`: the convex hull the buffer surrounds. The guard zone
+    /// measures from it exactly (see [`Outline::around_buffered_hull`]).
+    #[serde(skip)]
+    pub hull: Option<Polygon<f64>>,
 }
 
 /// A user boundary handed to the window builder.
@@ -216,7 +220,7 @@ pub fn build_windows(
                 continue;
             }
             let buffered = hull.buffer(d);
-            windows.push(from_shape(
+            let mut window = from_shape(
                 &format!("hull+{}", short_number(d)),
                 WindowKind::BufferedHull,
                 Some(d),
@@ -225,7 +229,9 @@ pub fn build_windows(
                 None,
                 points,
                 buffered_coverage(&hull, d),
-            ));
+            );
+            window.hull = Some(hull.clone());
+            windows.push(window);
         }
         let concave = multipoint.concave_hull_with_options(
             geo::algorithm::concave_hull::ConcaveHullOptions {
@@ -287,6 +293,7 @@ pub fn build_windows(
             shape: None,
             rectangle: None,
             inside: (0..points.len()).collect(),
+            hull: None,
         });
     }
     (windows, notes)
@@ -334,6 +341,7 @@ fn from_shape(
         shape: Some(shape),
         rectangle,
         inside,
+        hull: None,
     }
 }
 
@@ -525,6 +533,95 @@ mod tests {
         }
     }
 
+    /// The buffered hull's guard test against geo: the exact buffer of a
+    /// convex set lies D + t from a point t inside its outline and D − t
+    /// from a point t outside (the parallel body of a convex set; Steiner's
+    /// formula rests on the same fact, METHODS.md), with t from geo's
+    /// `Euclidean` distance and the side from geo's `Intersects`. Checked
+    /// for guards below, at and above D, on points sampled over the buffered
+    /// polygon, and on the hull's corners and points along its edges, which
+    /// sit exactly at D.
+    #[test]
+    fn buffered_hull_guard_measures_from_the_exact_buffer() {
+        use geo::{Distance, Intersects};
+        let corners = [
+            (0.0, 0.0),
+            (40.0, -3.0),
+            (70.0, 20.0),
+            (69.0, 31.0),
+            (30.0, 45.0),
+            (-5.0, 22.0),
+        ];
+        let hull = Polygon::new(
+            LineString::from(
+                corners
+                    .iter()
+                    .chain(&corners[..1])
+                    .copied()
+                    .collect::<Vec<_>>(),
+            ),
+            vec![],
+        );
+        let d = 6.0;
+        let buffered = hull.buffer(d);
+        let exact = |p: Xy| {
+            let q = Point::new(p[0], p[1]);
+            let t = Euclidean.distance(&q, hull.exterior());
+            if hull.intersects(&q) { d + t } else { d - t }
+        };
+        let mut state: u64 = 0x9E37_79B9_7F4A_7C15;
+        let mut unit = || {
+            state ^= state >> 12;
+            state ^= state << 25;
+            state ^= state >> 27;
+            (state.wrapping_mul(0x2545_F491_4F6C_DD1D) >> 11) as f64 / (1u64 << 53) as f64
+        };
+        let inside_buffer = crate::cover::Cover::new(&buffered);
+        let mut probes: Vec<Xy> = Vec::new();
+        while probes.len() < 4_000 {
+            let p = [unit() * 90.0 - 12.0, unit() * 70.0 - 10.0];
+            if !inside_buffer.covered(&[p]).is_empty() {
+                probes.push(p);
+            }
+        }
+        let on_outline: Vec<Xy> = corners
+            .iter()
+            .zip(corners.iter().cycle().skip(1))
+            .flat_map(|(a, b)| {
+                (0..4).map(move |k| {
+                    let t = k as f64 / 4.0;
+                    [a.0 + t * (b.0 - a.0), a.1 + t * (b.1 - a.1)]
+                })
+            })
+            .collect();
+        for w in [2.0, 5.0, d, 7.5, 13.0] {
+            let o = Outline::around_buffered_hull(&buffered, &hull, d, Some(w));
+            let tree_only = Outline::around_buffered_hull(&buffered, &hull, d, None);
+            for &p in &probes {
+                let want = exact(p) >= w;
+                assert_eq!(o.clear_of(p, w), want, "{p:?} w {w}");
+                assert_eq!(tree_only.clear_of(p, w), want, "{p:?} w {w} (tree)");
+            }
+            for &p in &on_outline {
+                assert_eq!(o.clear_of(p, w), w <= d, "{p:?} w {w} on the hull");
+            }
+        }
+        // The buffer's polygon, measured directly, agrees except within its
+        // chords' sagitta d·(1 − cos 0.1) of the guard width.
+        let polygon = Outline::new(&buffered, Some(5.0));
+        let exact_outline = Outline::around_buffered_hull(&buffered, &hull, d, Some(5.0));
+        let sagitta = d * (1.0 - 0.1f64.cos());
+        for &p in &probes {
+            if (exact(p) - 5.0).abs() > sagitta {
+                assert_eq!(
+                    polygon.clear_of(p, 5.0),
+                    exact_outline.clear_of(p, 5.0),
+                    "{p:?}"
+                );
+            }
+        }
+    }
+
     #[test]
     fn outline_distance_includes_holes() {
         let shape = crate::test_shapes::rectangle_with_hole(10.0, 10.0, [4.0, 4.0, 6.0, 6.0]);
@@ -567,6 +664,66 @@ mod tests {
 pub struct Outline {
     tree: rstar::RTree<rstar::primitives::Line<Xy>>,
     grid: Option<GuardGrid>,
+    /// Set for a buffered hull: the tree and grid then index the hull's
+    /// edges, and distances to the window's outline follow from these.
+    offset: Option<HullOffset>,
+}
+
+/// A convex hull and the buffer distance D drawn around it. The exact
+/// buffer's outline lies D + t from a point t inside the hull's outline,
+/// and D − t from a point t outside it (the offset of a convex set).
+#[derive(Debug, Clone)]
+struct HullOffset {
+    /// The hull's corners, counter-clockwise, not closed.
+    corners: Vec<Coord<f64>>,
+    d: f64,
+}
+
+impl HullOffset {
+    fn new(hull: &Polygon<f64>, d: f64) -> Option<Self> {
+        let mut corners: Vec<Coord<f64>> = hull.exterior().0.clone();
+        if corners.len() > 1 && corners.first() == corners.last() {
+            corners.pop();
+        }
+        if corners.len() < 3 {
+            return None;
+        }
+        if hull.exterior().signed_area() < 0.0 {
+            corners.reverse();
+        }
+        Some(Self { corners, d })
+    }
+
+    /// Whether `p` is inside or on the hull, by exact orientation tests
+    /// (geo's robust kernel): a data point, which the hull holds by
+    /// construction, is never found outside, however the data are turned.
+    /// A binary search over the fan of corners from the first, O(log h).
+    fn contains(&self, p: Xy) -> bool {
+        use geo::kernels::{Kernel, RobustKernel};
+        let v = &self.corners;
+        let p = Coord { x: p[0], y: p[1] };
+        let right = |a: Coord<f64>, b: Coord<f64>| {
+            RobustKernel::orient2d(a, b, p) == Orientation::Clockwise
+        };
+        let last = v.len() - 1;
+        if right(v[0], v[1])
+            || RobustKernel::orient2d(v[0], v[last], p) == Orientation::CounterClockwise
+        {
+            return false;
+        }
+        // Invariant: p is not right of the ray v0→v[lo]; it is right of
+        // v0→v[hi], or on the closing side v0→v[last].
+        let (mut lo, mut hi) = (1, last);
+        while hi - lo > 1 {
+            let mid = (lo + hi) / 2;
+            if right(v[0], v[mid]) {
+                hi = mid;
+            } else {
+                lo = mid;
+            }
+        }
+        !right(v[lo], v[lo + 1])
+    }
 }
 
 #[derive(Debug, Clone)]
@@ -589,6 +746,34 @@ struct GuardGrid {
 const MAX_GUARD_CELLS: f64 = 1_048_576.0;
 
 impl Outline {
+    /// The outline of a buffered convex hull, for the guard zone: a point
+    /// is clear of width w when it is at least w from the exact buffer of
+    /// `hull` by `d`, measured from the hull itself (D ± the distance to
+    /// the hull's outline) rather than from the buffer's polygon. Why: the
+    /// polygon's corners are snapped to a grid by geo's buffer, and the
+    /// default guard width equals the `1x` buffer, so hull corners and
+    /// points on hull edges lie at the guard width up to that snapping; a
+    /// turned or shifted copy of the data would otherwise count them
+    /// differently. The polygon stays within d·(1 − cos 0.1) of the exact
+    /// buffer (arcs cut every 0.2 rad), so the two outlines differ by less
+    /// than 0.5 % of d. Falls back to the buffer's own outline `buffered`
+    /// when the hull has fewer than three corners.
+    pub fn around_buffered_hull(
+        buffered: &MultiPolygon<f64>,
+        hull: &Polygon<f64>,
+        d: f64,
+        guard: Option<f64>,
+    ) -> Self {
+        let Some(offset) = HullOffset::new(hull, d) else {
+            return Self::new(buffered, guard);
+        };
+        // The hull's outline is searched for |w − D| (see `clear_of`).
+        let width = guard.map(|w| (w - d).abs()).filter(|r| *r > 0.0);
+        let mut outline = Self::new(&MultiPolygon::new(vec![hull.clone()]), width);
+        outline.offset = Some(offset);
+        outline
+    }
+
     /// Index every ring edge of `shape`; with `guard` = Some(w), also
     /// build the cell grid for that width.
     pub fn new(shape: &MultiPolygon<f64>, guard: Option<f64>) -> Self {
@@ -606,6 +791,7 @@ impl Outline {
         let mut outline = Self {
             tree: rstar::RTree::bulk_load(lines),
             grid: None,
+            offset: None,
         };
         if let (Some(w), Some(r)) = (guard, shape.bounding_rect())
             && w > 0.0
@@ -713,8 +899,28 @@ impl Outline {
             .map_or(f64::INFINITY, |line| line.distance_2(&p).sqrt())
     }
 
-    /// True when `p` is at least `w` from every edge.
+    /// True when `p` is at least `w` from the window's outline: from every
+    /// edge, or for a buffered hull from the exact buffer.
     pub fn clear_of(&self, p: Xy, w: f64) -> bool {
+        let Some(o) = &self.offset else {
+            return self.edges_clear_of(p, w);
+        };
+        // With t the distance from p to the hull's outline, the buffer's
+        // outline is D + t away inside the hull and D − t outside.
+        let r = (w - o.d).abs();
+        if w > o.d {
+            // Needs t ≥ w − D inside; nothing outside is far enough.
+            self.edges_clear_of(p, r) && o.contains(p)
+        } else if w < o.d {
+            // Everything inside qualifies; outside needs t ≤ D − w.
+            !self.edges_clear_of(p, r) || o.contains(p) || self.distance(p) <= r
+        } else {
+            o.contains(p)
+        }
+    }
+
+    /// True when `p` is at least `w` from every indexed edge.
+    fn edges_clear_of(&self, p: Xy, w: f64) -> bool {
         use rstar::PointDistance;
         if let Some(g) = &self.grid
             && g.w == w

@@ -55,8 +55,29 @@ fn close(
         })
 }
 
+/// 24 cases from a fixed seed, so every run (and CI) checks the same
+/// patterns; `PROPTEST_CASES` and `PROPTEST_RNG_SEED` explore further, e.g.
+/// `PROPTEST_CASES=20000 PROPTEST_RNG_SEED=7 cargo test --release -p
+/// patternproof-audit --test properties`.
+fn config() -> ProptestConfig {
+    let from_env = ProptestConfig::default();
+    ProptestConfig {
+        cases: if std::env::var_os("PROPTEST_CASES").is_some() {
+            from_env.cases
+        } else {
+            24
+        },
+        rng_seed: if std::env::var_os("PROPTEST_RNG_SEED").is_some() {
+            from_env.rng_seed
+        } else {
+            proptest::test_runner::RngSeed::Fixed(0x7061_7474_6572_6e00)
+        },
+        ..from_env
+    }
+}
+
 proptest! {
-    #![proptest_config(ProptestConfig { cases: 24, ..ProptestConfig::default() })]
+    #![proptest_config(config())]
 
     /// Translation, rotation and uniform scaling of the points (and so of
     /// every window drawn from them) leave R, z and p unchanged: the
@@ -153,4 +174,77 @@ fn far_from_the_origin_same_statistics() {
             }
         }
     }
+}
+
+/// Found by `invariant_under_similarity`: with the default guard (the mean
+/// nearest-neighbour distance) the `1x` buffered hull puts hull corners
+/// exactly at the guard width. Measured on the buffer's polygon, whose
+/// corners geo's buffer snaps to a grid, a corner of shallow turn (index 22)
+/// lay 1.3e-8·w short of the guard width before a turn of 1.48 rad and
+/// 1.4e-9·w beyond it after, and the focal count went from 15 to 16. The
+/// guard is now measured from the exact buffer, so the guard-zone rows
+/// agree (reference: the statistic's scale-free definition, Clark & Evans
+/// 1954).
+#[test]
+fn buffered_hull_corner_at_the_guard_width_does_not_turn_with_the_data() {
+    let points: Vec<Xy> = vec![
+        [11.999231972939164, 10.552225862723796],
+        [93.8503930809546, 4.874402939255958],
+        [33.39759799291769, 26.094479755153014],
+        [72.18656970854634, 16.206936322370517],
+        [1.099044943562722, 17.41229618224697],
+        [24.124889229093107, 42.29095623795132],
+        [4.742233102818042, 40.5156002590593],
+        [89.98838205694562, 21.05379035765372],
+        [31.856766068023333, 17.024572515911277],
+        [75.29468815511393, 18.75092013466643],
+        [99.7964712620391, 45.4188901711388],
+        [50.9055851608086, 40.03953229256689],
+        [61.08911952519677, 50.63117017300114],
+        [73.09699887885166, 22.763319059204076],
+        [95.60996092171901, 32.75943090901348],
+        [23.20562379368186, 33.6852187224403],
+        [61.96842756269819, 0.7514122012489168],
+        [4.52821131263028, 41.40249383772729],
+        [54.74635018067944, 44.21437324415849],
+        [0.2816090510407577, 18.437864130726464],
+        [80.80253499481903, 45.131065491452645],
+        [92.53927132544382, 11.320222280499111],
+        [22.08222628981056, 44.26986005832984],
+        [48.533635220750064, 13.275243514047608],
+        [81.38409335013267, 2.822579951523539],
+    ];
+    let (dx, dy, angle, scale) = (
+        -6260.556867662532,
+        -1934.1334392656963,
+        1.4820521818428054f64,
+        6.6089737880659465,
+    );
+    let (s, c) = angle.sin_cos();
+    let moved: Vec<Xy> = points
+        .iter()
+        .map(|p| {
+            [
+                scale * (c * p[0] - s * p[1]) + dx,
+                scale * (s * p[0] + c * p[1]) + dy,
+            ]
+        })
+        .collect();
+    let focal = |pts: &[Xy]| -> Vec<(String, Option<usize>)> {
+        let a = run_audit(pts, &[], &options(), &|| {}).unwrap();
+        a.results
+            .iter()
+            .filter(|r| r.edge == Edge::Border && r.window.starts_with("hull"))
+            .map(|r| {
+                (
+                    r.window.split('+').next().unwrap_or("").to_string(),
+                    r.focal,
+                )
+            })
+            .collect()
+    };
+    let before = focal(&points);
+    assert_eq!(before.len(), 4, "hull and three buffered hulls: {before:?}");
+    assert_eq!(before, focal(&moved));
+    assert!(close(&stats(&points), &stats(&moved), 1e-6));
 }

@@ -1000,64 +1000,9 @@ pub(crate) fn finite_bounds(points: &[Xy]) -> Option<(Xy, Xy)> {
 }
 
 #[cfg(test)]
-pub(crate) mod tests {
+mod tests {
     use super::*;
-
-    /// Brute-force oracle (the O(n²) scan of every pair, the definition of
-    /// the nearest-neighbour distance): squared differences summed as
-    /// dx·dx + dy·dy, then the square root.
-    fn brute_plane(points: &[Xy]) -> Vec<f64> {
-        points
-            .iter()
-            .enumerate()
-            .map(|(i, p)| {
-                let mut best = f64::INFINITY;
-                for (j, q) in points.iter().enumerate() {
-                    if i != j {
-                        let (dx, dy) = (q[0] - p[0], q[1] - p[1]);
-                        best = best.min(dx * dx + dy * dy);
-                    }
-                }
-                best.sqrt()
-            })
-            .collect()
-    }
-
-    /// Brute-force torus oracle: every other point against the nine shifted
-    /// copies of the query (the definition of the flat torus distance).
-    pub(crate) fn brute_torus(points: &[Xy], r: Rect) -> Vec<f64> {
-        let (w, h) = (r.max[0] - r.min[0], r.max[1] - r.min[1]);
-        points
-            .iter()
-            .enumerate()
-            .map(|(i, p)| {
-                let mut best = f64::INFINITY;
-                for (j, q) in points.iter().enumerate() {
-                    if i == j {
-                        continue;
-                    }
-                    for sx in [-w, 0.0, w] {
-                        for sy in [-h, 0.0, h] {
-                            let (dx, dy) = (q[0] - (p[0] + sx), q[1] - (p[1] + sy));
-                            best = best.min(dx * dx + dy * dy);
-                        }
-                    }
-                }
-                best.sqrt()
-            })
-            .collect()
-    }
-
-    /// xorshift64*: a tiny self-contained generator for test data only.
-    struct Gen(u64);
-    impl Gen {
-        fn unit(&mut self) -> f64 {
-            self.0 ^= self.0 >> 12;
-            self.0 ^= self.0 << 25;
-            self.0 ^= self.0 >> 27;
-            (self.0.wrapping_mul(0x2545_F491_4F6C_DD1D) >> 11) as f64 / (1u64 << 53) as f64
-        }
-    }
+    use crate::oracles::{Gen, brute_plane, brute_torus};
 
     /// Many kinds of awkward input: uniform, tight clusters, duplicates,
     /// collinear (horizontal, vertical, diagonal), lattice ties, a far

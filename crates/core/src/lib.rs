@@ -31,6 +31,8 @@ pub mod guard_zone;
 pub mod monte_carlo;
 pub mod nearest;
 pub mod normal;
+#[cfg(test)]
+mod oracles;
 pub mod toroidal;
 
 pub use call::Call;

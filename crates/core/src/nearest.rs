@@ -163,6 +163,7 @@ fn nearest_other(tree: &RTree<Indexed>, i: usize, p: Xy) -> f64 {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::oracles::{Gen, brute_plane, brute_torus};
 
     /// Brute-force oracle: the indexed search must agree exactly with the
     /// O(n²) scan (common practice for checking a spatial index).
@@ -186,20 +187,6 @@ mod tests {
                 .map(|(_, q)| ((p[0] - q[0]).powi(2) + (p[1] - q[1]).powi(2)).sqrt())
                 .fold(f64::INFINITY, f64::min);
             assert_eq!(fast[i], brute, "point {i}");
-        }
-    }
-
-    /// xorshift64*: a tiny self-contained generator for test data only.
-    struct Gen(u64);
-    impl Gen {
-        fn unit(&mut self) -> f64 {
-            self.0 ^= self.0 >> 12;
-            self.0 ^= self.0 << 25;
-            self.0 ^= self.0 >> 27;
-            (self.0.wrapping_mul(0x2545_F491_4F6C_DD1D) >> 11) as f64 / (1u64 << 53) as f64
-        }
-        fn below(&mut self, k: usize) -> usize {
-            ((self.unit() * k as f64) as usize).min(k - 1)
         }
     }
 
@@ -250,25 +237,6 @@ mod tests {
         }
     }
 
-    /// Brute-force oracle: the O(n²) scan of every pair (the definition of
-    /// the nearest-neighbour distance), squares summed as dx·dx + dy·dy.
-    fn brute(points: &[Xy]) -> Vec<f64> {
-        points
-            .iter()
-            .enumerate()
-            .map(|(i, p)| {
-                let mut best = f64::INFINITY;
-                for (j, q) in points.iter().enumerate() {
-                    if i != j {
-                        let (dx, dy) = (q[0] - p[0], q[1] - p[1]);
-                        best = best.min(dx * dx + dy * dy);
-                    }
-                }
-                best.sqrt()
-            })
-            .collect()
-    }
-
     /// Property test over 400 seeded random patterns (2–300 points) of every awkward kind:
     /// the grid-backed [`nearest_distances`], the R*-tree alone and the
     /// brute-force scan agree bit for bit, and the grid is actually used
@@ -279,7 +247,7 @@ mod tests {
         let mut on_grid = 0;
         for case in 0..400 {
             let pts = random_pattern(&mut g, 300);
-            let want = brute(&pts);
+            let want = brute_plane(&pts);
             assert_eq!(
                 nearest_distances(&pts).expect("at least two points"),
                 want,
@@ -331,7 +299,7 @@ mod tests {
                 continue;
             }
             // Brute force: every other point against the nine shifted copies.
-            let want = crate::grid_nearest::tests::brute_torus(&raw, r);
+            let want = brute_torus(&raw, r);
             let grid =
                 crate::toroidal::torus_nearest_distances(&raw, r).expect("at least two points");
             assert_eq!(grid, want, "case {case}");
@@ -349,7 +317,7 @@ mod tests {
             let mut ws = Distances::new();
             assert!(ws.measure(&raw, Some(r)));
             assert_eq!(ws.torus, want, "case {case}");
-            assert_eq!(ws.plane, brute(&raw), "case {case}");
+            assert_eq!(ws.plane, brute_plane(&raw), "case {case}");
             let mut grid = Grid::new();
             if grid.rebuild(&raw, Some(r)) && grid.wraps() {
                 wrapped += 1;
@@ -415,7 +383,7 @@ mod tests {
             ("tight", &tight, false),
         ] {
             assert!(pts.len() >= PARALLEL_FROM, "{name}");
-            let want = brute(pts);
+            let want = brute_plane(pts);
             assert_eq!(grid.rebuild(pts, None), on_grid, "{name}: grid used");
             assert_eq!(nearest_distances(pts).expect("points"), want, "{name}");
             assert_eq!(
@@ -464,7 +432,7 @@ mod tests {
             max: [1e6 + 1.0, 1e6 + 1.0],
         };
         assert!(ws.measure(&tight, Some(rt)));
-        assert_eq!(ws.plane, brute(&tight));
+        assert_eq!(ws.plane, brute_plane(&tight));
         assert_eq!(ws.torus.len(), tight.len());
     }
 
