@@ -176,6 +176,7 @@ fn donnelly_buffer(
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
     use super::*;
     use patternproof_core::NnRatioTest;

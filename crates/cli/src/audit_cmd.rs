@@ -49,7 +49,7 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
         windows: WindowOptions {
             buffers: buffers.clone(),
             area: a.area,
-            concavity: concavity,
+            concavity,
         },
         alpha: a.alpha,
         edges,

@@ -250,7 +250,7 @@ pub fn print_lines(run: &ScalesRun, notes: &[String]) {
         "{:<14} {:>5}  {:<11} {:>9} {:>7} {:>7}  bands outside the MAD envelope",
         "window", "n", "correction", "MAD T", "MAD p", "ERL p"
     );
-    for r in summary::table_rows(&run) {
+    for r in summary::table_rows(run) {
         println!(
             "{:<14} {:>5}  {:<11} {:>9} {:>7} {:>7}  {}",
             r[0], r[1], r[2], r[3], r[4], r[5], r[6]

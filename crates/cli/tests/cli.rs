@@ -1,6 +1,8 @@
 //! End-to-end tests: run the `patternproof` binary on small fixtures and on
 //! the demo data, and check exit codes, messages and the report folder.
 
+#![allow(clippy::unwrap_used)]
+
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 

@@ -131,7 +131,10 @@ fn lonlat_layer_and_boundary_give_the_lonlat_csv_report() {
     assert_eq!(g["input"]["coords"], "lonlat");
 }
 
-fn windows_in(out: &Path) -> Vec<(String, String, f64, Option<f64>, geo::MultiPolygon<f64>)> {
+/// One row of the `windows` layer: id, kind, area, buffer, outline.
+type WindowRow = (String, String, f64, Option<f64>, geo::MultiPolygon<f64>);
+
+fn windows_in(out: &Path) -> Vec<WindowRow> {
     let g = patternproof_gpkg::GeoPackage::open(&out.join("windows.gpkg")).unwrap();
     let layer = g.layer("windows").unwrap();
     let c = Connection::open(out.join("windows.gpkg")).unwrap();

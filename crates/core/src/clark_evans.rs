@@ -95,6 +95,7 @@ pub fn z_from_ratio(ratio: f64, n: usize) -> f64 {
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
     use super::*;
 

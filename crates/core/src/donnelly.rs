@@ -52,6 +52,7 @@ pub fn test(mean_nn: f64, n: usize, area: f64, perimeter: f64) -> Option<NnRatio
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
     use super::*;
 

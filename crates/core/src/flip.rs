@@ -88,6 +88,7 @@ pub fn steiner_area(area: f64, perimeter: f64, d: f64) -> f64 {
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
     use super::*;
     use crate::NnRatioTest;

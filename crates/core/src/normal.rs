@@ -36,6 +36,7 @@ pub fn two_sided_critical(alpha: f64) -> Option<f64> {
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
     use super::*;
 

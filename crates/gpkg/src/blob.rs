@@ -335,6 +335,7 @@ pub fn is_polygon_type(name: &str) -> bool {
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
     use super::*;
     use geo::LineString;

@@ -12,7 +12,7 @@
 //! | [`blob`] | the geometry blob: header (magic, version, flags, srs_id, envelope) and the WKB after it |
 //! | [`crs`] | what a WKT definition says: geographic or projected, and the linear unit |
 //! | [`read`] | layers, spatial reference rows, columns and features, with parameterised queries only |
-//! | [`write`] | one polygon layer in a fresh GeoPackage, built in memory and returned as bytes |
+//! | [`write`](mod@write) | one polygon layer in a fresh GeoPackage, built in memory and returned as bytes |
 //!
 //! This crate knows the format and nothing of the analysis: `patternproof-io`
 //! turns its layers into points and boundaries (and decides what the

@@ -273,6 +273,7 @@ pub fn polygon_layer_bytes(layer: &PolygonLayer) -> Result<Vec<u8>, GpkgError> {
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
     use super::*;
     use crate::read::GeoPackage;

@@ -226,46 +226,6 @@ fn read_wkt(path: &Path, text: &str, stem: String) -> Result<RawBoundary, InputE
     })
 }
 
-#[cfg(test)]
-mod tests {
-    use super::*;
-    use geo::Area;
-    use std::io::Write;
-
-    fn file(ext: &str, body: &str) -> tempfile::NamedTempFile {
-        let mut f = tempfile::Builder::new().suffix(ext).tempfile().unwrap();
-        f.write_all(body.as_bytes()).unwrap();
-        f
-    }
-
-    /// Area of a 10×10 square with a 2×2 hole: 96 (arithmetic).
-    #[test]
-    fn wkt_polygon_with_hole() {
-        let f = file(
-            ".wkt",
-            "POLYGON ((0 0, 10 0, 10 10, 0 10, 0 0), (4 4, 6 4, 6 6, 4 6, 4 4))",
-        );
-        let b = read_boundary(f.path()).unwrap();
-        assert!((b.shape.unsigned_area() - 96.0).abs() < 1e-12);
-        assert_eq!(b.declared, None);
-    }
-
-    #[test]
-    fn geojson_feature_name_is_used() {
-        let body = r#"{"type":"FeatureCollection","features":[{"type":"Feature","properties":{"name":"north"},"geometry":{"type":"Polygon","coordinates":[[[0,0],[1,0],[1,1],[0,1],[0,0]]]}}]}"#;
-        let f = file(".geojson", body);
-        let b = read_boundary(f.path()).unwrap();
-        assert_eq!(b.name, "north");
-        assert_eq!(b.declared, Some(CoordSystem::LonLat));
-    }
-
-    #[test]
-    fn lines_are_not_boundaries() {
-        let f = file(".wkt", "LINESTRING (0 0, 1 1)");
-        assert!(read_boundary(f.path()).unwrap_err().what.contains("lines"));
-    }
-}
-
 /// The boundaries of many sites in one GeoJSON FeatureCollection, one
 /// site per value of the property `field` (features sharing a value are
 /// parts of one site). In file order of first appearance.
@@ -339,4 +299,45 @@ pub fn read_named_boundaries(path: &Path, field: &str) -> Result<Vec<RawBoundary
         ));
     }
     Ok(out)
+}
+
+#[cfg(test)]
+#[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
+mod tests {
+    use super::*;
+    use geo::Area;
+    use std::io::Write;
+
+    fn file(ext: &str, body: &str) -> tempfile::NamedTempFile {
+        let mut f = tempfile::Builder::new().suffix(ext).tempfile().unwrap();
+        f.write_all(body.as_bytes()).unwrap();
+        f
+    }
+
+    /// Area of a 10×10 square with a 2×2 hole: 96 (arithmetic).
+    #[test]
+    fn wkt_polygon_with_hole() {
+        let f = file(
+            ".wkt",
+            "POLYGON ((0 0, 10 0, 10 10, 0 10, 0 0), (4 4, 6 4, 6 6, 4 6, 4 4))",
+        );
+        let b = read_boundary(f.path()).unwrap();
+        assert!((b.shape.unsigned_area() - 96.0).abs() < 1e-12);
+        assert_eq!(b.declared, None);
+    }
+
+    #[test]
+    fn geojson_feature_name_is_used() {
+        let body = r#"{"type":"FeatureCollection","features":[{"type":"Feature","properties":{"name":"north"},"geometry":{"type":"Polygon","coordinates":[[[0,0],[1,0],[1,1],[0,1],[0,0]]]}}]}"#;
+        let f = file(".geojson", body);
+        let b = read_boundary(f.path()).unwrap();
+        assert_eq!(b.name, "north");
+        assert_eq!(b.declared, Some(CoordSystem::LonLat));
+    }
+
+    #[test]
+    fn lines_are_not_boundaries() {
+        let f = file(".wkt", "LINESTRING (0 0, 1 1)");
+        assert!(read_boundary(f.path()).unwrap_err().what.contains("lines"));
+    }
 }

@@ -118,6 +118,7 @@ pub fn in_lat_range(lat: f64) -> bool {
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
     use super::*;
 

@@ -593,6 +593,7 @@ impl crate::dataset::Dataset {
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
     use super::*;
 

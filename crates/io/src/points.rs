@@ -546,6 +546,7 @@ fn read_geojson_points(
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
     use super::*;
     use std::io::Write;
@@ -634,6 +635,7 @@ mod tests {
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod streaming {
     use super::*;
 

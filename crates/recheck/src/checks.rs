@@ -1,7 +1,7 @@
 //! The named checks of the plain reading (no edge correction).
 //!
 //! Each check takes the figures on one side of a relation, propagates
-//! them ([`crate::propagate`]) and compares what comes out with the figure
+//! them ([`crate::propagate`](mod@crate::propagate)) and compares what comes out with the figure
 //! on the other side. A check is `ok` when the two intervals share a
 //! value, `not ok` when they do not, and `cannot tell` when the figures
 //! needed are missing.

@@ -12,7 +12,7 @@
 //! | [`reported`] | a printed number (or bound) as an interval, keeping the text |
 //! | [`interval`] | closed intervals and their monotone arithmetic |
 //! | [`model`] | the relations under one reading: plain, Donnelly, guard zone; normal tails |
-//! | [`propagate`] | the tightest interval of every figure under one reading |
+//! | [`propagate`](mod@propagate) | the tightest interval of every figure under one reading |
 //! | [`checks`] | the named checks of the plain reading (z from R, p from z, area, …) |
 //! | [`explain`] | other readings and likely slips, tried when a plain check fails |
 //! | [`attribution`] | which window × edge handling of the audit reproduces the figures |

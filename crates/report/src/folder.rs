@@ -143,6 +143,7 @@ pub fn write_folder_with(
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
     use super::*;
 

@@ -159,8 +159,7 @@ pub fn window_map_svg(report: &AuditReport, points: &[Xy]) -> Option<String> {
         let bar = [1.0, 2.0, 5.0]
             .iter()
             .map(|m| m * mag)
-            .filter(|b| *b <= target)
-            .last()
+            .rfind(|b| *b <= target)
             .unwrap_or(mag);
         let x0 = cx - half_x * 0.95;
         let y0 = cy - half_y * 0.93;

@@ -7,7 +7,7 @@
 //! average under complete spatial randomness (CSR) and positive for
 //! clustering at distance r.
 //!
-//! Every pair closer than r_max is visited once ([`crate::pairs`]); its
+//! Every pair closer than r_max is visited once ([`patternproof_core::close_pairs`]); its
 //! isotropic weights (both directions: the weight is not symmetric) and
 //! its translation weight are computed once and cached for all distances of
 //! the grid. Work is parallel over centres; sums are taken in centre order,
