@@ -1,8 +1,11 @@
 //! Command-line definitions (clap derive). Every flag is declared once
 //! here; help text, defaults and validation come from this table.
 
+use crate::fail::Failure;
 use crate::window_args::WindowArgs;
 use clap::{Args, Parser, Subcommand, ValueEnum};
+use patternproof_io::CoordChoice;
+use patternproof_report::{OutputFolder, write_folder_with};
 use std::path::PathBuf;
 
 /// Does a claim about a point pattern survive every defensible study area
@@ -49,7 +52,7 @@ pub enum CoordsArg {
     Lonlat,
 }
 
-impl From<CoordsArg> for patternproof_io::CoordChoice {
+impl From<CoordsArg> for CoordChoice {
     fn from(c: CoordsArg) -> Self {
         match c {
             CoordsArg::Auto => Self::Auto,
@@ -77,15 +80,49 @@ pub struct InputArgs {
     /// Keep only the GeoPackage points whose column FIELD equals VALUE (e.g. `--where year=2024`).
     #[arg(long = "where", value_name = "FIELD=VALUE")]
     pub filter: Option<String>,
+    #[command(flatten)]
+    pub coords: CoordArgs,
+    /// Remove points that repeat an earlier point exactly (default: keep, count and warn).
+    #[arg(long)]
+    pub drop_duplicates: bool,
+}
+
+/// `--coords` and `--unit`, for the commands whose points are always read.
+#[derive(Debug, Args)]
+pub struct CoordArgs {
     /// How to read coordinates.
     #[arg(long, value_enum, default_value_t = CoordsArg::Auto)]
     pub coords: CoordsArg,
     /// Name of the unit of projected coordinates (shown with every distance and area).
     #[arg(long, default_value = "m")]
     pub unit: String,
-    /// Remove points that repeat an earlier point exactly (default: keep, count and warn).
+}
+
+impl CoordArgs {
+    /// `--coords` as the readers want it.
+    pub fn choice(&self) -> CoordChoice {
+        self.coords.into()
+    }
+}
+
+/// `--force` and `--out`, shared by the commands that write a report folder.
+#[derive(Debug, Args)]
+pub struct OutArgs {
+    /// Replace an earlier report in `--out` (a folder that is not a
+    /// patternproof report is never replaced).
     #[arg(long)]
-    pub drop_duplicates: bool,
+    pub force: bool,
+    /// Report folder (written whole or not at all).
+    #[arg(long, value_name = "DIR")]
+    pub out: PathBuf,
+}
+
+impl OutArgs {
+    /// Write the report folder; a refusal (an earlier report without
+    /// `--force`, a folder that is not a report) is bad input.
+    pub fn write(&self, folder: &OutputFolder) -> Result<(), Failure> {
+        write_folder_with(&self.out, folder, self.force).map_err(|e| Failure::Input(e.to_string()))
+    }
 }
 
 /// `patternproof audit`.
@@ -145,11 +182,6 @@ pub struct AuditArgs {
     /// No progress bar.
     #[arg(long, short)]
     pub quiet: bool,
-    /// Replace an earlier report in `--out` (a folder that is not a
-    /// patternproof report is never replaced).
-    #[arg(long)]
-    pub force: bool,
-    /// Report folder (written whole or not at all).
-    #[arg(long, value_name = "DIR")]
-    pub out: PathBuf,
+    #[command(flatten)]
+    pub output: OutArgs,
 }

@@ -6,13 +6,13 @@ use crate::progress::Progress;
 use crate::scales_cmd;
 use patternproof_audit::window::{NamedShape, WindowOptions};
 use patternproof_audit::{AuditOptions, BufferRule, Edge, run_audit};
-use patternproof_io::{CoordChoice, Dataset, LoadOptions};
+use patternproof_io::{Dataset, LoadOptions};
 use patternproof_report::document::BoundarySource;
 use patternproof_report::document::{FileDigest, ReportProvenance};
 use patternproof_report::html::{self, Picture, Provenance, Section};
 use patternproof_report::{
     AuditReport, InputSummary, OutputFolder, markdown, outlines, sensitivity_plot, simulation_plot,
-    table, window_map, write_folder_with,
+    table, window_map,
 };
 use patternproof_scales::{ScalesOptions, ScalesRun};
 use sha2::Digest;
@@ -117,9 +117,9 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
     };
     let mut folder = render(&report, &data.points, data.projection.as_ref(), &choices)?;
     folder.add("windows.gpkg", windows_gpkg(&report, &data, a.stamp)?);
-    write_folder_with(&a.out, &folder, a.force).map_err(|e| Failure::Input(e.to_string()))?;
+    a.output.write(&folder)?;
 
-    print_summary(&report, &a.out, &folder);
+    print_summary(&report, &a.output.out, &folder);
     if let Some((run, notes)) = &scales {
         println!("\nRipley's K across the same windows (--scales):");
         scales_cmd::print_lines(run, notes);
@@ -277,13 +277,12 @@ fn internal(e: std::io::Error) -> Failure {
 
 /// Load points and boundaries with the shared input flags.
 pub fn load(input: &InputArgs) -> Result<Dataset, Failure> {
-    let coords = CoordChoice::from(input.coords);
     Ok(Dataset::load(
         &input.points,
         &input.boundaries,
         &LoadOptions {
-            coords,
-            unit: input.unit.clone(),
+            coords: input.coords.choice(),
+            unit: input.coords.unit.clone(),
             drop_duplicates: input.drop_duplicates,
             field: None,
             gpkg: gpkg_choice(

@@ -11,8 +11,6 @@ use patternproof_density::kernels::{self, Kernel};
 use patternproof_density::render::RunInfo;
 use patternproof_density::{Config, analyse, render};
 use patternproof_report::html::shell_quote;
-use patternproof_report::write_folder_with;
-use std::path::PathBuf;
 
 /// `patternproof density`.
 #[derive(Debug, Args)]
@@ -59,15 +57,11 @@ pub struct DensityArgs {
     /// Reference surface, `KERNEL:BANDWIDTH[:EDGE]` (default edge: the first of --edge).
     #[arg(long, default_value = "gaussian:scott", value_name = "K:B")]
     pub reference: String,
-    /// Replace an earlier report folder at --out.
-    #[arg(long)]
-    pub force: bool,
     /// Print nothing but errors.
     #[arg(long, short)]
     pub quiet: bool,
-    /// Report folder (written whole or not at all).
-    #[arg(long, value_name = "DIR")]
-    pub out: PathBuf,
+    #[command(flatten)]
+    pub output: crate::args::OutArgs,
 }
 
 fn bad(option: &str, what: String, todo: &str) -> Failure {
@@ -248,13 +242,13 @@ pub fn run(a: &DensityArgs) -> Result<(), Failure> {
         warnings: data.warnings.clone(),
     };
     let folder = render::folder(&analysis, &info).map_err(Failure::Internal)?;
-    write_folder_with(&a.out, &folder, a.force).map_err(|e| Failure::Input(e.to_string()))?;
+    a.output.write(&folder)?;
     if !a.quiet {
         for w in info.warnings.iter().chain(&analysis.warnings) {
             eprintln!("patternproof: warning: {w}");
         }
         println!("{}", analysis.verdict.sentence);
-        println!("report: {}", a.out.display());
+        println!("report: {}", a.output.out.display());
     }
     Ok(())
 }

@@ -5,7 +5,7 @@
 //! The flags and the run function live here together; the estimators and
 //! the test are in the `patternproof-scales` crate.
 
-use crate::args::InputArgs;
+use crate::args::{InputArgs, OutArgs};
 use crate::audit_cmd::{check_alpha, load, named_shapes};
 use crate::fail::Failure;
 use crate::progress::Progress;
@@ -18,10 +18,9 @@ use patternproof_audit::window::{NamedShape, WindowOptions, build_windows};
 use patternproof_core::Xy;
 use patternproof_core::nearest::{mean, nearest_distances};
 use patternproof_io::Dataset;
-use patternproof_report::{OutputFolder, write_folder_with};
+use patternproof_report::OutputFolder;
 use patternproof_scales::summary;
 use patternproof_scales::{Correction, ScalesOptions, ScalesRun, run_scales};
-use std::path::PathBuf;
 
 /// Largest accepted `--steps`.
 const MAX_STEPS: usize = 10_000;
@@ -70,16 +69,11 @@ pub struct ScalesArgs {
     /// Significance level of the global test.
     #[arg(long, default_value_t = 0.05, allow_hyphen_values = true)]
     pub alpha: f64,
-    /// Replace an earlier report in `--out` (a folder that is not a
-    /// patternproof report is never replaced).
-    #[arg(long)]
-    pub force: bool,
     /// No progress bar.
     #[arg(long, short)]
     pub quiet: bool,
-    /// Report folder (written whole or not at all).
-    #[arg(long, value_name = "DIR")]
-    pub out: PathBuf,
+    #[command(flatten)]
+    pub output: OutArgs,
 }
 
 fn parse_corrections(flag: &str, words: &[String]) -> Result<Vec<Correction>, Failure> {
@@ -139,7 +133,7 @@ pub fn run(a: &ScalesArgs) -> Result<(), Failure> {
     let (run, notes) = compute(&data, buffers, concavity, &options, a.quiet)?;
     let mut folder = OutputFolder::default();
     add_files(&mut folder, &run)?;
-    write_folder_with(&a.out, &folder, a.force).map_err(|e| Failure::Input(e.to_string()))?;
+    a.output.write(&folder)?;
 
     for w in &data.warnings {
         eprintln!("patternproof: warning: {w}");
@@ -148,7 +142,7 @@ pub fn run(a: &ScalesArgs) -> Result<(), Failure> {
     println!(
         "\nwrote {} to {}",
         folder.names().collect::<Vec<_>>().join(", "),
-        a.out.display()
+        a.output.out.display()
     );
     Ok(())
 }

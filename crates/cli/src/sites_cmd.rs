@@ -1,6 +1,6 @@
 //! `patternproof sites`: one locked protocol over many sites.
 
-use crate::args::CoordsArg;
+use crate::args::{CoordArgs, OutArgs};
 use crate::audit_cmd::{RenderChoices, input_summary, render};
 use crate::fail::Failure;
 use crate::protocol_cmd::read_verified;
@@ -11,7 +11,7 @@ use patternproof_io::geopackage::{self, is_geopackage};
 use patternproof_io::{CoordChoice, CoordSystem, Dataset, LoadOptions};
 use patternproof_protocol::Protocol;
 use patternproof_report::document::{FileDigest, ReportProvenance};
-use patternproof_report::{AuditReport, OutputFolder, write_folder_with};
+use patternproof_report::{AuditReport, OutputFolder};
 use patternproof_sites::{RunOptions, SiteInput, SiteRun, forest, page, render as site_render};
 use rayon::prelude::*;
 use sha2::Digest;
@@ -47,12 +47,8 @@ pub struct SitesArgs {
     /// name.
     #[arg(long, default_value = "name", value_name = "NAME")]
     pub boundary_field: String,
-    /// How to read coordinates.
-    #[arg(long, value_enum, default_value_t = CoordsArg::Auto)]
-    pub coords: CoordsArg,
-    /// Name of the unit of projected coordinates.
-    #[arg(long, default_value = "m")]
-    pub unit: String,
+    #[command(flatten)]
+    pub coords: CoordArgs,
     /// Remove points that repeat an earlier point of the same site exactly.
     #[arg(long)]
     pub drop_duplicates: bool,
@@ -63,12 +59,8 @@ pub struct SitesArgs {
     /// Leave the point maps out of the per-site reports.
     #[arg(long)]
     pub no_map: bool,
-    /// Replace an earlier report in `--out`.
-    #[arg(long)]
-    pub force: bool,
-    /// Report folder (written whole or not at all).
-    #[arg(long, value_name = "DIR")]
-    pub out: PathBuf,
+    #[command(flatten)]
+    pub output: OutArgs,
 }
 
 /// A site with what its report needs besides the sweep.
@@ -94,7 +86,7 @@ pub fn run(a: &SitesArgs) -> Result<(), Failure> {
         },
     );
     let folder = outputs(a, &protocol, &sites, &datasets, &runs)?;
-    write_folder_with(&a.out, &folder, a.force).map_err(|e| Failure::Input(e.to_string()))?;
+    a.output.write(&folder)?;
 
     let doc = site_render::document(&runs, &protocol, a.sweep_sims);
     println!(
@@ -126,20 +118,16 @@ pub fn run(a: &SitesArgs) -> Result<(), Failure> {
     }
     println!(
         "wrote sites.csv, sites.md, sites.json, sites.svg, index.html and site/*/ to {}",
-        a.out.display()
+        a.output.out.display()
     );
     Ok(())
-}
-
-fn coords(c: CoordsArg) -> CoordChoice {
-    CoordChoice::from(c)
 }
 
 fn load_sites(a: &SitesArgs) -> Result<(Vec<Loaded>, Vec<Dataset>), Failure> {
     let gpkg = crate::audit_cmd::gpkg_choice(a.layer.clone(), None, a.filter.as_deref())?;
     let options = |field: Option<String>| LoadOptions {
-        coords: coords(a.coords),
-        unit: a.unit.clone(),
+        coords: a.coords.choice(),
+        unit: a.coords.unit.clone(),
         drop_duplicates: a.drop_duplicates,
         field,
         gpkg: gpkg.clone(),
@@ -221,7 +209,7 @@ fn load_sites(a: &SitesArgs) -> Result<(Vec<Loaded>, Vec<Dataset>), Failure> {
                 bfile,
                 a.boundary_layer.as_deref(),
                 &a.boundary_field,
-                coords(a.coords),
+                a.coords.choice(),
             )?;
             layer_srs = srs.map(|s| (layer, s));
             raws
@@ -243,7 +231,7 @@ fn load_sites(a: &SitesArgs) -> Result<(Vec<Loaded>, Vec<Dataset>), Failure> {
                 // Projected layers must share the points' system: nothing
                 // here reprojects between two projected systems.
                 if let (Some((layer, b)), Some(p), CoordSystem::Projected, CoordChoice::Auto) =
-                    (&layer_srs, &data.srs, data.system, coords(a.coords))
+                    (&layer_srs, &data.srs, data.system, a.coords.choice())
                     && !geopackage::same_system(p, b)
                 {
                     return Err(Failure::Input(format!(
@@ -254,7 +242,7 @@ fn load_sites(a: &SitesArgs) -> Result<(Vec<Loaded>, Vec<Dataset>), Failure> {
                         p.label()
                     )));
                 }
-                let b = datasets[s.data].planar(bfile, raw.clone(), coords(a.coords))?;
+                let b = datasets[s.data].planar(bfile, raw.clone(), a.coords.choice())?;
                 s.input.boundary = Some(NamedShape {
                     name: b.name.clone(),
                     source: bfile.display().to_string(),

@@ -10,6 +10,7 @@
 
 use crate::isopleth::{mass_rank, outline};
 use crate::{Analysis, Surface};
+use patternproof_report::canvas;
 use patternproof_report::html::escape;
 use patternproof_report::numbers::sig;
 use patternproof_report::palette::ink;
@@ -234,11 +235,8 @@ pub fn area_chart_svg(a: &Analysis, unit: &str) -> Option<String> {
         return None;
     }
     let (x_lo, x_hi) = (x_lo / 1.15, x_hi * 1.15);
-    let mut svg = String::new();
-    {
-        let height = 80 + 300 * levels.len() as u32;
-        let root = SVGBackend::with_string(&mut svg, (820, height)).into_drawing_area();
-        root.fill(&WHITE).ok()?;
+    let height = 80 + 300 * levels.len() as u32;
+    canvas::svg((820, height), |root| {
         let root = root
             .titled(
                 &format!(
@@ -282,18 +280,7 @@ pub fn area_chart_svg(a: &Analysis, unit: &str) -> Option<String> {
                     .collect();
                 line.sort_by(|p, q| p.0.total_cmp(&q.0));
                 let i = ink(k);
-                let stroke = ShapeStyle::from(&i.colour).stroke_width(i.width);
-                let series = match i.dash {
-                    None => chart
-                        .draw_series(LineSeries::new(line.clone(), stroke))
-                        .ok()?,
-                    Some((on, off)) => chart
-                        .draw_series(DashedLineSeries::new(line.clone(), on, off, stroke))
-                        .ok()?,
-                };
-                series
-                    .label(kernel.name())
-                    .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], stroke));
+                canvas::line(&mut chart, line.clone(), i, Some(kernel.name().into()))?;
                 chart
                     .draw_series(
                         line.iter()
@@ -301,17 +288,13 @@ pub fn area_chart_svg(a: &Analysis, unit: &str) -> Option<String> {
                     )
                     .ok()?;
             }
-            chart
-                .configure_series_labels()
-                .background_style(WHITE.mix(0.9))
-                .border_style(BLACK)
+            canvas::legend(&mut chart)
                 .position(SeriesLabelPosition::UpperLeft)
                 .draw()
                 .ok()?;
         }
-        root.present().ok()?;
-    }
-    Some(svg)
+        Some(())
+    })
 }
 
 #[cfg(test)]

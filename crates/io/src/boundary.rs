@@ -7,6 +7,7 @@
 
 use crate::coords::CoordSystem;
 use crate::error::{InputError, read_text};
+use crate::points::{declared_lonlat, is_geojson, legacy_crs};
 use geo::{Geometry, MultiPolygon, Polygon};
 use geojson::GeoJson;
 use std::path::Path;
@@ -39,12 +40,7 @@ pub fn read_boundary(path: &Path) -> Result<RawBoundary, InputError> {
         .and_then(|s| s.to_str())
         .unwrap_or("boundary")
         .to_string();
-    let ext = path
-        .extension()
-        .and_then(|e| e.to_str())
-        .unwrap_or("")
-        .to_ascii_lowercase();
-    if ext == "geojson" || ext == "json" || text.trim_start().starts_with('{') {
+    if is_geojson(path, &text) {
         read_geojson(path, &text, stem)
     } else {
         read_wkt(path, &text, stem)
@@ -80,10 +76,55 @@ fn polygons_of(
     Ok(())
 }
 
-/// What a legacy `crs` member declares, by the same rules as for points;
-/// `None` when it cannot be told (then the points decide).
-fn declared_system(crs: &serde_json::Value) -> Option<CoordSystem> {
-    crate::points::crs_is_lonlat(crs).map(|lonlat| {
+/// The polygons of one GeoJSON geometry, appended to `out`.
+fn geojson_polygons(
+    path: &Path,
+    place: &str,
+    geometry: geojson::Geometry,
+    out: &mut Vec<Polygon<f64>>,
+) -> Result<(), InputError> {
+    let g: Geometry<f64> = Geometry::try_from(geometry).map_err(|e| {
+        InputError::new(
+            path,
+            format!("cannot read the geometry ({e})"),
+            "check the polygon's rings",
+        )
+        .at(place)
+    })?;
+    polygons_of(path, place, g, out)
+}
+
+fn no_geometry(path: &Path, place: &str) -> InputError {
+    InputError::new(
+        path,
+        "the feature has no geometry",
+        "remove it or give it a Polygon",
+    )
+    .at(place)
+}
+
+/// Add one feature's polygons to the site `name`, a new site at the end
+/// when the name is new: features sharing a name are parts of one site.
+pub(crate) fn add_part(
+    out: &mut Vec<RawBoundary>,
+    name: String,
+    polygons: Vec<Polygon<f64>>,
+    declared: Option<CoordSystem>,
+) {
+    match out.iter_mut().find(|b| b.name == name) {
+        Some(b) => b.shape.0.extend(polygons),
+        None => out.push(RawBoundary {
+            name,
+            shape: MultiPolygon(polygons),
+            declared,
+        }),
+    }
+}
+
+/// What the file declares, by the same rules as for points; `None` when
+/// it cannot be told (then the points decide).
+fn declared_system(crs: Option<&serde_json::Value>) -> Option<CoordSystem> {
+    declared_lonlat(crs).map(|lonlat| {
         if lonlat {
             CoordSystem::LonLat
         } else {
@@ -124,27 +165,7 @@ fn read_geojson(path: &Path, text: &str, stem: String) -> Result<RawBoundary, In
     let gj: GeoJson = text.parse().map_err(|e| {
         InputError::new(path, format!("not valid GeoJSON ({e})"), "check the file against RFC 7946; polygon rings need at least four positions, first = last")
     })?;
-    let crs = match &gj {
-        GeoJson::FeatureCollection(fc) => fc
-            .foreign_members
-            .as_ref()
-            .and_then(|m| m.get("crs"))
-            .cloned(),
-        GeoJson::Feature(f) => f
-            .foreign_members
-            .as_ref()
-            .and_then(|m| m.get("crs"))
-            .cloned(),
-        GeoJson::Geometry(g) => g
-            .foreign_members
-            .as_ref()
-            .and_then(|m| m.get("crs"))
-            .cloned(),
-    };
-    let declared = match crs {
-        None => Some(CoordSystem::LonLat),
-        Some(c) => declared_system(&c),
-    };
+    let declared = declared_system(legacy_crs(&gj));
     let features: Vec<(String, Option<geojson::Geometry>, Option<String>)> = match gj {
         GeoJson::FeatureCollection(fc) => fc
             .features
@@ -170,24 +191,9 @@ fn read_geojson(path: &Path, text: &str, stem: String) -> Result<RawBoundary, In
     let mut polys = Vec::new();
     let mut names = Vec::new();
     for (place, geometry, name) in features {
-        let Some(geometry) = geometry else {
-            return Err(InputError::new(
-                path,
-                "the feature has no geometry",
-                "remove it or give it a Polygon",
-            )
-            .at(place));
-        };
+        let geometry = geometry.ok_or_else(|| no_geometry(path, &place))?;
         check_rings(path, &place, &geometry)?;
-        let g: Geometry<f64> = Geometry::try_from(geometry).map_err(|e| {
-            InputError::new(
-                path,
-                format!("cannot read the geometry ({e})"),
-                "check the polygon's rings",
-            )
-            .at(place.clone())
-        })?;
-        polygons_of(path, &place, g, &mut polys)?;
+        geojson_polygons(path, &place, geometry, &mut polys)?;
         names.extend(name);
     }
     if polys.is_empty() {
@@ -245,10 +251,7 @@ pub fn read_named_boundaries(path: &Path, field: &str) -> Result<Vec<RawBoundary
             "put one Polygon/MultiPolygon feature per site in a FeatureCollection",
         ));
     };
-    let declared = match fc.foreign_members.as_ref().and_then(|m| m.get("crs")) {
-        None => Some(CoordSystem::LonLat),
-        Some(c) => declared_system(c),
-    };
+    let declared = declared_system(fc.foreign_members.as_ref().and_then(|m| m.get("crs")));
     let mut out: Vec<RawBoundary> = Vec::new();
     for (i, f) in fc.features.into_iter().enumerate() {
         let place = format!("feature {}", i + 1);
@@ -264,32 +267,10 @@ pub fn read_named_boundaries(path: &Path, field: &str) -> Result<Vec<RawBoundary
                 .at(place));
             }
         };
-        let Some(geometry) = f.geometry else {
-            return Err(InputError::new(
-                path,
-                "the feature has no geometry",
-                "remove it or give it a Polygon",
-            )
-            .at(place));
-        };
-        let g: Geometry<f64> = Geometry::try_from(geometry).map_err(|e| {
-            InputError::new(
-                path,
-                format!("cannot read the geometry ({e})"),
-                "check the polygon's rings",
-            )
-            .at(place.clone())
-        })?;
+        let geometry = f.geometry.ok_or_else(|| no_geometry(path, &place))?;
         let mut polys = Vec::new();
-        polygons_of(path, &place, g, &mut polys)?;
-        match out.iter_mut().find(|b| b.name == name) {
-            Some(b) => b.shape.0.extend(polys),
-            None => out.push(RawBoundary {
-                name,
-                shape: MultiPolygon(polys),
-                declared,
-            }),
-        }
+        geojson_polygons(path, &place, geometry, &mut polys)?;
+        add_part(&mut out, name, polys, declared);
     }
     if out.is_empty() {
         return Err(InputError::new(
@@ -305,14 +286,8 @@ pub fn read_named_boundaries(path: &Path, field: &str) -> Result<Vec<RawBoundary
 #[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
     use super::*;
+    use crate::test_files::file;
     use geo::Area;
-    use std::io::Write;
-
-    fn file(ext: &str, body: &str) -> tempfile::NamedTempFile {
-        let mut f = tempfile::Builder::new().suffix(ext).tempfile().unwrap();
-        f.write_all(body.as_bytes()).unwrap();
-        f
-    }
 
     /// Area of a 10×10 square with a 2×2 hole: 96 (arithmetic).
     #[test]

@@ -47,15 +47,18 @@ impl fmt::Display for InputError {
 
 impl std::error::Error for InputError {}
 
+/// An I/O failure on `path`, in the words every reader uses.
+pub(crate) fn cannot_read(path: &Path, e: std::io::Error) -> InputError {
+    InputError::new(
+        path,
+        format!("cannot read the file ({e})"),
+        "check the path and that the file is readable",
+    )
+}
+
 /// Read a whole file, mapping I/O failures to an [`InputError`].
 pub fn read_text(path: &Path) -> Result<String, InputError> {
-    let bytes = std::fs::read(path).map_err(|e| {
-        InputError::new(
-            path,
-            format!("cannot read the file ({e})"),
-            "check the path and that the file is readable",
-        )
-    })?;
+    let bytes = std::fs::read(path).map_err(|e| cannot_read(path, e))?;
     String::from_utf8(bytes).map_err(|e| {
         InputError::new(
             path,

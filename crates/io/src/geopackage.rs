@@ -20,14 +20,14 @@
 //!   like GeoJSON features without geometry; `--where FIELD=VALUE` keeps
 //!   the rows whose column equals the value (bound as a query parameter).
 
-use crate::boundary::RawBoundary;
+use crate::boundary::{RawBoundary, add_part};
 use crate::coords::{CoordChoice, CoordSystem, Projection};
 use crate::error::InputError;
 use crate::points::{Place, RawPoints, epsg_is_lonlat};
 use geo::MultiPolygon;
 use patternproof_gpkg::blob::Shape;
 use patternproof_gpkg::crs::{CrsKind, kind_of};
-use patternproof_gpkg::{Filter, GeoPackage, GpkgError, Layer, SpatialRef};
+use patternproof_gpkg::{Feature, Filter, GeoPackage, GpkgError, Layer, SpatialRef};
 use std::path::Path;
 
 /// GeoPackage choices from the command line.
@@ -384,6 +384,76 @@ pub fn read_points(
     })
 }
 
+/// What both boundary readers learn before they look at a feature.
+struct BoundaryLayer {
+    gpkg: GeoPackage,
+    layer: Layer,
+    srs: Option<SpatialRef>,
+    /// `None` under a forced `--coords`: that choice describes the points,
+    /// and the boundary follows them.
+    declared: Option<CoordSystem>,
+    columns: Vec<String>,
+}
+
+fn open_boundary_layer(
+    path: &Path,
+    layer_name: Option<&str>,
+    choice: CoordChoice,
+) -> Result<BoundaryLayer, InputError> {
+    let gpkg = GeoPackage::open(path).map_err(|e| gpkg_error(path, e, "--boundary-layer"))?;
+    let layer = choose_layer(path, &gpkg, layer_name, "--boundary-layer")?;
+    let srs = srs_of(path, &gpkg, &layer)?;
+    let declared = match choice {
+        CoordChoice::Auto => Some(decide(path, &layer, srs.as_ref(), choice)?.system),
+        _ => None,
+    };
+    let (columns, _) = gpkg
+        .columns(&layer)
+        .map_err(|e| gpkg_error(path, e, "--boundary-layer"))?;
+    Ok(BoundaryLayer {
+        gpkg,
+        layer,
+        srs,
+        declared,
+        columns,
+    })
+}
+
+impl BoundaryLayer {
+    fn place(&self, fid: i64) -> String {
+        format!("layer `{}`, feature fid {fid}", self.layer.name)
+    }
+
+    fn features(&self, path: &Path, column: Option<&str>) -> Result<Vec<Feature>, InputError> {
+        self.gpkg
+            .features(&self.layer, column, None)
+            .map_err(|e| gpkg_error(path, e, "--boundary-layer"))
+    }
+
+    fn not_polygons(&self, path: &Path, fid: i64, shape: &Shape) -> InputError {
+        InputError::new(
+            path,
+            format!(
+                "a boundary must be polygons, this feature is a {}",
+                shape.type_name()
+            ),
+            "choose a polygon layer with --boundary-layer NAME",
+        )
+        .at(self.place(fid))
+    }
+
+    fn no_polygon(&self, path: &Path, features: usize) -> InputError {
+        InputError::new(
+            path,
+            format!(
+                "layer `{}` holds no polygon ({features} feature(s), all empty or without geometry)",
+                self.layer.name
+            ),
+            "choose a polygon layer with --boundary-layer NAME",
+        )
+    }
+}
+
 /// Read a GeoPackage polygon layer as one study area (every polygon of
 /// the layer together, holes kept). Its name is the `name` column of a
 /// single feature when there is one, else the layer's name.
@@ -392,21 +462,9 @@ pub fn read_boundary(
     layer_name: Option<&str>,
     choice: CoordChoice,
 ) -> Result<GpkgBoundary, InputError> {
-    let gpkg = GeoPackage::open(path).map_err(|e| gpkg_error(path, e, "--boundary-layer"))?;
-    let layer = choose_layer(path, &gpkg, layer_name, "--boundary-layer")?;
-    let srs = srs_of(path, &gpkg, &layer)?;
-    let declared = match choice {
-        // A forced choice describes the points; the boundary follows them.
-        CoordChoice::Auto => Some(decide(path, &layer, srs.as_ref(), choice)?.system),
-        _ => None,
-    };
-    let (columns, _) = gpkg
-        .columns(&layer)
-        .map_err(|e| gpkg_error(path, e, "--boundary-layer"))?;
-    let name_column = columns.iter().any(|c| c == "name").then_some("name");
-    let features = gpkg
-        .features(&layer, name_column, None)
-        .map_err(|e| gpkg_error(path, e, "--boundary-layer"))?;
+    let b = open_boundary_layer(path, layer_name, choice)?;
+    let name_column = b.columns.iter().any(|c| c == "name").then_some("name");
+    let features = b.features(path, name_column)?;
     let mut polygons = Vec::new();
     let mut names = Vec::new();
     for f in &features {
@@ -416,43 +474,25 @@ pub fn read_boundary(
                 polygons.extend(mp.0.iter().cloned());
                 names.extend(f.value.clone());
             }
-            Some(other) => {
-                return Err(InputError::new(
-                    path,
-                    format!(
-                        "a boundary must be polygons, this feature is a {}",
-                        other.type_name()
-                    ),
-                    "choose a polygon layer with --boundary-layer NAME",
-                )
-                .at(format!("layer `{}`, feature fid {}", layer.name, f.fid)));
-            }
+            Some(other) => return Err(b.not_polygons(path, f.fid, other)),
         }
     }
     if polygons.is_empty() {
-        return Err(InputError::new(
-            path,
-            format!(
-                "layer `{}` holds no polygon ({} feature(s), all empty or without geometry)",
-                layer.name,
-                features.len()
-            ),
-            "choose a polygon layer with --boundary-layer NAME",
-        ));
+        return Err(b.no_polygon(path, features.len()));
     }
     let name = if names.len() == 1 && features.len() == 1 {
         names.remove(0)
     } else {
-        layer.name.clone()
+        b.layer.name.clone()
     };
     Ok(GpkgBoundary {
         raw: RawBoundary {
             name,
             shape: MultiPolygon(polygons),
-            declared,
+            declared: b.declared,
         },
-        layer: layer.name,
-        srs,
+        layer: b.layer.name,
+        srs: b.srs,
     })
 }
 
@@ -467,47 +507,25 @@ pub fn read_named_boundaries(
     field: &str,
     choice: CoordChoice,
 ) -> Result<(Vec<RawBoundary>, String, Option<SpatialRef>), InputError> {
-    let gpkg = GeoPackage::open(path).map_err(|e| gpkg_error(path, e, "--boundary-layer"))?;
-    let layer = choose_layer(path, &gpkg, layer_name, "--boundary-layer")?;
-    let srs = srs_of(path, &gpkg, &layer)?;
-    let declared = match choice {
-        CoordChoice::Auto => Some(decide(path, &layer, srs.as_ref(), choice)?.system),
-        _ => None,
-    };
-    let (columns, _) = gpkg
-        .columns(&layer)
-        .map_err(|e| gpkg_error(path, e, "--boundary-layer"))?;
-    if !columns.iter().any(|c| c == field) {
+    let b = open_boundary_layer(path, layer_name, choice)?;
+    if !b.columns.iter().any(|c| c == field) {
         return Err(InputError::new(
             path,
             format!(
                 "layer `{}` has no column `{field}` naming the sites (its columns: {})",
-                layer.name,
-                columns.join(", ")
+                b.layer.name,
+                b.columns.join(", ")
             ),
             "choose the column that holds the site names with --boundary-field",
         ));
     }
-    let features = gpkg
-        .features(&layer, Some(field), None)
-        .map_err(|e| gpkg_error(path, e, "--boundary-layer"))?;
+    let features = b.features(path, Some(field))?;
     let mut out: Vec<RawBoundary> = Vec::new();
     for f in &features {
-        let at = || format!("layer `{}`, feature fid {}", layer.name, f.fid);
         let polygons = match &f.shape {
             None => continue,
             Some(Shape::Polygons(mp)) => mp,
-            Some(other) => {
-                return Err(InputError::new(
-                    path,
-                    format!(
-                        "a boundary must be polygons, this feature is a {}",
-                        other.type_name()
-                    ),
-                    "choose a polygon layer with --boundary-layer NAME",
-                )
-                .at(at()));
-            }
+            Some(other) => return Err(b.not_polygons(path, f.fid, other)),
         };
         let Some(name) = f.value.clone() else {
             return Err(InputError::new(
@@ -515,29 +533,14 @@ pub fn read_named_boundaries(
                 format!("the feature has no value in column `{field}` naming its site"),
                 "give every boundary feature its site's name, or choose another column with --boundary-field",
             )
-            .at(at()));
+            .at(b.place(f.fid)));
         };
-        match out.iter_mut().find(|b| b.name == name) {
-            Some(b) => b.shape.0.extend(polygons.0.iter().cloned()),
-            None => out.push(RawBoundary {
-                name,
-                shape: polygons.clone(),
-                declared,
-            }),
-        }
+        add_part(&mut out, name, polygons.0.clone(), b.declared);
     }
     if out.is_empty() {
-        return Err(InputError::new(
-            path,
-            format!(
-                "layer `{}` holds no polygon ({} feature(s), all empty or without geometry)",
-                layer.name,
-                features.len()
-            ),
-            "choose a polygon layer with --boundary-layer NAME",
-        ));
+        return Err(b.no_polygon(path, features.len()));
     }
-    Ok((out, layer.name.clone(), srs))
+    Ok((out, b.layer.name, b.srs))
 }
 
 /// Do two coordinate-system rows describe the same system? Same

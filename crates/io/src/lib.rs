@@ -20,6 +20,8 @@ pub mod dataset;
 pub mod error;
 pub mod geopackage;
 pub mod points;
+#[cfg(test)]
+mod test_files;
 
 pub use coords::{CoordChoice, CoordSystem, Projection};
 pub use dataset::{Boundary, Dataset, LoadOptions};

@@ -8,7 +8,7 @@
 //! back into the file.
 
 use crate::coords::{CoordChoice, CoordSystem};
-use crate::error::{InputError, read_text};
+use crate::error::{InputError, cannot_read, read_text};
 use geojson::{GeoJson, GeometryValue};
 use std::path::Path;
 
@@ -106,13 +106,7 @@ pub fn read_points(
     field: Option<&str>,
 ) -> Result<RawPoints, InputError> {
     use std::io::Read;
-    let cannot = |e: std::io::Error| {
-        InputError::new(
-            path,
-            format!("cannot read the file ({e})"),
-            "check the path and that the file is readable",
-        )
-    };
+    let cannot = |e| cannot_read(path, e);
     let mut file = std::fs::File::open(path).map_err(cannot)?;
     // The first 64 KiB decide the format; a CSV is then streamed, never
     // held whole in memory.
@@ -130,12 +124,7 @@ pub fn read_points(
             "give a CSV with a header row (x,y / easting,northing / lon,lat) or a GeoJSON FeatureCollection of points",
         ));
     }
-    let ext = path
-        .extension()
-        .and_then(|e| e.to_str())
-        .unwrap_or("")
-        .to_ascii_lowercase();
-    if ext == "geojson" || ext == "json" || start.trim_start().starts_with('{') {
+    if is_geojson(path, &start) {
         let text = read_text(path)?;
         read_geojson_points(path, &text, choice, field)
     } else {
@@ -147,6 +136,17 @@ pub fn read_points(
         };
         read_csv_points(path, stream, delimiter, choice, field)
     }
+}
+
+/// GeoJSON by extension (`.geojson`, `.json`) or by a leading `{`
+/// whatever the name: the one rule for point and boundary files.
+pub(crate) fn is_geojson(path: &Path, start: &str) -> bool {
+    let ext = path
+        .extension()
+        .and_then(|e| e.to_str())
+        .unwrap_or("")
+        .to_ascii_lowercase();
+    ext == "geojson" || ext == "json" || start.trim_start().starts_with('{')
 }
 
 fn sniff_delimiter(text: &str) -> u8 {
@@ -356,8 +356,25 @@ fn parse_number(
     }
 }
 
+/// The legacy `crs` member of a GeoJSON object (dropped by RFC 7946,
+/// still written by some exporters).
+pub(crate) fn legacy_crs(gj: &GeoJson) -> Option<&serde_json::Value> {
+    let members = match gj {
+        GeoJson::FeatureCollection(fc) => &fc.foreign_members,
+        GeoJson::Feature(f) => &f.foreign_members,
+        GeoJson::Geometry(g) => &g.foreign_members,
+    };
+    members.as_ref()?.get("crs")
+}
+
+/// Is a GeoJSON file lon/lat? Without a `crs` member it is (RFC 7946);
+/// `None` when the member names a system that cannot be told.
+pub(crate) fn declared_lonlat(crs: Option<&serde_json::Value>) -> Option<bool> {
+    crs.map_or(Some(true), crs_is_lonlat)
+}
+
 /// Does a legacy GeoJSON `crs` member name a lon/lat system?
-pub(crate) fn crs_is_lonlat(crs: &serde_json::Value) -> Option<bool> {
+fn crs_is_lonlat(crs: &serde_json::Value) -> Option<bool> {
     let name = crs
         .get("properties")?
         .get("name")?
@@ -422,43 +439,8 @@ fn read_geojson_points(
             "check the file against RFC 7946 (a FeatureCollection of Point or MultiPoint features)",
         )
     })?;
-    let (features, crs) = match gj {
-        GeoJson::FeatureCollection(fc) => {
-            let crs = fc
-                .foreign_members
-                .as_ref()
-                .and_then(|m| m.get("crs"))
-                .cloned();
-            (fc.features, crs)
-        }
-        GeoJson::Feature(f) => {
-            let crs = f
-                .foreign_members
-                .as_ref()
-                .and_then(|m| m.get("crs"))
-                .cloned();
-            (vec![f], crs)
-        }
-        GeoJson::Geometry(g) => {
-            let crs = g
-                .foreign_members
-                .as_ref()
-                .and_then(|m| m.get("crs"))
-                .cloned();
-            (
-                vec![geojson::Feature {
-                    geometry: Some(g),
-                    ..Default::default()
-                }],
-                crs,
-            )
-        }
-    };
-    let declared = match &crs {
-        None => Some(true),
-        Some(c) => crs_is_lonlat(c),
-    };
-    let system = match (choice, declared) {
+    let crs = legacy_crs(&gj);
+    let system = match (choice, declared_lonlat(crs)) {
         (CoordChoice::Projected, _) => CoordSystem::Projected,
         (CoordChoice::LonLat, _) => CoordSystem::LonLat,
         (CoordChoice::Auto, Some(true)) => CoordSystem::LonLat,
@@ -468,11 +450,19 @@ fn read_geojson_points(
                 path,
                 format!(
                     "the legacy 'crs' member names `{}`, which patternproof cannot identify as lon/lat or projected",
-                    crs.as_ref().map(crs_name).unwrap_or_default()
+                    crs.map(crs_name).unwrap_or_default()
                 ),
                 "say how to read the coordinates: --coords projected (with --unit) or --coords lonlat",
             ));
         }
+    };
+    let features = match gj {
+        GeoJson::FeatureCollection(fc) => fc.features,
+        GeoJson::Feature(f) => vec![f],
+        GeoJson::Geometry(g) => vec![geojson::Feature {
+            geometry: Some(g),
+            ..Default::default()
+        }],
     };
     let mut coords = Vec::new();
     let mut places = Vec::new();
@@ -549,13 +539,7 @@ fn read_geojson_points(
 #[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
     use super::*;
-    use std::io::Write;
-
-    fn file(ext: &str, body: &str) -> tempfile::NamedTempFile {
-        let mut f = tempfile::Builder::new().suffix(ext).tempfile().unwrap();
-        f.write_all(body.as_bytes()).unwrap();
-        f
-    }
+    use crate::test_files::file;
 
     #[test]
     fn csv_picks_columns_by_name_and_delimiter() {

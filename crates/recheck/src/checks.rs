@@ -440,13 +440,7 @@ fn joint_check(f: &Figures, plain: &Model) -> Check {
 mod tests {
     #![allow(clippy::unwrap_used)]
     use super::*;
-    use crate::reported::parse;
-
-    fn figs(n: usize, items: &[(Quantity, &str)]) -> Figures {
-        items.iter().fold(Figures::new(n, false), |f, (q, t)| {
-            f.with(parse(t, *q).unwrap())
-        })
-    }
+    use crate::test_figures::figs;
 
     /// z = (R − 1)·sqrt(n)·0.5/0.26136 (Clark & Evans 1954): R = 0.71,
     /// n = 64 gives z in [−4.515, −4.362], so z = −4.9 is not ok.

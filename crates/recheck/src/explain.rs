@@ -354,47 +354,41 @@ pub fn integer_range(
         .filter(|&k| k < first)
         .max()
         .unwrap_or(lo);
-    let mut a = below; // not ok (or lo)
-    let mut b = first; // ok
-    if ok(a) {
-        b = a;
+    let low = if ok(below) {
+        below
     } else {
-        while b - a > 1 {
-            let m = a + (b - a) / 2;
-            if ok(m) { b = m } else { a = m }
-        }
-    }
-    let low = b;
+        bisect(below, first, |k| !ok(k)).1
+    };
+    // Refine the upper end the same way, up to the next grid point.
     let above = grid
         .iter()
         .copied()
         .filter(|&k| k > last)
         .min()
         .unwrap_or(hi);
-    let mut a = last; // ok
-    let mut b = above; // not ok (or hi)
-    if ok(b) {
-        a = b;
+    let high = if ok(above) {
+        above
     } else {
-        while b - a > 1 {
-            let m = a + (b - a) / 2;
-            if ok(m) { a = m } else { b = m }
-        }
+        bisect(last, above, &mut ok).0
+    };
+    Some((low, high))
+}
+
+/// Where `before` stops holding between `a` (it holds) and `b > a` (it
+/// does not): the last k with `before(k)` and the first k without.
+fn bisect(mut a: usize, mut b: usize, mut before: impl FnMut(usize) -> bool) -> (usize, usize) {
+    while b - a > 1 {
+        let m = a + (b - a) / 2;
+        if before(m) { a = m } else { b = m }
     }
-    Some((low, a))
+    (a, b)
 }
 
 #[cfg(test)]
 mod tests {
     #![allow(clippy::unwrap_used)]
     use super::*;
-    use crate::reported::parse;
-
-    fn figs(n: usize, items: &[(Quantity, &str)]) -> Figures {
-        items.iter().fold(Figures::new(n, false), |f, (q, t)| {
-            f.with(parse(t, *q).unwrap())
-        })
-    }
+    use crate::test_figures::figs;
 
     #[test]
     fn integer_range_finds_a_run() {

@@ -33,6 +33,8 @@ pub mod model;
 pub mod propagate;
 pub mod render;
 pub mod reported;
+#[cfg(test)]
+mod test_figures;
 pub mod verdict;
 
 use crate::attribution::{Attribution, Match};

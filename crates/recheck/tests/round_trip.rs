@@ -86,14 +86,7 @@ const EAZP: &[Quantity] = &[
     Quantity::Z,
     Quantity::P,
 ];
-const ALL: &[Quantity] = &[
-    Quantity::Ratio,
-    Quantity::Z,
-    Quantity::P,
-    Quantity::MeanNn,
-    Quantity::ExpectedNn,
-    Quantity::Area,
-];
+const ALL: &[Quantity] = &Quantity::ALL;
 
 /// One figure moved beyond its rounding, in a direction no edge correction
 /// can explain (both corrections shrink |z| for a given R and lengthen E).

@@ -14,11 +14,13 @@
 //! | [`sensitivity_plot`] | `sensitivity.svg`, R and z against the study area |
 //! | [`simulation_plot`] | `simulation.svg`, the simulated means of one window |
 //! | [`palette`] | the one colour-and-dash palette of every picture |
+//! | [`canvas`] | the white SVG frame, the inked line and the legend box the pictures share |
 //! | [`html`] | `index.html`, the one self-contained file to attach |
 //! | [`folder`] | the output folder, written aside and renamed into place |
 //!
 //! Every writer takes any `io::Write`, so tests render into a `Vec<u8>`.
 
+pub mod canvas;
 pub mod document;
 pub mod folder;
 pub mod html;

@@ -11,9 +11,10 @@
 //! grey, labelled at the top) and the flip thresholds (labelled with their
 //! areas, listed in full below the panels).
 
+use crate::canvas::{self, line};
 use crate::document::AuditReport;
 use crate::numbers::sig;
-use crate::palette::{Ink, edge_ink};
+use crate::palette::edge_ink;
 use patternproof_audit::Edge;
 use patternproof_audit::curves::Sensitivity;
 use plotters::coord::Shift;
@@ -43,10 +44,7 @@ pub fn sensitivity_svg(report: &AuditReport) -> Option<String> {
         .iter()
         .partition(|t| t.area >= lo && t.area <= hi);
 
-    let mut svg = String::new();
-    {
-        let root = SVGBackend::with_string(&mut svg, (WIDTH, HEIGHT)).into_drawing_area();
-        root.fill(&WHITE).ok()?;
+    canvas::svg((WIDTH, HEIGHT), |root| {
         let root = root
             .titled(
                 &format!(
@@ -114,10 +112,7 @@ pub fn sensitivity_svg(report: &AuditReport) -> Option<String> {
                     PathElement::new(vec![(x + 10, y - 6), (x + 10, y + 6)], style)
                 });
         }
-        upper_chart
-            .configure_series_labels()
-            .background_style(WHITE.mix(0.9))
-            .border_style(BLACK)
+        canvas::legend(&mut upper_chart)
             .position(SeriesLabelPosition::LowerLeft)
             .draw()
             .ok()?;
@@ -186,10 +181,8 @@ pub fn sensitivity_svg(report: &AuditReport) -> Option<String> {
         }
         row_markers(&mut lower_chart, report, |r| r.z)?;
 
-        footer_text(&footer, report, s, &inside, &outside)?;
-        root.present().ok()?;
-    }
-    Some(svg)
+        footer_text(&footer, report, s, &inside, &outside)
+    })
 }
 
 fn curve_label(report: &AuditReport, edge: Edge) -> String {
@@ -273,27 +266,6 @@ fn horizontal(
     chart
         .draw_series(LineSeries::new(vec![(lo, y), (hi, y)], style))
         .ok()?;
-    Some(())
-}
-
-fn line(
-    chart: &mut LogChart<'_, '_>,
-    coords: Vec<(f64, f64)>,
-    ink: Ink,
-    label: Option<String>,
-) -> Option<()> {
-    let stroke = ShapeStyle::from(&ink.colour).stroke_width(ink.width);
-    let series = match ink.dash {
-        None => chart.draw_series(LineSeries::new(coords, stroke)).ok()?,
-        Some((on, off)) => chart
-            .draw_series(DashedLineSeries::new(coords, on, off, stroke))
-            .ok()?,
-    };
-    if let Some(l) = label {
-        series
-            .label(l)
-            .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], stroke));
-    }
     Some(())
 }
 

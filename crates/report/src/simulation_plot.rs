@@ -6,9 +6,10 @@
 //! observed one. The closed-form CSR expectation without edge correction
 //! is drawn too, so the reader sees how far the edge effect moves it.
 
+use crate::canvas;
 use crate::document::AuditReport;
 use crate::numbers::{p_value, sig};
-use crate::palette::edge_ink;
+use crate::palette::{Ink, edge_ink};
 use patternproof_audit::{Edge, WindowKind};
 use plotters::prelude::*;
 
@@ -78,10 +79,7 @@ pub fn simulation_svg(report: &AuditReport, id: &str) -> Option<String> {
     let top = counts.iter().copied().max().unwrap_or(1) as f64 * 1.25;
     let width = (hi - lo) / BINS as f64;
 
-    let mut svg = String::new();
-    {
-        let root = SVGBackend::with_string(&mut svg, (900, 560)).into_drawing_area();
-        root.fill(&WHITE).ok()?;
+    canvas::svg((900, 560), |root| {
         let (plot, footer) = root.split_vertically(480);
         let mut chart = ChartBuilder::on(&plot)
             .caption(
@@ -128,19 +126,17 @@ pub fn simulation_svg(report: &AuditReport, id: &str) -> Option<String> {
                     }),
             )
             .ok()?;
-        let mut vline = |x: f64, ink: crate::palette::Ink, label: String| -> Option<()> {
-            let stroke = ShapeStyle::from(&ink.colour).stroke_width(ink.width + 1);
-            let pts = vec![(x, 0.0), (x, top * 0.92)];
-            let series = match ink.dash {
-                None => chart.draw_series(LineSeries::new(pts, stroke)).ok()?,
-                Some((on, off)) => chart
-                    .draw_series(DashedLineSeries::new(pts, on, off, stroke))
-                    .ok()?,
+        let mut vline = |x: f64, ink: Ink, label: String| {
+            let ink = Ink {
+                width: ink.width + 1,
+                ..ink
             };
-            series
-                .label(label)
-                .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], stroke));
-            Some(())
+            canvas::line(
+                &mut chart,
+                vec![(x, 0.0), (x, top * 0.92)],
+                ink,
+                Some(label),
+            )
         };
         vline(
             observed,
@@ -168,10 +164,7 @@ pub fn simulation_svg(report: &AuditReport, id: &str) -> Option<String> {
                 sig(formula, 4)
             ),
         )?;
-        chart
-            .configure_series_labels()
-            .background_style(WHITE.mix(0.9))
-            .border_style(BLACK)
+        canvas::legend(&mut chart)
             .position(SeriesLabelPosition::UpperRight)
             .draw()
             .ok()?;
@@ -194,9 +187,8 @@ pub fn simulation_svg(report: &AuditReport, id: &str) -> Option<String> {
                 ))
                 .ok()?;
         }
-        root.present().ok()?;
-    }
-    Some(svg)
+        Some(())
+    })
 }
 
 #[cfg(test)]

@@ -1,6 +1,7 @@
 //! `windows.svg`: the points and every window outline on one map, with a
 //! scale bar in the data's unit and a legend naming the windows by id.
 
+use crate::canvas;
 use crate::document::AuditReport;
 use crate::palette::ink;
 use geo::{BoundingRect, LineString};
@@ -42,14 +43,11 @@ pub fn window_map_svg(report: &AuditReport, points: &[Xy]) -> Option<String> {
     let half_x = span * (px_w as f64 - 60.0) / 2.0 * 1.04;
     let half_y = span * (px_h as f64 - 120.0) / 2.0 * 1.04;
     let unit = &report.input.unit;
-    let mut svg = String::new();
-    {
-        // The legend gets a strip of its own on the right, at the map's scale.
-        let legend_px = 190u32;
-        let legend_room = span * 1.04 * legend_px as f64;
-        let root = SVGBackend::with_string(&mut svg, (px_w + legend_px, px_h)).into_drawing_area();
-        root.fill(&WHITE).ok()?;
-        let mut chart = ChartBuilder::on(&root)
+    // The legend gets a strip of its own on the right, at the map's scale.
+    let legend_px = 190u32;
+    let legend_room = span * 1.04 * legend_px as f64;
+    canvas::svg((px_w + legend_px, px_h), |root| {
+        let mut chart = ChartBuilder::on(root)
             .caption(
                 format!(
                     "Windows of {} ({} points)",
@@ -91,27 +89,15 @@ pub fn window_map_svg(report: &AuditReport, points: &[Xy]) -> Option<String> {
             .label("points")
             .legend(|(x, y)| Circle::new((x + 10, y), 2, BLACK.filled()));
         for (k, (id, shape)) in shapes.iter().enumerate() {
-            let style = ink(k);
-            let stroke = ShapeStyle::from(&style.colour).stroke_width(style.width);
             let rings: Vec<&LineString<f64>> = shape
                 .iter()
                 .flat_map(|p| std::iter::once(p.exterior()).chain(p.interiors()))
                 .collect();
-            let mut first = true;
+            // One legend entry per window, on its first ring.
+            let mut label = Some(id.to_string());
             for ring in rings {
                 let coords: Vec<(f64, f64)> = ring.coords().map(|c| (c.x, c.y)).collect();
-                let series = match style.dash {
-                    None => chart.draw_series(LineSeries::new(coords, stroke)).ok()?,
-                    Some((on, off)) => chart
-                        .draw_series(DashedLineSeries::new(coords, on, off, stroke))
-                        .ok()?,
-                };
-                if first {
-                    series
-                        .label(id.to_string())
-                        .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], stroke));
-                    first = false;
-                }
+                canvas::line(&mut chart, coords, ink(k), label.take())?;
             }
         }
         // Label each outline at the vertex farthest in its own direction,
@@ -183,7 +169,6 @@ pub fn window_map_svg(report: &AuditReport, points: &[Xy]) -> Option<String> {
             .position(SeriesLabelPosition::UpperRight)
             .draw()
             .ok()?;
-        root.present().ok()?;
-    }
-    Some(svg)
+        Some(())
+    })
 }

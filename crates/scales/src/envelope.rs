@@ -210,6 +210,7 @@ pub fn mad_test(
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::test_curves::{bump_and_flat_curves, height};
 
     /// By hand: 19 flat simulated curves at heights ±0.1·k and an observed
     /// curve with a bump of 5 at one distance. The centre is the mean of
@@ -218,17 +219,9 @@ mod tests {
     /// band upward at the bump only.
     #[test]
     fn mad_by_hand() {
-        let sims: Vec<Vec<Option<f64>>> = (1..=19)
-            .map(|k| {
-                let h = if k % 2 == 0 { 0.1 } else { -0.1 } * f64::from(k);
-                vec![Some(h); 4]
-            })
-            .collect();
-        let obs = vec![Some(0.0), Some(5.0), Some(0.0), Some(0.0)];
+        let (obs, sims) = bump_and_flat_curves();
         let t = mad_test(Correction::Isotropic, &obs, &sims, 0.05);
-        let sum_sims: f64 = (1..=19)
-            .map(|k| if k % 2 == 0 { 0.1 } else { -0.1 } * f64::from(k))
-            .sum();
+        let sum_sims: f64 = (1..=19).map(height).sum();
         let c0 = sum_sims / 20.0;
         let c1 = (sum_sims + 5.0) / 20.0;
         assert!((t.centre[0].unwrap_or(f64::NAN) - c0).abs() < 1e-12);

@@ -29,6 +29,8 @@ pub mod rank_envelope;
 pub mod region;
 pub mod scales;
 pub mod summary;
+#[cfg(test)]
+mod test_curves;
 pub mod translation;
 pub mod verdict;
 

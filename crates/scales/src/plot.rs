@@ -13,9 +13,10 @@
 use crate::k_function::Correction;
 use crate::scales::{ScalesRun, WindowScales};
 use crate::verdict::distance;
+use patternproof_report::canvas::{self, Canvas};
 use patternproof_report::numbers::p_value;
 use patternproof_report::palette::{Ink, ink};
-use plotters::coord::Shift;
+use plotters::coord::types::RangedCoordf64;
 use plotters::prelude::*;
 
 /// The ink of a correction, the same in every picture.
@@ -27,7 +28,8 @@ pub fn correction_ink(c: Correction) -> Ink {
     }
 }
 
-type Area<'a> = DrawingArea<SVGBackend<'a>, Shift>;
+/// An L(r) − r panel: distance against L(r) − r, both in the data's unit.
+type Chart<'a, 'b> = ChartContext<'a, SVGBackend<'b>, Cartesian2d<RangedCoordf64, RangedCoordf64>>;
 
 fn points(r: &[f64], v: &[Option<f64>]) -> Vec<Vec<(f64, f64)>> {
     // Split at undefined values so that no line bridges a gap.
@@ -60,38 +62,60 @@ fn y_range<'a>(series: impl Iterator<Item = &'a [Option<f64>]>) -> (f64, f64) {
     (lo - pad, hi + pad)
 }
 
-fn draw_line<DB: DrawingBackend>(
-    chart: &mut ChartContext<
-        '_,
-        DB,
-        Cartesian2d<plotters::coord::types::RangedCoordf64, plotters::coord::types::RangedCoordf64>,
-    >,
+/// A curve split at its gaps ([`points`]), labelled once.
+fn draw_line(
+    chart: &mut Chart<'_, '_>,
     segs: Vec<Vec<(f64, f64)>>,
     style: Ink,
-    label: Option<String>,
+    mut label: Option<String>,
 ) -> Option<()> {
-    let stroke = ShapeStyle::from(&style.colour).stroke_width(style.width);
-    let mut labelled = label;
     for s in segs {
-        let anno = match style.dash {
-            None => chart.draw_series(LineSeries::new(s, stroke)).ok()?,
-            Some((on, off)) => chart
-                .draw_series(DashedLineSeries::new(s, on, off, stroke))
-                .ok()?,
-        };
-        if let Some(l) = labelled.take() {
-            anno.label(l)
-                .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 20, y)], stroke));
-        }
+        canvas::line(chart, s, style, label.take())?;
     }
     Some(())
+}
+
+/// The axes of an L(r) − r panel over [0, rmax] × [lo, hi].
+fn l_chart<'a, 'b>(
+    area: &'a Canvas<'b>,
+    run: &ScalesRun,
+    caption: String,
+    lo: f64,
+    hi: f64,
+) -> Option<Chart<'a, 'b>> {
+    let mut chart = ChartBuilder::on(area)
+        .caption(caption, ("sans-serif", 15))
+        .margin(8)
+        .x_label_area_size(34)
+        .y_label_area_size(50)
+        .build_cartesian_2d(0.0..run.rmax, lo..hi)
+        .ok()?;
+    chart
+        .configure_mesh()
+        .disable_mesh()
+        .x_desc(format!("distance r ({})", run.unit))
+        .y_desc(format!("L(r) − r ({})", run.unit))
+        .x_label_formatter(&|v| distance(*v))
+        .y_label_formatter(&|v| distance(*v))
+        .draw()
+        .ok()?;
+    Some(chart)
+}
+
+/// The legend, in the upper left corner of a panel.
+fn legend<'a, 'b: 'a>(chart: &mut Chart<'a, 'b>) -> Option<()> {
+    canvas::legend(chart)
+        .label_font(("sans-serif", 11))
+        .position(SeriesLabelPosition::UpperLeft)
+        .draw()
+        .ok()
 }
 
 /// One window's panel. The legend is the same in every panel, so only the
 /// first draws it, above the curves in headroom of its own (a legend drawn
 /// over the data hid the observed curve where it rises highest).
 fn window_panel(
-    area: &Area<'_>,
+    area: &Canvas<'_>,
     run: &ScalesRun,
     w: &WindowScales,
     with_legend: bool,
@@ -117,22 +141,7 @@ fn window_panel(
         Some(t) => format!("`{}` (n = {}): MAD p = {}", w.id, w.n, p_value(t.p)),
         None => format!("`{}` (n = {}): no test", w.id, w.n),
     };
-    let mut chart = ChartBuilder::on(area)
-        .caption(title, ("sans-serif", 15))
-        .margin(8)
-        .x_label_area_size(34)
-        .y_label_area_size(50)
-        .build_cartesian_2d(0.0..run.rmax, lo..hi)
-        .ok()?;
-    chart
-        .configure_mesh()
-        .disable_mesh()
-        .x_desc(format!("distance r ({})", run.unit))
-        .y_desc(format!("L(r) − r ({})", run.unit))
-        .x_label_formatter(&|v| distance(*v))
-        .y_label_formatter(&|v| distance(*v))
-        .draw()
-        .ok()?;
+    let mut chart = l_chart(area, run, title, lo, hi)?;
     if let Some(t) = test {
         let band: Vec<(f64, f64)> = r
             .iter()
@@ -187,16 +196,32 @@ fn window_panel(
         Some(format!("observed, {} correction", tested.as_str())),
     )?;
     if with_legend {
-        chart
-            .configure_series_labels()
-            .background_style(WHITE.mix(0.9))
-            .border_style(BLACK)
-            .label_font(("sans-serif", 11))
-            .position(SeriesLabelPosition::UpperLeft)
-            .draw()
-            .ok()?;
+        legend(&mut chart)?;
     }
     Some(())
+}
+
+/// One correction's panel: every window's L̂ − r, one ink per window.
+fn correction_panel(area: &Canvas<'_>, run: &ScalesRun, c: Correction) -> Option<()> {
+    let series: Vec<&[Option<f64>]> = run
+        .windows
+        .iter()
+        .filter_map(|w| w.curves.iter().find(|k| k.correction == c))
+        .map(|k| k.l_minus_r.as_slice())
+        .collect();
+    let (lo, hi) = y_range(series.iter().copied());
+    let mut chart = l_chart(area, run, format!("{} correction", c.as_str()), lo, hi)?;
+    for (k, w) in run.windows.iter().enumerate() {
+        if let Some(curve) = w.curves.iter().find(|x| x.correction == c) {
+            draw_line(
+                &mut chart,
+                points(&run.r, &curve.l_minus_r),
+                ink(k),
+                Some(format!("`{}`", w.id)),
+            )?;
+        }
+    }
+    legend(&mut chart)
 }
 
 fn grid_shape(k: usize) -> (usize, usize) {
@@ -210,32 +235,45 @@ fn grid_shape(k: usize) -> (usize, usize) {
     (cols, k.div_ceil(cols).max(1))
 }
 
+/// A grid of `panels` panels under a one-line `title`, panel k drawn by
+/// `panel(k, area)`: the one frame of both pictures.
+fn panel_grid(
+    panels: usize,
+    title: &str,
+    mut panel: impl FnMut(usize, &Canvas<'_>) -> Option<()>,
+) -> Option<String> {
+    let (cols, rows) = grid_shape(panels);
+    canvas::svg((460 * cols as u32, 340 * rows as u32 + 40), |root| {
+        let (head, body) = root.split_vertically(40);
+        head.draw(&Text::new(
+            title,
+            (14, 12),
+            ("sans-serif", 15).into_font().color(&BLACK),
+        ))
+        .ok()?;
+        for (k, area) in body
+            .split_evenly((rows, cols))
+            .iter()
+            .take(panels)
+            .enumerate()
+        {
+            panel(k, area)?;
+        }
+        Some(())
+    })
+}
+
 /// `scales.svg`: one panel per window with its global band. `None` when
 /// there is no window or the drawing fails.
 pub fn scales_svg(run: &ScalesRun) -> Option<String> {
     if run.windows.is_empty() {
         return None;
     }
-    let (cols, rows) = grid_shape(run.windows.len());
-    let mut svg = String::new();
-    {
-        let root = SVGBackend::with_string(&mut svg, (460 * cols as u32, 340 * rows as u32 + 40))
-            .into_drawing_area();
-        root.fill(&WHITE).ok()?;
-        let (head, body) = root.split_vertically(40);
-        head.draw(&Text::new(
-            "L(r) − r in every window: above the shaded global band = clustering at r, below = regularity",
-            (14, 12),
-            ("sans-serif", 15).into_font().color(&BLACK),
-        ))
-        .ok()?;
-        let panels = body.split_evenly((rows, cols));
-        for (k, (w, area)) in run.windows.iter().zip(panels.iter()).enumerate() {
-            window_panel(area, run, w, k == 0)?;
-        }
-        root.present().ok()?;
-    }
-    Some(svg)
+    panel_grid(
+        run.windows.len(),
+        "L(r) − r in every window: above the shaded global band = clustering at r, below = regularity",
+        |k, area| window_panel(area, run, &run.windows[k], k == 0),
+    )
 }
 
 /// `corrections.svg`: one panel per correction, every window's L̂ − r.
@@ -243,64 +281,9 @@ pub fn corrections_svg(run: &ScalesRun) -> Option<String> {
     if run.windows.is_empty() || run.corrections.is_empty() {
         return None;
     }
-    let (cols, rows) = grid_shape(run.corrections.len());
-    let mut svg = String::new();
-    {
-        let root = SVGBackend::with_string(&mut svg, (460 * cols as u32, 340 * rows as u32 + 40))
-            .into_drawing_area();
-        root.fill(&WHITE).ok()?;
-        let (head, body) = root.split_vertically(40);
-        head.draw(&Text::new(
-            "L(r) − r by edge correction: one line per window (no test drawn here)",
-            (14, 12),
-            ("sans-serif", 15).into_font().color(&BLACK),
-        ))
-        .ok()?;
-        let panels = body.split_evenly((rows, cols));
-        for (c, area) in run.corrections.iter().zip(panels.iter()) {
-            let series: Vec<&[Option<f64>]> = run
-                .windows
-                .iter()
-                .filter_map(|w| w.curves.iter().find(|k| k.correction == *c))
-                .map(|k| k.l_minus_r.as_slice())
-                .collect();
-            let (lo, hi) = y_range(series.iter().copied());
-            let mut chart = ChartBuilder::on(area)
-                .caption(format!("{} correction", c.as_str()), ("sans-serif", 15))
-                .margin(8)
-                .x_label_area_size(34)
-                .y_label_area_size(50)
-                .build_cartesian_2d(0.0..run.rmax, lo..hi)
-                .ok()?;
-            chart
-                .configure_mesh()
-                .disable_mesh()
-                .x_desc(format!("distance r ({})", run.unit))
-                .y_desc(format!("L(r) − r ({})", run.unit))
-                .x_label_formatter(&|v| distance(*v))
-                .y_label_formatter(&|v| distance(*v))
-                .draw()
-                .ok()?;
-            for (k, w) in run.windows.iter().enumerate() {
-                if let Some(curve) = w.curves.iter().find(|x| x.correction == *c) {
-                    draw_line(
-                        &mut chart,
-                        points(&run.r, &curve.l_minus_r),
-                        ink(k),
-                        Some(format!("`{}`", w.id)),
-                    )?;
-                }
-            }
-            chart
-                .configure_series_labels()
-                .background_style(WHITE.mix(0.9))
-                .border_style(BLACK)
-                .label_font(("sans-serif", 11))
-                .position(SeriesLabelPosition::UpperLeft)
-                .draw()
-                .ok()?;
-        }
-        root.present().ok()?;
-    }
-    Some(svg)
+    panel_grid(
+        run.corrections.len(),
+        "L(r) − r by edge correction: one line per window (no test drawn here)",
+        |k, area| correction_panel(area, run, run.corrections[k]),
+    )
 }

@@ -154,6 +154,7 @@ pub fn rank_envelope(
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::test_curves::bump_and_flat_curves;
 
     /// By hand from the definitions: 19 flat simulated curves at heights
     /// ±0.1·k (k = 1…19, odd k below zero) and an observed curve at 0 with
@@ -169,13 +170,7 @@ mod tests {
     /// upward.
     #[test]
     fn erl_by_hand() {
-        let sims: Vec<Vec<Option<f64>>> = (1..=19)
-            .map(|k| {
-                let h = if k % 2 == 0 { 0.1 } else { -0.1 } * f64::from(k);
-                vec![Some(h); 4]
-            })
-            .collect();
-        let obs = vec![Some(0.0), Some(5.0), Some(0.0), Some(0.0)];
+        let (obs, sims) = bump_and_flat_curves();
         let t = rank_envelope(&obs, &sims, 0.05);
         assert_eq!(t.extreme_rank, 1);
         assert!((t.p - 3.0 / 20.0).abs() < 1e-15);
