@@ -297,18 +297,8 @@ fn between(value: f64, a: f64, b: f64) -> bool {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::test_shapes::Gen;
     use geo::{BoundingRect, ConcaveHull, ConvexHull, MultiPoint, Point, Polygon};
-
-    /// xorshift64*: a tiny self-contained generator for test data only.
-    struct Gen(u64);
-    impl Gen {
-        fn unit(&mut self) -> f64 {
-            self.0 ^= self.0 >> 12;
-            self.0 ^= self.0 << 25;
-            self.0 ^= self.0 >> 27;
-            (self.0.wrapping_mul(0x2545_F491_4F6C_DD1D) >> 11) as f64 / (1u64 << 53) as f64
-        }
-    }
 
     fn ring(n: usize, r: f64, c: [f64; 2], wobble: f64, g: &mut Gen) -> LineString<f64> {
         let pts: Vec<(f64, f64)> = (0..=n)

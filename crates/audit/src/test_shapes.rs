@@ -1,4 +1,5 @@
-//! Axis-aligned test windows shared by the unit tests of this crate.
+//! Axis-aligned test windows and a seeded generator shared by the unit
+//! tests of this crate.
 
 use geo::{LineString, MultiPolygon, Polygon};
 
@@ -18,4 +19,17 @@ pub fn rectangle_with_hole(w: f64, h: f64, hole: [f64; 4]) -> MultiPolygon<f64> 
         rect_ring(0.0, 0.0, w, h),
         vec![rect_ring(hole[0], hole[1], hole[2], hole[3])],
     )])
+}
+
+/// xorshift64*: a tiny self-contained generator for test data only.
+pub struct Gen(pub u64);
+
+impl Gen {
+    /// Uniform in [0, 1), 53 bits.
+    pub fn unit(&mut self) -> f64 {
+        self.0 ^= self.0 >> 12;
+        self.0 ^= self.0 << 25;
+        self.0 ^= self.0 >> 27;
+        (self.0.wrapping_mul(0x2545_F491_4F6C_DD1D) >> 11) as f64 / (1u64 << 53) as f64
+    }
 }

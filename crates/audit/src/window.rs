@@ -509,14 +509,8 @@ mod tests {
             ring(60, 50.0, [0.0, 0.0], 0.2),
             vec![ring(7, 10.0, [5.0, -3.0], 0.0)],
         )]);
-        // xorshift64*: a tiny self-contained generator for test data only.
-        let mut state: u64 = 0x2545_F491_4F6C_DD1D;
-        let mut unit = || {
-            state ^= state >> 12;
-            state ^= state << 25;
-            state ^= state >> 27;
-            (state.wrapping_mul(0x2545_F491_4F6C_DD1D) >> 11) as f64 / (1u64 << 53) as f64
-        };
+        let mut g = crate::test_shapes::Gen(0x2545_F491_4F6C_DD1D);
+        let mut unit = || g.unit();
         let plain = Outline::new(&shape, None);
         // 0.01 would need 10⁸ cells of w/2: the grid gets wider cells
         // (more than w across, so none is blocked outright) instead.
@@ -569,13 +563,8 @@ mod tests {
             let t = Euclidean.distance(&q, hull.exterior());
             if hull.intersects(&q) { d + t } else { d - t }
         };
-        let mut state: u64 = 0x9E37_79B9_7F4A_7C15;
-        let mut unit = || {
-            state ^= state >> 12;
-            state ^= state << 25;
-            state ^= state >> 27;
-            (state.wrapping_mul(0x2545_F491_4F6C_DD1D) >> 11) as f64 / (1u64 << 53) as f64
-        };
+        let mut g = crate::test_shapes::Gen(0x9E37_79B9_7F4A_7C15);
+        let mut unit = || g.unit();
         let inside_buffer = crate::cover::Cover::new(&buffered);
         let mut probes: Vec<Xy> = Vec::new();
         while probes.len() < 4_000 {

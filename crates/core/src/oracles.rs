@@ -27,26 +27,19 @@ impl Gen {
 /// nearest-neighbour distance): squared differences summed as
 /// dx·dx + dy·dy, then the square root, as the engines compute them.
 pub(crate) fn brute_plane(points: &[Xy]) -> Vec<f64> {
-    points
-        .iter()
-        .enumerate()
-        .map(|(i, p)| {
-            let mut best = f64::INFINITY;
-            for (j, q) in points.iter().enumerate() {
-                if i != j {
-                    let (dx, dy) = (q[0] - p[0], q[1] - p[1]);
-                    best = best.min(dx * dx + dy * dy);
-                }
-            }
-            best.sqrt()
-        })
-        .collect()
+    brute(points, &[0.0], &[0.0])
 }
 
 /// Brute-force torus oracle: every other point against the nine shifted
 /// copies of the query (the definition of the flat torus distance).
 pub(crate) fn brute_torus(points: &[Xy], r: Rect) -> Vec<f64> {
     let (w, h) = (r.max[0] - r.min[0], r.max[1] - r.min[1]);
+    brute(points, &[-w, 0.0, w], &[-h, 0.0, h])
+}
+
+/// Every other point against the query shifted by each (sx, sy); a zero
+/// shift leaves the query's coordinates exactly as they are.
+fn brute(points: &[Xy], shifts_x: &[f64], shifts_y: &[f64]) -> Vec<f64> {
     points
         .iter()
         .enumerate()
@@ -56,8 +49,8 @@ pub(crate) fn brute_torus(points: &[Xy], r: Rect) -> Vec<f64> {
                 if i == j {
                     continue;
                 }
-                for sx in [-w, 0.0, w] {
-                    for sy in [-h, 0.0, h] {
+                for &sx in shifts_x {
+                    for &sy in shifts_y {
                         let (dx, dy) = (q[0] - (p[0] + sx), q[1] - (p[1] + sy));
                         best = best.min(dx * dx + dy * dy);
                     }
