@@ -268,6 +268,7 @@ pub fn read_named_boundaries(path: &Path, field: &str) -> Result<Vec<RawBoundary
             }
         };
         let geometry = f.geometry.ok_or_else(|| no_geometry(path, &place))?;
+        check_rings(path, &place, &geometry)?;
         let mut polys = Vec::new();
         geojson_polygons(path, &place, geometry, &mut polys)?;
         add_part(&mut out, name, polys, declared);
@@ -314,5 +315,22 @@ mod tests {
     fn lines_are_not_boundaries() {
         let f = file(".wkt", "LINESTRING (0 0, 1 1)");
         assert!(read_boundary(f.path()).unwrap_err().what.contains("lines"));
+    }
+
+    /// Site boundaries refuse an unclosed ring as a single boundary does
+    /// (RFC 7946 §3.1.6: first and last positions equal, at least four): a
+    /// ring cut short is the mark of a truncated export, not a shape to
+    /// close silently.
+    #[test]
+    fn site_boundaries_refuse_unclosed_rings() {
+        let f = file(
+            ".geojson",
+            r#"{"type":"FeatureCollection","features":[
+              {"type":"Feature","properties":{"name":"a"},"geometry":{"type":"Polygon","coordinates":[[[0,0],[4,0],[4,4],[0,4],[0,0]]]}},
+              {"type":"Feature","properties":{"name":"b"},"geometry":{"type":"Polygon","coordinates":[[[5,0],[9,0],[9,4],[5,4]]]}}]}"#,
+        );
+        let e = read_named_boundaries(f.path(), "name").unwrap_err();
+        assert!(e.what.contains("not closed"), "{}", e.what);
+        assert_eq!(e.location.as_deref(), Some("feature 2"));
     }
 }
