@@ -21,33 +21,80 @@ pub struct Region {
     pub area: f64,
 }
 
-/// The `level` isopleth of `values` restricted to `mask`.
-pub fn region(values: &[f64], mask: &[bool], cell_area: f64, level: f64) -> Region {
-    let mut idx: Vec<usize> = (0..values.len()).filter(|k| mask[*k]).collect();
-    idx.sort_by(|a, b| values[*b].total_cmp(&values[*a]).then(a.cmp(b)));
-    let total: f64 = idx.iter().map(|k| values[*k]).sum();
-    let target = level * total;
-    let mut acc = 0.0;
-    let mut threshold = 0.0;
-    for k in &idx {
-        acc += values[*k];
-        threshold = values[*k];
-        if acc >= target {
-            break;
+/// The window's cells from the densest down (ties by index, so the order
+/// is total and the result does not depend on the sort), with the mass
+/// they hold. Sorting is the costly step, so one order serves every level
+/// of a surface and its mass ranks.
+pub struct MassOrder {
+    /// (value, cell index), densest first.
+    cells: Vec<(f64, usize)>,
+    /// Sum of the values, accumulated in that order.
+    total: f64,
+}
+
+impl MassOrder {
+    /// Rank the cells of `values` inside `mask`.
+    pub fn new(values: &[f64], mask: &[bool]) -> Self {
+        let mut cells: Vec<(f64, usize)> = values
+            .iter()
+            .zip(mask)
+            .enumerate()
+            .filter(|(_, (_, m))| **m)
+            .map(|(k, (v, _))| (*v, k))
+            .collect();
+        cells.sort_unstable_by(|a, b| b.0.total_cmp(&a.0).then(a.1.cmp(&b.1)));
+        let total = cells.iter().map(|c| c.0).sum();
+        Self { cells, total }
+    }
+
+    /// The `level` isopleth: every window cell at or above the value of
+    /// the cell where the accumulated mass reaches the share.
+    pub fn region(&self, values: &[f64], mask: &[bool], cell_area: f64, level: f64) -> Region {
+        let target = level * self.total;
+        let mut acc = 0.0;
+        let mut threshold = 0.0;
+        for &(v, _) in &self.cells {
+            acc += v;
+            threshold = v;
+            if acc >= target {
+                break;
+            }
+        }
+        let cells: Vec<bool> = values
+            .iter()
+            .zip(mask)
+            .map(|(v, m)| *m && *v >= threshold && *v > 0.0)
+            .collect();
+        let count = cells.iter().filter(|c| **c).count();
+        Region {
+            level,
+            threshold,
+            area: count as f64 * cell_area,
+            cells,
         }
     }
-    let cells: Vec<bool> = values
-        .iter()
-        .zip(mask)
-        .map(|(v, m)| *m && *v >= threshold && *v > 0.0)
-        .collect();
-    let count = cells.iter().filter(|c| **c).count();
-    Region {
-        level,
-        threshold,
-        area: count as f64 * cell_area,
-        cells,
+
+    /// For each of `len` cells, the share of the mass held by window cells
+    /// of higher or equal density (0 at the peak, 1 at the lowest cell); 1
+    /// outside the window.
+    pub fn ranks(&self, len: usize) -> Vec<f64> {
+        let mut out = vec![1.0; len];
+        let mut acc = 0.0;
+        for &(v, k) in &self.cells {
+            acc += v;
+            out[k] = if self.total > 0.0 {
+                acc / self.total
+            } else {
+                1.0
+            };
+        }
+        out
     }
+}
+
+/// The `level` isopleth of `values` restricted to `mask`.
+pub fn region(values: &[f64], mask: &[bool], cell_area: f64, level: f64) -> Region {
+    MassOrder::new(values, mask).region(values, mask, cell_area, level)
 }
 
 /// For each window cell, the share of the mass held by cells of higher or
@@ -56,16 +103,7 @@ pub fn region(values: &[f64], mask: &[bool], cell_area: f64, level: f64) -> Regi
 /// (up to ties), so colouring by rank makes surfaces of different
 /// peakedness comparable.
 pub fn mass_rank(values: &[f64], mask: &[bool]) -> Vec<f64> {
-    let mut idx: Vec<usize> = (0..values.len()).filter(|k| mask[*k]).collect();
-    idx.sort_by(|a, b| values[*b].total_cmp(&values[*a]).then(a.cmp(b)));
-    let total: f64 = idx.iter().map(|k| values[*k]).sum();
-    let mut out = vec![1.0; values.len()];
-    let mut acc = 0.0;
-    for k in idx {
-        acc += values[k];
-        out[k] = if total > 0.0 { acc / total } else { 1.0 };
-    }
-    out
+    MassOrder::new(values, mask).ranks(values.len())
 }
 
 /// Outline of the region `{value ≥ threshold}` traced by marching squares

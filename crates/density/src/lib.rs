@@ -187,14 +187,15 @@ struct Raw {
 }
 
 fn measure(raw: Raw, grid: &Grid, mask: &[bool], levels: &[f64]) -> Surface {
-    let regions: Vec<isopleth::Region> = levels
+    let order = isopleth::MassOrder::new(&raw.estimate.values, mask);
+    // The first level's patches also give the hotspot below.
+    let mut first_labels = None;
+    let levels: Vec<Level> = levels
         .iter()
-        .map(|l| isopleth::region(&raw.estimate.values, mask, grid.cell_area(), *l))
-        .collect();
-    let levels: Vec<Level> = regions
-        .into_iter()
-        .map(|r| {
-            let (_, n) = patches::label(&r.cells, grid.nx, grid.ny);
+        .map(|l| {
+            let r = order.region(&raw.estimate.values, mask, grid.cell_area(), *l);
+            let (lab, n) = patches::label(&r.cells, grid.nx, grid.ny);
+            first_labels.get_or_insert(lab);
             Level {
                 region: r,
                 patches: n,
@@ -210,9 +211,8 @@ fn measure(raw: Raw, grid: &Grid, mask: &[bool], levels: &[f64]) -> Surface {
         }
     }
     let peak = grid.centre(best % grid.nx, best / grid.nx);
-    let hotspot = match levels.first() {
-        Some(l) => {
-            let (lab, _) = patches::label(&l.region.cells, grid.nx, grid.ny);
+    let hotspot = match &first_labels {
+        Some(lab) => {
             let id = lab[best];
             lab.iter().map(|x| *x == id && id != usize::MAX).collect()
         }

@@ -15,6 +15,7 @@ use patternproof_report::html::escape;
 use patternproof_report::numbers::sig;
 use patternproof_report::palette::ink;
 use plotters::prelude::*;
+use rayon::prelude::*;
 use std::fmt::Write as _;
 
 /// Viridis anchors (van der Walt & Smith), dark to light.
@@ -57,31 +58,46 @@ fn base64(data: &[u8]) -> String {
     s
 }
 
+/// Largest side, in pixels, of a panel's embedded raster. Panels are drawn
+/// 200 pixels wide, so this keeps two pixels per drawn pixel; a finer
+/// raster is shown by blocks of cells (1 000 × 1 000 cells made the 16
+/// PNGs of a default run the slowest step, and the SVG tens of MB).
+const MAX_PANEL_PIXELS: usize = 400;
+
 /// The raster of one surface as a PNG (north up), coloured by mass rank.
+/// A raster wider than [`MAX_PANEL_PIXELS`] is shown by square blocks of
+/// cells, each with the colour of its densest window cell, so no hotspot
+/// disappears; the isopleth outlines drawn over it are traced on the full
+/// raster.
 pub fn surface_png(a: &Analysis, s: &Surface) -> Option<Vec<u8>> {
     let g = &a.grid;
     let rank = mass_rank(&s.estimate.values, &a.mask);
-    let mut rgb = Vec::with_capacity(g.len() * 3);
-    for j in (0..g.ny).rev() {
-        for i in 0..g.nx {
-            let k = j * g.nx + i;
-            let c = if !a.mask[k] {
-                (255, 255, 255)
-            } else if rank[k] > 0.99 {
-                (236, 236, 236)
-            } else {
-                ramp(rank[k])
+    let step = g.nx.max(g.ny).div_ceil(MAX_PANEL_PIXELS).max(1);
+    let (w, h) = (g.nx.div_ceil(step), g.ny.div_ceil(step));
+    let mut rgb = Vec::with_capacity(w * h * 3);
+    for jb in (0..h).rev() {
+        for ib in 0..w {
+            // Densest window cell of the block (lowest rank), if any.
+            let mut best: Option<f64> = None;
+            for j in jb * step..((jb + 1) * step).min(g.ny) {
+                for i in ib * step..((ib + 1) * step).min(g.nx) {
+                    let k = j * g.nx + i;
+                    if a.mask[k] {
+                        best = Some(best.map_or(rank[k], |b: f64| b.min(rank[k])));
+                    }
+                }
+            }
+            let c = match best {
+                None => (255, 255, 255),
+                Some(r) if r > 0.99 => (236, 236, 236),
+                Some(r) => ramp(r),
             };
             rgb.extend([c.0, c.1, c.2]);
         }
     }
     let mut out = Vec::new();
     {
-        let mut enc = png::Encoder::new(
-            &mut out,
-            u32::try_from(g.nx).ok()?,
-            u32::try_from(g.ny).ok()?,
-        );
+        let mut enc = png::Encoder::new(&mut out, u32::try_from(w).ok()?, u32::try_from(h).ok()?);
         enc.set_color(png::ColorType::Rgb);
         enc.set_depth(png::BitDepth::Eight);
         let mut w = enc.write_header().ok()?;
@@ -152,55 +168,41 @@ pub fn small_multiples_svg(a: &Analysis, unit: &str) -> String {
             escape(&spec.label())
         );
     }
-    for (r, kernel) in kernels.iter().enumerate() {
-        let y = top + r as f64 * (ph + gap + 16.0);
-        let _ = write!(
-            svg,
-            r#"<text x="10" y="{:.1}">{}</text>"#,
-            y + ph / 2.0,
-            kernel.name()
-        );
-        for (c, spec) in specs.iter().enumerate() {
-            let Some(s) = a
-                .surfaces
-                .iter()
-                .find(|s| s.kernel == *kernel && s.spec == *spec && s.edge == edge)
-            else {
-                continue;
-            };
-            let x = left + c as f64 * (pw + gap);
-            if let Some(png) = surface_png(a, s) {
-                let _ = write!(
-                    svg,
-                    r#"<image x="{x:.1}" y="{y:.1}" width="{pw:.1}" height="{ph:.1}" preserveAspectRatio="none" style="image-rendering:pixelated" href="data:image/png;base64,{}"/>"#,
-                    base64(&png)
-                );
-            }
+    // Panels are drawn in parallel (each one's PNG and outlines are the
+    // slow part) and written in the sequential order, so the bytes do not
+    // depend on the thread count.
+    let rows: Vec<(usize, &crate::kernels::Kernel)> = kernels.iter().enumerate().collect();
+    let drawn: Vec<String> = rows
+        .par_iter()
+        .map(|&(r, kernel)| {
+            let mut row = String::new();
+            let y = top + r as f64 * (ph + gap + 16.0);
             let _ = write!(
-                svg,
-                r##"<rect x="{x:.1}" y="{y:.1}" width="{pw:.1}" height="{ph:.1}" fill="none" stroke="#999"/>"##
+                row,
+                r#"<text x="10" y="{:.1}">{}</text>"#,
+                y + ph / 2.0,
+                kernel.name()
             );
-            for li in 0..s.levels.len() {
-                let d = outline_path(a, s, li, x, y, scale);
-                let dash = if li + 1 == s.levels.len() {
-                    r#" stroke-dasharray="5,3""#
-                } else {
-                    ""
-                };
-                let _ = write!(
-                    svg,
-                    r#"<path d="{d}" fill="none" stroke="black" stroke-width="1.2"{dash}/>"#
-                );
-            }
-            let _ = write!(
-                svg,
-                r#"<text x="{x:.1}" y="{:.1}" font-size="10">h = {} (σ-equiv. {})</text>"#,
-                y + ph + 12.0,
-                sig(s.bandwidth, 3),
-                sig(s.gaussian_equivalent, 3)
-            );
-        }
-    }
+            let panels: Vec<String> = specs
+                .par_iter()
+                .enumerate()
+                .map(|(c, spec)| {
+                    let Some(s) = a
+                        .surfaces
+                        .iter()
+                        .find(|s| s.kernel == *kernel && s.spec == *spec && s.edge == edge)
+                    else {
+                        return String::new();
+                    };
+                    let x = left + c as f64 * (pw + gap);
+                    panel_svg(a, s, x, y, pw, ph, scale)
+                })
+                .collect();
+            row.extend(panels);
+            row
+        })
+        .collect();
+    svg.extend(drawn);
     let ly = height - 30.0;
     for k in 0..=10 {
         let t = k as f64 / 10.0;
@@ -221,6 +223,43 @@ pub fn small_multiples_svg(a: &Analysis, unit: &str) -> String {
     );
     svg.push('\n');
     svg
+}
+
+/// One panel of the small multiples: the surface's raster, its frame, its
+/// isopleth outlines and its bandwidth caption, at (x, y).
+fn panel_svg(a: &Analysis, s: &Surface, x: f64, y: f64, pw: f64, ph: f64, scale: f64) -> String {
+    let mut out = String::new();
+    if let Some(png) = surface_png(a, s) {
+        let _ = write!(
+            out,
+            r#"<image x="{x:.1}" y="{y:.1}" width="{pw:.1}" height="{ph:.1}" preserveAspectRatio="none" style="image-rendering:pixelated" href="data:image/png;base64,{}"/>"#,
+            base64(&png)
+        );
+    }
+    let _ = write!(
+        out,
+        r##"<rect x="{x:.1}" y="{y:.1}" width="{pw:.1}" height="{ph:.1}" fill="none" stroke="#999"/>"##
+    );
+    for li in 0..s.levels.len() {
+        let d = outline_path(a, s, li, x, y, scale);
+        let dash = if li + 1 == s.levels.len() {
+            r#" stroke-dasharray="5,3""#
+        } else {
+            ""
+        };
+        let _ = write!(
+            out,
+            r#"<path d="{d}" fill="none" stroke="black" stroke-width="1.2"{dash}/>"#
+        );
+    }
+    let _ = write!(
+        out,
+        r#"<text x="{x:.1}" y="{:.1}" font-size="10">h = {} (σ-equiv. {})</text>"#,
+        y + ph + 12.0,
+        sig(s.bandwidth, 3),
+        sig(s.gaussian_equivalent, 3)
+    );
+    out
 }
 
 /// Isopleth area against the Gaussian-equivalent bandwidth, one line per
@@ -298,7 +337,92 @@ pub fn area_chart_svg(a: &Analysis, unit: &str) -> Option<String> {
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
+    use super::*;
+    use crate::bandwidth::BandwidthSpec;
+    use crate::edge::Edge;
+    use crate::kernels::Kernel;
+    use crate::{Config, analyse};
+
+    /// A tight cluster in one corner of a 100 × 100 square and a sparse
+    /// background, at cell side `cell`.
+    fn analysis(cell: f64) -> Analysis {
+        let mut pts = Vec::new();
+        for k in 0..200 {
+            let t = k as f64 * 0.618_034;
+            pts.push([10.0 + (t * 7.3).sin() * 2.0, 12.0 + (t * 5.1).cos() * 2.0]);
+            pts.push([(t * 97.0) % 100.0, (t * 61.0) % 100.0]);
+        }
+        let square = geo::MultiPolygon::new(vec![geo::Polygon::new(
+            geo::LineString::from(vec![
+                (0.0, 0.0),
+                (100.0, 0.0),
+                (100.0, 100.0),
+                (0.0, 100.0),
+                (0.0, 0.0),
+            ]),
+            vec![],
+        )]);
+        let config = Config {
+            kernels: vec![Kernel::Gaussian],
+            bandwidths: vec![BandwidthSpec::Fixed(3.0)],
+            edges: vec![Edge::None],
+            levels: vec![0.5, 0.95],
+            cell: Some(cell),
+            reference: (Kernel::Gaussian, BandwidthSpec::Fixed(3.0), Edge::None),
+            unit: "m".into(),
+        };
+        analyse(&pts, &square, &config).unwrap()
+    }
+
+    fn decode(png_bytes: &[u8]) -> (u32, u32, Vec<u8>) {
+        let mut reader = png::Decoder::new(std::io::Cursor::new(png_bytes))
+            .read_info()
+            .unwrap();
+        let mut buf = vec![0; reader.output_buffer_size().unwrap()];
+        let info = reader.next_frame(&mut buf).unwrap();
+        buf.truncate(info.buffer_size());
+        (info.width, info.height, buf)
+    }
+
+    /// Up to `MAX_PANEL_PIXELS` cells a side, one pixel per cell, north up,
+    /// coloured by the cell's mass rank; a finer raster (500 cells) is
+    /// shown by 2 × 2 blocks, and the block holding the densest cell keeps
+    /// that cell's colour. Checked by decoding the PNG (the `png` crate).
+    #[test]
+    fn panels_keep_one_pixel_per_cell_or_the_densest_cell_of_each_block() {
+        // 102 and 502 cells a side (the grid adds a cell around the square).
+        for (cell, step) in [(1.0, 1usize), (0.2, 2)] {
+            let a = analysis(cell);
+            let s = &a.surfaces[0];
+            let (w, h, rgb) = decode(&surface_png(&a, s).unwrap());
+            let g = &a.grid;
+            assert!(g.nx > 100 * step && g.nx <= 400 * step, "{}", g.nx);
+            let side = g.nx.div_ceil(step);
+            assert_eq!(
+                (w as usize, h as usize),
+                (side, g.ny.div_ceil(step)),
+                "cell {cell}"
+            );
+            let rank = mass_rank(&s.estimate.values, &a.mask);
+            let values = &s.estimate.values;
+            let top = (0..values.len())
+                .max_by(|x, y| values[*x].total_cmp(&values[*y]).then(y.cmp(x)))
+                .unwrap();
+            let (i, j) = (top % g.nx, top / g.nx);
+            let (px, py) = (i / step, h as usize - 1 - j / step);
+            let at = 3 * (py * side + px);
+            let want = ramp(rank[top]);
+            assert_eq!((rgb[at], rgb[at + 1], rgb[at + 2]), want, "cell {cell}");
+            let c = g.centre(i, j);
+            assert!(
+                (c[0] - 10.0).abs() < 3.0 && (c[1] - 12.0).abs() < 3.0,
+                "the peak lies in the cluster: {c:?}"
+            );
+        }
+    }
+
     #[test]
     fn base64_known_values() {
         assert_eq!(super::base64(b"Man"), "TWFu");
