@@ -3,6 +3,7 @@
 
 use crate::SiteRun;
 use patternproof_core::Call;
+use patternproof_report::canvas;
 use patternproof_report::palette::INKS;
 use plotters::prelude::*;
 
@@ -27,11 +28,8 @@ pub fn forest_svg(runs: &[SiteRun]) -> Option<String> {
     let (lo, hi) = (lo - pad, hi + pad);
     let rows = tested.len();
     let height = (90 + 24 * rows as u32).min(20_000);
-    let mut svg = String::new();
-    {
-        let root = SVGBackend::with_string(&mut svg, (900, height)).into_drawing_area();
-        root.fill(&WHITE).ok()?;
-        let mut chart = ChartBuilder::on(&root)
+    canvas::svg((900, height), |root| {
+        let mut chart = ChartBuilder::on(root)
             .caption(
                 "R by site under the protocol (95 % interval)",
                 ("sans-serif", 17),
@@ -96,12 +94,11 @@ pub fn forest_svg(runs: &[SiteRun]) -> Option<String> {
             .ok()?;
         }
         root.draw(&Text::new(
-            "filled: significant after adjustment; open: not significant; triangle: window-sensitive",
-            (14, height as i32 - 16),
-            ("sans-serif", 12).into_font().color(&BLACK),
-        ))
-        .ok()?;
-        root.present().ok()?;
-    }
-    Some(svg)
+        "filled: significant after adjustment; open: not significant; triangle: window-sensitive",
+        (14, height as i32 - 16),
+        ("sans-serif", 12).into_font().color(&BLACK),
+    ))
+    .ok()?;
+        Some(())
+    })
 }
