@@ -666,6 +666,11 @@ struct HullOffset {
     /// The hull's corners, counter-clockwise, not closed.
     corners: Vec<Coord<f64>>,
     d: f64,
+    /// A point inside the hull and the square of a radius around it that
+    /// the hull holds (shrunk far beyond rounding): most points are inside
+    /// this disc and need no orientation test.
+    centre: Coord<f64>,
+    inner_squared: f64,
 }
 
 impl HullOffset {
@@ -680,7 +685,33 @@ impl HullOffset {
         if hull.exterior().signed_area() < 0.0 {
             corners.reverse();
         }
-        Some(Self { corners, d })
+        let h = corners.len() as f64;
+        let centre = Coord {
+            x: corners.iter().map(|c| c.x).sum::<f64>() / h,
+            y: corners.iter().map(|c| c.y).sum::<f64>() / h,
+        };
+        // The distance from the corners' mean (inside a convex polygon) to
+        // the nearest edge line; the disc of that radius lies inside.
+        let mut inner = f64::INFINITY;
+        for (k, a) in corners.iter().enumerate() {
+            let b = corners[(k + 1) % corners.len()];
+            let (ex, ey) = (b.x - a.x, b.y - a.y);
+            let len = ex.hypot(ey);
+            if len > 0.0 {
+                inner = inner.min((ex * (centre.y - a.y) - ey * (centre.x - a.x)) / len);
+            }
+        }
+        let inner = if inner.is_finite() && inner > 0.0 {
+            inner * (1.0 - 1e-9)
+        } else {
+            0.0
+        };
+        Some(Self {
+            corners,
+            d,
+            centre,
+            inner_squared: inner * inner,
+        })
     }
 
     /// Whether `p` is inside or on the hull, by exact orientation tests
@@ -689,6 +720,10 @@ impl HullOffset {
     /// A binary search over the fan of corners from the first, O(log h).
     fn contains(&self, p: Xy) -> bool {
         use geo::kernels::{Kernel, RobustKernel};
+        let (dx, dy) = (p[0] - self.centre.x, p[1] - self.centre.y);
+        if dx * dx + dy * dy < self.inner_squared {
+            return true;
+        }
         let v = &self.corners;
         let p = Coord { x: p[0], y: p[1] };
         let right = |a: Coord<f64>, b: Coord<f64>| {
