@@ -424,6 +424,13 @@ fn rows_of_window(
                     }
                 };
                 r.focal = Some(focal);
+                if focal == n {
+                    // A buffered hull whose buffer is at least the guard
+                    // does this by construction.
+                    notes.push(format!(
+                        "every point lies at least {guard:.4} from the outline, so the guard zone leaves none out and this row repeats `none`"
+                    ));
+                }
                 if focal >= MIN_FOCAL {
                     r.size_under_csr = false_alarm_rate(
                         &sims,
@@ -551,6 +558,64 @@ fn false_alarm_rate(
 mod tests {
     use super::*;
     use crate::simulation::Measure;
+
+    /// Geometry (the buffer of a convex set holds every point at least D
+    /// from its outline): with the default guard, the mean nearest-neighbour
+    /// distance, the `1x` buffered hull leaves no point out, so its
+    /// guard-zone row equals the `none` row and says so; the `0.5x` buffer
+    /// leaves the hull's corners out.
+    #[test]
+    fn guard_equal_to_the_buffer_leaves_no_point_out() {
+        let mut g = crate::test_shapes::Gen(0x5EED_0000_0000_0001);
+        let points: Vec<Xy> = (0..150)
+            .map(|_| [g.unit() * 90.0, g.unit() * 60.0])
+            .collect();
+        let opts = AuditOptions {
+            sims: 0,
+            edges: vec![Edge::None, Edge::Border],
+            ..AuditOptions::default()
+        };
+        let a = run_audit(&points, &[], &opts, &|| {}).expect("audit");
+        let row = |window: &str, edge: Edge| {
+            a.results
+                .iter()
+                .find(|r| r.window == window && r.edge == edge)
+                .expect("row")
+        };
+        let buffered: Vec<&Window> = a
+            .windows
+            .iter()
+            .filter(|w| w.kind == WindowKind::BufferedHull)
+            .collect();
+        assert_eq!(buffered.len(), 3);
+        let at_guard = buffered
+            .iter()
+            .find(|w| w.buffer == Some(a.guard))
+            .expect("the 1x buffer equals the guard");
+        let border = row(&at_guard.id, Edge::Border);
+        assert_eq!(border.focal, Some(150));
+        assert_eq!(border.ratio, row(&at_guard.id, Edge::None).ratio);
+        assert!(
+            border
+                .note
+                .as_deref()
+                .unwrap_or("")
+                .contains("repeats `none`")
+        );
+        let half = buffered
+            .iter()
+            .find(|w| w.buffer.is_some_and(|d| d < a.guard))
+            .expect("0.5x");
+        let focal = row(&half.id, Edge::Border).focal.expect("focal");
+        assert!(focal < 150, "{focal}");
+        assert!(
+            !row(&half.id, Edge::Border)
+                .note
+                .as_deref()
+                .unwrap_or("")
+                .contains("repeats")
+        );
+    }
 
     /// Known result (Donnelly 1978; Diggle 2003, ch. 2): in a small square
     /// under CSR the uncorrected test rejects more often than α, and
