@@ -77,7 +77,8 @@ pub struct InputArgs {
     /// GeoPackage polygon layer of the `--boundary` GeoPackage files.
     #[arg(long, value_name = "NAME")]
     pub boundary_layer: Option<String>,
-    /// Keep only the GeoPackage points whose column FIELD equals VALUE (e.g. `--where year=2024`).
+    /// Keep only the points whose column (CSV, GeoPackage) or property (GeoJSON) FIELD equals
+    /// VALUE as text (e.g. `--where year=2024`).
     #[arg(long = "where", value_name = "FIELD=VALUE")]
     pub filter: Option<String>,
     #[command(flatten)]

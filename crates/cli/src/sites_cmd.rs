@@ -32,7 +32,8 @@ pub struct SitesArgs {
     /// GeoPackage point layer to read from each input (needed when a file holds more than one feature layer).
     #[arg(long, value_name = "NAME")]
     pub layer: Option<String>,
-    /// Keep only the GeoPackage points whose column FIELD equals VALUE (e.g. `--where year=2024`).
+    /// Keep only the points whose column (CSV, GeoPackage) or property (GeoJSON) FIELD equals
+    /// VALUE as text (e.g. `--where year=2024`).
     #[arg(long = "where", value_name = "FIELD=VALUE")]
     pub filter: Option<String>,
     /// One boundary per site, matched by name: a GeoJSON FeatureCollection or a

@@ -81,7 +81,8 @@ pub struct Dataset {
     pub warnings: Vec<String>,
     /// The carried attribute, per point.
     pub field_values: Option<Vec<String>>,
-    /// For GeoPackage input: the layer read, and the `--where` filter.
+    /// The GeoPackage layer read and the `--where` filter, as the report
+    /// names them beside the file.
     pub layer: Option<String>,
     /// For GeoPackage input: the layer's coordinate-system row.
     pub srs: Option<SpatialRef>,
@@ -110,18 +111,24 @@ impl Dataset {
             };
             (g.raw, g.unit, g.srs, Some(layer))
         } else {
-            if options.gpkg.layer.is_some() || options.gpkg.filter.is_some() {
+            if options.gpkg.layer.is_some() {
                 return Err(InputError::new(
                     points_file,
-                    "--layer and --where apply to GeoPackage (.gpkg) input only",
-                    "leave them out for CSV and GeoJSON point files",
+                    "--layer applies to GeoPackage (.gpkg) input only",
+                    "leave it out for CSV and GeoJSON point files",
                 ));
             }
+            let filter = options.gpkg.filter.as_ref();
             (
-                read_points(points_file, options.coords, options.field.as_deref())?,
+                read_points(
+                    points_file,
+                    options.coords,
+                    options.field.as_deref(),
+                    filter,
+                )?,
                 None,
                 None,
-                None,
+                filter.map(|f| format!("{} = {}", f.field, f.value)),
             )
         };
         if raw.skipped_empty > 0 {

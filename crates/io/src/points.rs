@@ -10,6 +10,7 @@
 use crate::coords::{CoordChoice, CoordSystem};
 use crate::error::{InputError, cannot_read, read_text};
 use geojson::{GeoJson, GeometryValue};
+use patternproof_gpkg::Filter;
 use std::path::Path;
 
 /// Where a point came from, for messages: a CSV line or a GeoJSON
@@ -99,11 +100,14 @@ const LAT_NAMES: [&str; 2] = ["lat", "latitude"];
 
 /// Read a point file, choosing the reader from the extension
 /// (`.geojson`/`.json` → GeoJSON, anything else → CSV). `field` names an
-/// optional attribute (CSV column or GeoJSON property) to carry along.
+/// optional attribute (CSV column or GeoJSON property) to carry along;
+/// `filter` (`--where FIELD=VALUE`) keeps only the rows or features whose
+/// attribute equals the value as text, exactly as the GeoPackage reader does.
 pub fn read_points(
     path: &Path,
     choice: CoordChoice,
     field: Option<&str>,
+    filter: Option<&Filter>,
 ) -> Result<RawPoints, InputError> {
     use std::io::Read;
     let cannot = |e| cannot_read(path, e);
@@ -126,7 +130,7 @@ pub fn read_points(
     }
     if is_geojson(path, &start) {
         let text = read_text(path)?;
-        read_geojson_points(path, &text, choice, field)
+        read_geojson_points(path, &text, choice, field, filter)
     } else {
         let delimiter = sniff_delimiter(&start);
         let stream = LineLimit {
@@ -134,8 +138,20 @@ pub fn read_points(
             run: 0,
             line: 0,
         };
-        read_csv_points(path, stream, delimiter, choice, field)
+        read_csv_points(path, stream, delimiter, choice, field, filter)
     }
+}
+
+/// The error of a `--where` that kept nothing.
+fn nothing_kept(path: &Path, f: &Filter, rows: usize, what: &str) -> InputError {
+    InputError::new(
+        path,
+        format!(
+            "--where {}={}: no {what} has this value (the file holds {rows})",
+            f.field, f.value
+        ),
+        "check the value (text is compared exactly, case included) or leave --where out",
+    )
 }
 
 /// GeoJSON by extension (`.geojson`, `.json`) or by a leading `{`
@@ -174,6 +190,7 @@ fn read_csv_points<R: std::io::Read>(
     delimiter: u8,
     choice: CoordChoice,
     field: Option<&str>,
+    filter: Option<&Filter>,
 ) -> Result<RawPoints, InputError> {
     let mut reader = csv::ReaderBuilder::new()
         .delimiter(delimiter)
@@ -237,6 +254,25 @@ fn read_csv_points<R: std::io::Read>(
         None => None,
     };
 
+    let filter_col = match filter {
+        Some(f) => Some((
+            find(&headers, &[f.field.to_ascii_lowercase().as_str()]).ok_or_else(|| {
+                InputError::new(
+                    path,
+                    format!(
+                        "--where {}={}: there is no column named '{}' (columns: {shown})",
+                        f.field, f.value, f.field
+                    ),
+                    "name one of the columns, or leave --where out",
+                )
+                .at("line 1")
+            })?,
+            f.value.trim(),
+        )),
+        None => None,
+    };
+    let mut rows = 0usize;
+
     let lenient_decimal_comma = delimiter != b',';
     let mut coords = Vec::new();
     let mut places = Vec::new();
@@ -250,6 +286,14 @@ fn read_csv_points<R: std::io::Read>(
                 let line = e.position().map(|p| p.line()).unwrap_or(0);
                 return Err(csv_error(path, e, line));
             }
+        }
+        rows += 1;
+        // Rows the filter leaves out are not read further: a bad number in
+        // another year's row does not stop this year's analysis.
+        if let Some((c, value)) = filter_col
+            && record.get(c).unwrap_or("") != value
+        {
+            continue;
         }
         let line = record.position().map(|p| p.line()).unwrap_or(0);
         let place = Place::Line(line);
@@ -272,6 +316,12 @@ fn read_csv_points<R: std::io::Read>(
         }
         coords.push([x, y]);
         places.push(place);
+    }
+    if let Some(f) = filter
+        && coords.is_empty()
+        && rows > 0
+    {
+        return Err(nothing_kept(path, f, rows, "row"));
     }
     coords.shrink_to_fit();
     places.shrink_to_fit();
@@ -431,6 +481,7 @@ fn read_geojson_points(
     text: &str,
     choice: CoordChoice,
     field: Option<&str>,
+    filter: Option<&Filter>,
 ) -> Result<RawPoints, InputError> {
     let gj: GeoJson = text.parse().map_err(|e| {
         InputError::new(
@@ -468,8 +519,35 @@ fn read_geojson_points(
     let mut places = Vec::new();
     let mut values = Vec::new();
     let mut skipped = 0;
+    let text_of = |v: &serde_json::Value| {
+        v.as_str()
+            .map(str::to_string)
+            .unwrap_or_else(|| v.to_string())
+    };
+    if let Some(w) = filter
+        && !features.iter().any(|f| {
+            f.properties
+                .as_ref()
+                .is_some_and(|p| p.contains_key(&w.field))
+        })
+    {
+        return Err(InputError::new(
+            path,
+            format!(
+                "--where {}={}: no feature has a property named '{}'",
+                w.field, w.value, w.field
+            ),
+            "name a property of the features, or leave --where out",
+        ));
+    }
     for (i, f) in features.iter().enumerate() {
         let place = format!("feature {}", i + 1);
+        if let Some(w) = filter {
+            let value = f.properties.as_ref().and_then(|p| p.get(&w.field));
+            if value.map(text_of).as_deref() != Some(w.value.as_str()) {
+                continue;
+            }
+        }
         // A feature without geometry (allowed by RFC 7946) has no place to
         // analyse: skipped and counted, not fatal.
         let Some(geometry) = &f.geometry else {
@@ -482,11 +560,7 @@ fn read_geojson_points(
                 f.properties
                     .as_ref()
                     .and_then(|p| p.get(name))
-                    .map(|v| {
-                        v.as_str()
-                            .map(str::to_string)
-                            .unwrap_or_else(|| v.to_string())
-                    })
+                    .map(text_of)
                     .ok_or_else(|| {
                         InputError::new(
                             path,
@@ -526,6 +600,12 @@ fn read_geojson_points(
             }
         }
     }
+    if let Some(w) = filter
+        && coords.is_empty()
+        && skipped == 0
+    {
+        return Err(nothing_kept(path, w, features.len(), "feature"));
+    }
     Ok(RawPoints {
         coords,
         places,
@@ -544,17 +624,111 @@ mod tests {
     #[test]
     fn csv_picks_columns_by_name_and_delimiter() {
         let f = file(".csv", "id;Easting;Northing\n1;10,5;20\n2;11;21\n");
-        let p = read_points(f.path(), CoordChoice::Auto, None).unwrap();
+        let p = read_points(f.path(), CoordChoice::Auto, None, None).unwrap();
         assert_eq!(p.coords, vec![[10.5, 20.0], [11.0, 21.0]]);
         assert_eq!(p.system, CoordSystem::Projected);
         assert_eq!(p.places[1], Place::Line(3));
         assert_eq!(p.places[1].to_string(), "line 3");
     }
 
+    fn keep(field: &str, value: &str) -> Filter {
+        Filter {
+            field: field.into(),
+            value: value.into(),
+        }
+    }
+
+    /// `--where` on a CSV keeps the rows whose column equals the value as
+    /// text (the column found as the coordinate columns are, case aside),
+    /// never parses the rows it leaves out, and says what is wrong when the
+    /// column is missing or nothing matches. By hand on five rows.
+    #[test]
+    fn csv_where_keeps_matching_rows_only() {
+        let f = file(
+            ".csv",
+            "x,y,Year
+1,2,2023
+3,4,2024
+not-a-number,6,2023
+7,8, 2024
+9,10,20240
+",
+        );
+        let p = read_points(
+            f.path(),
+            CoordChoice::Auto,
+            None,
+            Some(&keep("year", "2024")),
+        )
+        .unwrap();
+        assert_eq!(p.coords, vec![[3.0, 4.0], [7.0, 8.0]]);
+        assert_eq!(p.places, vec![Place::Line(3), Place::Line(5)]);
+        let e = read_points(
+            f.path(),
+            CoordChoice::Auto,
+            None,
+            Some(&keep("season", "dry")),
+        )
+        .unwrap_err();
+        assert!(e.what.contains("no column named 'season'"), "{}", e.what);
+        assert!(e.what.contains("x, y, year"), "{}", e.what);
+        let e = read_points(
+            f.path(),
+            CoordChoice::Auto,
+            None,
+            Some(&keep("year", "1999")),
+        )
+        .unwrap_err();
+        assert!(
+            e.what.contains("no row has this value (the file holds 5)"),
+            "{}",
+            e.what
+        );
+        // Without the filter the bad number stops the run, as before.
+        assert!(read_points(f.path(), CoordChoice::Auto, None, None).is_err());
+    }
+
+    /// `--where` on GeoJSON compares the property as text: a string as it
+    /// is, a number as JSON writes it; features without the property are
+    /// left out, and a property no feature has is an error.
+    #[test]
+    fn geojson_where_compares_properties_as_text() {
+        let f = file(
+            ".geojson",
+            r#"{"type":"FeatureCollection","features":[
+              {"type":"Feature","properties":{"year":2024,"kind":"nest"},"geometry":{"type":"Point","coordinates":[1,2]}},
+              {"type":"Feature","properties":{"year":"2024","kind":"burrow"},"geometry":{"type":"Point","coordinates":[3,4]}},
+              {"type":"Feature","properties":{"year":2023,"kind":"nest"},"geometry":{"type":"Point","coordinates":[5,6]}},
+              {"type":"Feature","properties":{},"geometry":{"type":"Point","coordinates":[7,8]}}]}"#,
+        );
+        let read = |w: Filter| read_points(f.path(), CoordChoice::Projected, None, Some(&w));
+        assert_eq!(
+            read(keep("year", "2024")).unwrap().coords,
+            vec![[1.0, 2.0], [3.0, 4.0]]
+        );
+        assert_eq!(
+            read(keep("kind", "nest")).unwrap().coords,
+            vec![[1.0, 2.0], [5.0, 6.0]]
+        );
+        let e = read(keep("season", "dry")).unwrap_err();
+        assert!(
+            e.what.contains("no feature has a property named 'season'"),
+            "{}",
+            e.what
+        );
+        let e = read(keep("kind", "den")).unwrap_err();
+        assert!(
+            e.what
+                .contains("no feature has this value (the file holds 4)"),
+            "{}",
+            e.what
+        );
+    }
+
     #[test]
     fn csv_lonlat_columns_are_geographic() {
         let f = file(".csv", "lat\tlon\n50.1\t8.2\n");
-        let p = read_points(f.path(), CoordChoice::Auto, None).unwrap();
+        let p = read_points(f.path(), CoordChoice::Auto, None, None).unwrap();
         assert_eq!(p.coords, vec![[8.2, 50.1]]);
         assert_eq!(p.system, CoordSystem::LonLat);
     }
@@ -563,7 +737,7 @@ mod tests {
     fn small_planar_values_are_never_read_as_degrees() {
         let f = file(".csv", "x,y\n12.0,45.0\n13.0,46.0\n");
         assert_eq!(
-            read_points(f.path(), CoordChoice::Auto, None)
+            read_points(f.path(), CoordChoice::Auto, None, None)
                 .unwrap()
                 .system,
             CoordSystem::Projected
@@ -573,12 +747,12 @@ mod tests {
     #[test]
     fn bad_number_names_line_and_column() {
         let f = file(".csv", "x,y\n1,2\n3,abc\n");
-        let e = read_points(f.path(), CoordChoice::Auto, None).unwrap_err();
+        let e = read_points(f.path(), CoordChoice::Auto, None, None).unwrap_err();
         assert_eq!(e.location.as_deref(), Some("line 3"));
         assert!(e.what.contains("'y'") && e.what.contains("abc"), "{e}");
         let f = file(".csv", "x,y\n1,NaN\n");
         assert!(
-            read_points(f.path(), CoordChoice::Auto, None)
+            read_points(f.path(), CoordChoice::Auto, None, None)
                 .unwrap_err()
                 .what
                 .contains("not a finite number")
@@ -589,13 +763,13 @@ mod tests {
     fn ambiguous_or_unknown_headers_stop() {
         let f = file(".csv", "x,y,lon,lat\n1,2,3,4\n");
         assert!(
-            read_points(f.path(), CoordChoice::Auto, None)
+            read_points(f.path(), CoordChoice::Auto, None, None)
                 .unwrap_err()
                 .hint
                 .contains("--coords")
         );
         let f = file(".csv", "a,b\n1,2\n");
-        assert!(read_points(f.path(), CoordChoice::Auto, None).is_err());
+        assert!(read_points(f.path(), CoordChoice::Auto, None, None).is_err());
     }
 
     #[test]
@@ -603,7 +777,7 @@ mod tests {
         let body = r#"{"type":"FeatureCollection","crs":{"type":"name","properties":{"name":"urn:ogc:def:crs:EPSG::32632"}},
           "features":[{"type":"Feature","properties":{"plot":"a"},"geometry":{"type":"MultiPoint","coordinates":[[500000,5500000],[500010,5500000]]}}]}"#;
         let f = file(".geojson", body);
-        let p = read_points(f.path(), CoordChoice::Auto, Some("plot")).unwrap();
+        let p = read_points(f.path(), CoordChoice::Auto, Some("plot"), None).unwrap();
         assert_eq!(p.system, CoordSystem::Projected);
         assert_eq!(p.coords.len(), 2);
         assert_eq!(p.field_values.unwrap(), vec!["a", "a"]);
@@ -613,7 +787,7 @@ mod tests {
     fn geojson_rejects_polygons_in_point_file() {
         let body = r#"{"type":"FeatureCollection","features":[{"type":"Feature","properties":null,"geometry":{"type":"Polygon","coordinates":[[[0,0],[1,0],[1,1],[0,0]]]}}]}"#;
         let f = file(".geojson", body);
-        let e = read_points(f.path(), CoordChoice::Auto, None).unwrap_err();
+        let e = read_points(f.path(), CoordChoice::Auto, None, None).unwrap_err();
         assert_eq!(e.location.as_deref(), Some("feature 1"));
     }
 }
@@ -633,7 +807,7 @@ mod streaming {
         text.push_str(&"9".repeat(MAX_LINE + 10));
         text.push_str(",1\n");
         std::fs::write(&path, text).unwrap();
-        let e = read_points(&path, CoordChoice::Auto, None).unwrap_err();
+        let e = read_points(&path, CoordChoice::Auto, None, None).unwrap_err();
         assert!(e.what.contains("line 3 is longer than"), "{}", e.what);
     }
 
@@ -647,7 +821,7 @@ mod streaming {
             text.push_str(&format!("{i},{}\n", i % 97));
         }
         std::fs::write(&path, text).unwrap();
-        let p = read_points(&path, CoordChoice::Auto, None).unwrap();
+        let p = read_points(&path, CoordChoice::Auto, None, None).unwrap();
         assert_eq!(p.coords.len(), 20_000);
         assert_eq!(p.coords[19_999], [19_999.0, (19_999 % 97) as f64]);
         assert_eq!(p.places[19_999], Place::Line(20_001));
