@@ -68,30 +68,38 @@ fn analysis(r: &Value) -> Value {
     })
 }
 
-#[test]
-fn projected_layer_and_boundary_give_the_csv_and_wkt_report() {
+/// The audit of the fixture's `plots_SUFFIX` layer with the `area_SUFFIX`
+/// boundary layer, and the audit of the same data as CSV and WKT.
+fn layer_and_text_reports(suffix: &str) -> (serde_json::Value, serde_json::Value) {
     let dir = tempfile::tempdir().unwrap();
     let survey = fixture("survey.gpkg");
+    let (points, area) = (format!("plots_{suffix}"), format!("area_{suffix}"));
     let g = audit(
         &dir.path().join("g"),
         &[
             &survey,
             "--layer",
-            "plots_utm",
+            &points,
             "--boundary",
             &survey,
             "--boundary-layer",
-            "area_utm",
+            &area,
         ],
     );
     let c = audit(
         &dir.path().join("c"),
         &[
-            &fixture("plots_utm.csv"),
+            &fixture(&format!("{points}.csv")),
             "--boundary",
-            &fixture("area_utm.wkt"),
+            &fixture(&format!("{area}.wkt")),
         ],
     );
+    (g, c)
+}
+
+#[test]
+fn projected_layer_and_boundary_give_the_csv_and_wkt_report() {
+    let (g, c) = layer_and_text_reports("utm");
     assert_eq!(analysis(&g), analysis(&c));
     assert!(
         g["input"]["points_file"]
@@ -105,28 +113,7 @@ fn projected_layer_and_boundary_give_the_csv_and_wkt_report() {
 
 #[test]
 fn lonlat_layer_and_boundary_give_the_lonlat_csv_report() {
-    let dir = tempfile::tempdir().unwrap();
-    let survey = fixture("survey.gpkg");
-    let g = audit(
-        &dir.path().join("g"),
-        &[
-            &survey,
-            "--layer",
-            "plots_wgs84",
-            "--boundary",
-            &survey,
-            "--boundary-layer",
-            "area_wgs84",
-        ],
-    );
-    let c = audit(
-        &dir.path().join("c"),
-        &[
-            &fixture("plots_wgs84.csv"),
-            "--boundary",
-            &fixture("area_wgs84.wkt"),
-        ],
-    );
+    let (g, c) = layer_and_text_reports("wgs84");
     assert_eq!(analysis(&g), analysis(&c));
     assert_eq!(g["input"]["coords"], "lonlat");
 }
