@@ -77,7 +77,30 @@ struct Loaded {
 /// Run the command.
 pub fn run(a: &SitesArgs) -> Result<(), Failure> {
     let protocol = read_verified(&a.protocol)?;
+    if protocol.window == patternproof_protocol::WindowRule::Boundary && a.boundaries.is_none() {
+        return Err(Failure::Input(format!(
+            "{}: the protocol's window is each site's own boundary, and no --boundaries file was given, so no site could be tested\n  what to do: pass --boundaries FILE (one polygon per site, named in --boundary-field), or use a protocol with another window rule",
+            a.protocol.display()
+        )));
+    }
     let (sites, datasets) = load_sites(a)?;
+    if protocol.window == patternproof_protocol::WindowRule::Boundary
+        && let Some(bfile) = &a.boundaries
+        && sites.iter().all(|s| s.input.boundary.is_none())
+    {
+        let names: Vec<&str> = sites
+            .iter()
+            .map(|s| s.input.name.as_str())
+            .take(5)
+            .collect();
+        return Err(Failure::Input(format!(
+            "{}: no boundary's `{}` matches a site name ({}{}), and the protocol's window is each site's own boundary, so no site could be tested\n  what to do: name the property or column that holds the site names with --boundary-field",
+            bfile.display(),
+            a.boundary_field,
+            names.join(", "),
+            if sites.len() > 5 { ", …" } else { "" }
+        )));
+    }
     let inputs: Vec<SiteInput> = sites.iter().map(|s| s.input.clone()).collect();
     let runs = patternproof_sites::run_sites(
         &inputs,
