@@ -16,6 +16,7 @@
 //! | [`guard_zone`] | moments of the guard-zone (border) test |
 //! | [`toroidal`] | nearest-neighbour distances on a torus |
 //! | [`monte_carlo`] | rank p-values and quantiles for simulation tests |
+//! | [`order`] | the canonical point order that makes every sum independent of the input's row order |
 //!
 //! Points are `[x, y]` pairs in a projected, planar unit; the caller
 //! (the `io` crate) is responsible for projecting geographic input.
@@ -33,6 +34,7 @@ pub mod nearest;
 pub mod normal;
 #[cfg(test)]
 mod oracles;
+pub mod order;
 pub mod toroidal;
 
 pub use call::Call;

@@ -13,6 +13,7 @@ use crate::points::read_points;
 use geo::Intersects;
 use geo::{Area, MapCoords, MultiPolygon, Validation};
 use patternproof_core::Xy;
+use patternproof_core::order::{canonical_permutation, permute};
 use patternproof_gpkg::SpatialRef;
 use std::path::{Path, PathBuf};
 
@@ -59,9 +60,10 @@ pub struct Boundary {
 pub struct Dataset {
     /// The point file.
     pub points_file: PathBuf,
-    /// Planar coordinates, file order (duplicates dropped if asked).
+    /// Planar coordinates in canonical order (x, then y; see
+    /// `patternproof_core::order`), duplicates dropped if asked.
     pub points: Vec<Xy>,
-    /// Where each point came from.
+    /// Where each point came from, in the order of `points`.
     pub places: Vec<crate::points::Place>,
     /// Points read from the file.
     pub n_read: usize,
@@ -217,6 +219,16 @@ impl Dataset {
             )
         } else {
             (points, raw.places, raw.field_values)
+        };
+        // One order that depends on the coordinates alone, so that every
+        // sum downstream gives the same bits for any order of the rows.
+        let (points, places, field_values) = match canonical_permutation(&points) {
+            None => (points, places, field_values),
+            Some(order) => (
+                permute(&points, &order),
+                permute(&places, &order),
+                field_values.map(|v| permute(&v, &order)),
+            ),
         };
         if points.len() < 2 {
             return Err(InputError::new(
