@@ -14,6 +14,7 @@
 use crate::edge::Edge;
 use crate::window::{Window, WindowKind};
 use patternproof_core::FlipThresholds;
+use patternproof_core::clark_evans::MIN_N_ANALYTIC;
 use patternproof_core::donnelly;
 use patternproof_core::flip::buffer_for_area;
 use serde::Serialize;
@@ -67,6 +68,12 @@ pub fn flip_entries(
                 dispersed_flip_buffer: None,
                 note: None,
             };
+            if n < MIN_N_ANALYTIC {
+                entry.note = Some(format!(
+                    "only {n} points: no closed-form threshold below {MIN_N_ANALYTIC} points, as for the closed-form rows"
+                ));
+                return entry;
+            }
             match edge {
                 Edge::None => {
                     if let Some(f) = FlipThresholds::new(n, mean_nn, z_crit) {

@@ -5,6 +5,7 @@ use crate::edge::Edge;
 use crate::sweep::ResultRow;
 use crate::window::Window;
 use patternproof_core::Call;
+use patternproof_core::clark_evans::{MIN_N_ANALYTIC, SMALL_SAMPLE_N};
 use serde::Serialize;
 
 /// Rows per call.
@@ -102,8 +103,13 @@ pub struct Summary {
     pub cautions: Vec<String>,
 }
 
-/// Summarise the verdict table.
-pub fn summarise(rows: &[ResultRow], windows: &[Window], alpha: f64) -> Summary {
+/// A window that leaves out more than this share of the points gets a
+/// caution of its own (our choice: a few stray points are common, a
+/// twentieth of the data is a different pattern).
+pub const LEFT_OUT_SHARE: f64 = 0.05;
+
+/// Summarise the verdict table of `n` points.
+pub fn summarise(rows: &[ResultRow], windows: &[Window], n: usize, alpha: f64) -> Summary {
     let mut calls = CallCounts::default();
     for c in rows.iter().filter_map(|r| r.call) {
         calls.add(c);
@@ -140,8 +146,13 @@ pub fn summarise(rows: &[ResultRow], windows: &[Window], alpha: f64) -> Summary 
         .collect();
     let total = calls.total();
     let unanimous = calls.distinct() <= 1;
-    let verdict = verdict_sentence(majority, &calls, &departures, unanimous);
+    let mut verdict = verdict_sentence(majority, &calls, &departures, unanimous);
     let mut cautions = Vec::new();
+    if n < SMALL_SAMPLE_N {
+        verdict = format!("small sample (n = {n}): {verdict}");
+        cautions.push(small_sample_caution(n));
+    }
+    cautions.extend(left_out_cautions(windows));
 
     let significant: Vec<&ResultRow> = rows
         .iter()
@@ -196,6 +207,40 @@ pub fn summarise(rows: &[ResultRow], windows: &[Window], alpha: f64) -> Summary 
         verdict,
         cautions,
     }
+}
+
+/// What a small n does to the table.
+fn small_sample_caution(n: usize) -> String {
+    if n < MIN_N_ANALYTIC {
+        format!(
+            "small sample: only {n} points. Closed-form rows are not given below {MIN_N_ANALYTIC} points (common practice for the normal approximation), and the simulation rows have little power. Windows drawn around the points themselves (bbox, hull, concave) have the points on their outline, which leans every test towards `dispersed`; with so few points only a window fixed without looking at the data (--boundary, --area) gives a test worth reporting"
+        )
+    } else {
+        format!(
+            "small sample: n = {n} is below {SMALL_SAMPLE_N}; the closed-form rows rest on a normal approximation that is rough at this size (common practice); prefer the simulation rows"
+        )
+    }
+}
+
+/// One caution per window that leaves out more than [`LEFT_OUT_SHARE`] of
+/// the points: its rows describe another pattern than the other windows'.
+fn left_out_cautions(windows: &[Window]) -> Vec<String> {
+    windows
+        .iter()
+        .filter_map(|w| {
+            let total = w.inside.len() + w.points_outside;
+            let share = w.points_outside as f64 / total.max(1) as f64;
+            (share > LEFT_OUT_SHARE).then(|| {
+                format!(
+                    "window `{}` leaves out {} of {} points ({:.0} %): its rows test a different pattern from the other windows' rows; check that the boundary and the points belong together, or say in the paper why those points are excluded",
+                    w.id,
+                    w.points_outside,
+                    total,
+                    100.0 * share
+                )
+            })
+        })
+        .collect()
 }
 
 fn verdict_sentence(

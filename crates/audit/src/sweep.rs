@@ -14,6 +14,7 @@ use crate::sampling::Sampler;
 use crate::simulation::{Measure, PatternStats, measure, measure_known, simulate};
 use crate::window::{NamedShape, Outline, Window, WindowKind, WindowOptions, build_windows};
 use geo::Translate;
+use patternproof_core::clark_evans::MIN_N_ANALYTIC;
 use patternproof_core::monte_carlo::{quantile, two_sided_rank_p};
 use patternproof_core::nearest::{mean, nearest_distances};
 use patternproof_core::normal::two_sided_critical;
@@ -239,7 +240,7 @@ pub fn run_audit(
             r.max = [r.max[0] + origin[0], r.max[1] + origin[1]];
         }
     }
-    let summary = summarise(&results, &windows, options.alpha);
+    let summary = summarise(&results, &windows, points.len(), options.alpha);
     Some(Audit {
         n: points.len(),
         mean_nn: all_nn,
@@ -365,6 +366,15 @@ fn rows_of_window(
     let area = w.area;
 
     for &edge in &options.edges {
+        if edge.is_analytic() && n < MIN_N_ANALYTIC {
+            skips.push(skip(
+                edge,
+                &format!(
+                    "only {n} point(s): closed-form rows need at least {MIN_N_ANALYTIC} (the normal approximation is not trusted below that; common practice); read the simulation row"
+                ),
+            ));
+            continue;
+        }
         let mut notes: Vec<String> = outside_note.iter().cloned().collect();
         let row = ResultRow::empty(&w.id, edge, n);
         let row = match edge {

@@ -69,10 +69,22 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
         })?;
     progress.finish();
     if audit.results.is_empty() {
+        let mut why: Vec<String> = audit.notes.clone();
+        for s in &audit.skipped {
+            let reason = format!("{}: {}", s.edge, s.reason);
+            if !why.contains(&reason) {
+                why.push(reason);
+            }
+        }
+        let hint = if !audit.windows.is_empty() {
+            "with so few points only the simulation test applies, and it needs an outline: give the surveyed outline with --boundary (and --sims above 0)"
+        } else {
+            "the points are identical or collinear, so no study area can be drawn from them; give the surveyed outline with --boundary or the study area with --area"
+        };
         return Err(Failure::Input(format!(
-            "{}: no window could be tested ({})\n  what to do: the points are identical or collinear, so no study area can be drawn from them; give the surveyed outline with --boundary or the study area with --area",
+            "{}: no window could be tested ({})\n  what to do: {hint}",
             a.input.points.display(),
-            audit.notes.join("; ")
+            why.join("; ")
         )));
     }
 

@@ -216,9 +216,21 @@ fn identical_or_collinear_points_are_refused_without_a_window() {
     assert_refused(&[p.to_str().unwrap()], dir.path(), &["same.csv"]);
     let q = write(dir.path(), "line.csv", "x,y\n0,3\n1,3\n2,3\n5,3\n");
     assert_refused(&[q.to_str().unwrap()], dir.path(), &["line.csv", "--area"]);
-    // With a bare area the collinear set can still be tested.
+    // With a bare area four points get no closed-form row (fewer than
+    // ten), and the message says why.
+    assert_refused(
+        &[q.to_str().unwrap(), "--area", "100"],
+        dir.path(),
+        &["line.csv", "at least 10"],
+    );
+    // Twelve collinear points with a bare area can be tested.
+    let mut text = String::from("x,y\n");
+    for i in 0..12 {
+        text.push_str(&format!("{},3\n", i * 2));
+    }
+    let q = write(dir.path(), "line12.csv", &text);
     let out = dir.path().join("with-area");
-    let o = audit(&[q.to_str().unwrap(), "--area", "100"], &out);
+    let o = audit(&[q.to_str().unwrap(), "--area", "400"], &out);
     assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
 }
 
@@ -266,13 +278,13 @@ fn invalid_boundary_is_refused() {
 #[test]
 fn points_outside_a_boundary_are_counted_and_flagged() {
     let dir = tempfile::tempdir().unwrap();
-    let p = write(dir.path(), "g.csv", &grid_csv(5));
-    // Covers x, y in [0, 25]: the 9 points with x or y = 30 or 40 … count by hand:
-    // grid values 0..40 step 10; inside [−1, 25] are 0, 10, 20 → 3 × 3 = 9 inside, 16 outside.
+    let p = write(dir.path(), "g.csv", &grid_csv(6));
+    // Count by hand: grid values 0..50 step 10; inside [−1, 35] are 0, 10,
+    // 20, 30 → 4 × 4 = 16 inside, 36 − 16 = 20 outside.
     let b = write(
         dir.path(),
         "small.wkt",
-        "POLYGON((-1 -1, 25 -1, 25 25, -1 25, -1 -1))",
+        "POLYGON((-1 -1, 35 -1, 35 35, -1 35, -1 -1))",
     );
     let out = dir.path().join("rep");
     let o = audit(
@@ -295,7 +307,7 @@ fn points_outside_a_boundary_are_counted_and_flagged() {
         .find(|w| w["id"] == "boundary")
         .unwrap()
         .clone();
-    assert_eq!(w["points_outside"], 16);
+    assert_eq!(w["points_outside"], 20);
     let row = j["results"]
         .as_array()
         .unwrap()
@@ -303,12 +315,137 @@ fn points_outside_a_boundary_are_counted_and_flagged() {
         .find(|r| r["window"] == "boundary" && r["edge"] == "none")
         .unwrap()
         .clone();
-    assert_eq!(row["n_used"], 9);
+    assert_eq!(row["n_used"], 16);
     assert!(
         row["note"]
             .as_str()
             .unwrap()
-            .contains("16 point(s) outside")
+            .contains("20 point(s) outside")
+    );
+    // More than 5 % left out: a caution in the report, verdict.md and the
+    // terminal, naming the window and the count (20/36 = 56 %).
+    let caution = "window `boundary` leaves out 20 of 36 points (56 %)";
+    let cautions = j["summary"]["cautions"].as_array().unwrap();
+    assert!(
+        cautions
+            .iter()
+            .any(|c| c.as_str().unwrap().starts_with(caution))
+    );
+    let md = std::fs::read_to_string(out.join("verdict.md")).unwrap();
+    assert!(md.contains(caution), "{md}");
+    let terminal = String::from_utf8_lossy(&o.stdout);
+    assert!(terminal.contains(caution), "{terminal}");
+}
+
+/// A window that leaves out a few points, under 5 %, gets its row note but
+/// no caution of its own.
+#[test]
+fn a_boundary_missing_a_few_points_gets_no_caution() {
+    let dir = tempfile::tempdir().unwrap();
+    // 21 × 21 = 441 points; the boundary misses the column x = 200 (21
+    // points, 4.8 %).
+    let p = write(dir.path(), "g.csv", &grid_csv(21));
+    let b = write(
+        dir.path(),
+        "most.wkt",
+        "POLYGON((-1 -1, 195 -1, 195 201, -1 201, -1 -1))",
+    );
+    let out = dir.path().join("rep");
+    let o = audit(
+        &[
+            p.to_str().unwrap(),
+            "--boundary",
+            b.to_str().unwrap(),
+            "--sims",
+            "0",
+        ],
+        &out,
+    );
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let j: serde_json::Value =
+        serde_json::from_slice(&std::fs::read(out.join("report.json")).unwrap()).unwrap();
+    let w = j["windows"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|w| w["id"] == "boundary")
+        .unwrap()
+        .clone();
+    assert_eq!(w["points_outside"], 21);
+    let terminal = String::from_utf8_lossy(&o.stdout);
+    assert!(!terminal.contains("leaves out"), "{terminal}");
+}
+
+/// Three points: no closed-form row and no flip threshold (fewer than ten
+/// points), only simulation rows, and the headline says "small sample".
+#[test]
+fn tiny_samples_get_no_closed_form_rows_and_a_headline_caution() {
+    let dir = tempfile::tempdir().unwrap();
+    let p = write(
+        dir.path(),
+        "three.csv",
+        "x,y
+1000,1000
+1010,1003
+1004,1012
+",
+    );
+    let out = dir.path().join("rep");
+    let o = audit(&[p.to_str().unwrap(), "--sims", "99"], &out);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let j: serde_json::Value =
+        serde_json::from_slice(&std::fs::read(out.join("report.json")).unwrap()).unwrap();
+    let rows = j["results"].as_array().unwrap();
+    assert!(!rows.is_empty());
+    assert!(rows.iter().all(|r| r["edge"] == "simulation"), "{rows:?}");
+    let skipped = j["skipped"].as_array().unwrap();
+    assert!(
+        skipped
+            .iter()
+            .any(|s| s["edge"] == "none" && s["reason"].as_str().unwrap().contains("at least 10"))
+    );
+    for f in j["flip"].as_array().unwrap() {
+        assert!(f["clustered_above_area"].is_null() && f["dispersed_below_area"].is_null());
+    }
+    let verdict = j["summary"]["verdict"].as_str().unwrap();
+    assert!(verdict.starts_with("small sample (n = 3)"), "{verdict}");
+    let terminal = String::from_utf8_lossy(&o.stdout);
+    assert!(
+        terminal.contains("Verdict: small sample (n = 3)"),
+        "{terminal}"
+    );
+    assert!(
+        terminal.contains("caution: small sample: only 3 points"),
+        "{terminal}"
+    );
+
+    // Twenty points: closed-form rows are back, with the milder caution.
+    let mut text = String::from("x,y\n");
+    for i in 0..20 {
+        text.push_str(&format!(
+            "{},{}\n",
+            1000 + (i % 5) * 7,
+            1000 + (i / 5) * 9 + i % 3
+        ));
+    }
+    let p = write(dir.path(), "twenty.csv", &text);
+    let out = dir.path().join("rep20");
+    let o = audit(&[p.to_str().unwrap(), "--sims", "19"], &out);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let terminal = String::from_utf8_lossy(&o.stdout);
+    assert!(
+        terminal.contains("Verdict: small sample (n = 20)"),
+        "{terminal}"
+    );
+    assert!(terminal.contains("n = 20 is below 30"), "{terminal}");
+    let j: serde_json::Value =
+        serde_json::from_slice(&std::fs::read(out.join("report.json")).unwrap()).unwrap();
+    assert!(
+        j["results"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .any(|r| r["edge"] == "none")
     );
 }
 

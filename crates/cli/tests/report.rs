@@ -170,15 +170,16 @@ fn demo_pictures_carry_series_markers_and_thresholds() {
     );
 }
 
-/// A tiny data set (9 points on a jittered grid) still gets every picture,
-/// with its own thresholds in the text.
+/// A tiny data set (12 points on a jittered grid, just above the 10 that
+/// closed-form rows need) still gets every picture, with its own
+/// thresholds in the text.
 #[test]
 fn tiny_data_set_pictures() {
     let dir = tempfile::tempdir().expect("tempdir");
     let points = dir.path().join("tiny.csv");
     std::fs::write(
         &points,
-        "x,y\n0,0\n10,1\n20,0\n1,10\n11,11\n21,9\n0,20\n10,21\n19,20\n",
+        "x,y\n0,0\n10,1\n20,0\n1,10\n11,11\n21,9\n0,20\n10,21\n19,20\n1,30\n10,31\n20,30\n",
     )
     .expect("write");
     let out = dir.path().join("r");

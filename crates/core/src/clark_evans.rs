@@ -30,6 +30,19 @@ pub const CE_MEAN_FACTOR: f64 = 0.5;
 /// rather than the printed five digits.
 pub const CE_SE_FACTOR: f64 = 0.261_361_600_438_531_7;
 
+/// Fewest points for which a closed-form (normal-approximation) row is
+/// given. The z statistic leans on the central limit theorem for the mean
+/// of n distances; below about ten points the approximation is widely
+/// treated as unusable (common practice, a rule of thumb rather than a
+/// derived bound), and only the Monte Carlo test, exact for any n, is
+/// reported.
+pub const MIN_N_ANALYTIC: usize = 10;
+
+/// Below this many points a result is called a small sample in the
+/// verdict (common practice: the normal approximation of a mean is
+/// usually trusted from about thirty terms).
+pub const SMALL_SAMPLE_N: usize = 30;
+
 /// One evaluated nearest-neighbour test: observed mean, its null moments and
 /// the standardised difference.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
