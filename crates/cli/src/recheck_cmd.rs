@@ -61,7 +61,7 @@ pub struct RecheckArgs {
     /// Remove points that repeat an earlier point exactly before matching n.
     #[arg(long, requires = "points")]
     pub drop_duplicates: bool,
-    /// Print the result as JSON (schema `patternproof.recheck/1`, docs/recheck-schema.md).
+    /// Print the result as JSON (schema `patternproof.recheck/2`, docs/recheck-schema.md).
     #[arg(long)]
     pub json: bool,
 }

@@ -184,8 +184,10 @@ fn bbox_figures_are_attributed_to_bbox_not_hull() {
     assert!(!m.iter().any(|(w, _)| w == "bbox"), "{m:?}");
 }
 
-/// A Donnelly row of the audit is attributed to Donnelly's correction, and
-/// the verdict says the figures hold only under it (Donnelly 1978).
+/// A Donnelly row of the audit is attributed to Donnelly's correction; the
+/// figures are inconsistent as printed (the plain z does not follow from R
+/// and n) and consistent only under it (Donnelly 1978), a plausible
+/// reading because these points reproduce it.
 #[test]
 fn donnelly_figures_need_donnelly() {
     let rows = audit_rows();
@@ -199,7 +201,7 @@ fn donnelly_figures_need_donnelly() {
     ]);
     let a: Vec<&str> = args.iter().map(String::as_str).collect();
     let v = json(&a);
-    assert_eq!(v["consistent"], true);
+    assert_eq!(v["consistent"], false);
     assert!(
         matches(&v).contains(&("boundary".into(), "donnelly".into())),
         "{:?}",
@@ -207,9 +209,18 @@ fn donnelly_figures_need_donnelly() {
     );
     let verdict = v["verdict"].as_str().unwrap();
     assert!(
-        verdict.starts_with("consistent only if Donnelly's edge correction was used"),
+        verdict.starts_with(
+            "inconsistent as printed; consistent only if Donnelly's edge correction was used"
+        ),
         "{verdict}"
     );
+    let readings = v["consistent_if"].as_array().unwrap();
+    let d = readings
+        .iter()
+        .find(|r| r["reading"] == "donnelly")
+        .expect("a Donnelly reading");
+    assert_eq!(d["plausible"], true);
+    assert!(d["condition"].as_str().unwrap().contains("`boundary`"));
     let z = v["checks"]
         .as_array()
         .unwrap()
@@ -437,5 +448,69 @@ fn bad_input_exits_2() {
     assert_refused(
         &["--n", "64", "--ratio", "0.7", "--boundary", &boundary()],
         &["--points"],
+    );
+}
+
+/// The figures of the trust report: R = 0.34 with n = 53 gives z near −9.2,
+/// not the printed −7.57. A guard zone with 36 focal points, or Donnelly's
+/// correction in a window 19–60 × sqrt(area) round, could reproduce z, but
+/// neither makes the figures consistent: `consistent` is false, each
+/// reading is rated (the strip implausible, the guard zone plausible by the
+/// n·(1 − 2/sqrt(n))² rule: 53·(1 − 2/7.28)² = 27.9 ≤ 36), and the line says
+/// "inconsistent as printed; consistent only if …".
+#[test]
+fn a_free_edge_correction_does_not_make_figures_consistent() {
+    let v = json(&[
+        "--n", "53", "--ratio", "0.34", "--z", "-7.57", "--p", "<0.001",
+    ]);
+    assert_eq!(v["schema"], "patternproof.recheck/2");
+    assert_eq!(v["consistent"], false);
+    let verdict = v["verdict"].as_str().unwrap();
+    assert!(
+        verdict.starts_with("inconsistent as printed; consistent only if a guard zone was used, leaving 36 of the 53 points focal (plausible), or Donnelly"),
+        "{verdict}"
+    );
+    assert!(verdict.ends_with("(implausible)"), "{verdict}");
+    let readings = v["consistent_if"].as_array().unwrap();
+    assert_eq!(readings.len(), 2);
+    let donnelly = readings
+        .iter()
+        .find(|r| r["reading"] == "donnelly")
+        .unwrap();
+    assert_eq!(donnelly["plausible"], false);
+    assert!(
+        donnelly["ask"]
+            .as_str()
+            .unwrap()
+            .contains("area and perimeter")
+    );
+    let guard = readings
+        .iter()
+        .find(|r| r["reading"] == "guard-zone")
+        .unwrap();
+    assert_eq!(guard["plausible"], true);
+    assert!(guard["ask"].as_str().unwrap().contains("at most 36"));
+
+    // The plain reading fits: consistent, with nothing to rate.
+    // z = (0.90 − 1)·sqrt(100)·0.5/0.26136 = −1.913 (Clark & Evans 1954).
+    let v = json(&["--n", "100", "--ratio", "0.90", "--z", "-1.91"]);
+    assert_eq!(v["consistent"], true);
+    assert_eq!(v["verdict"], "consistent");
+    assert!(v["consistent_if"].as_array().unwrap().is_empty());
+
+    // Far too small a z for an ordinary guard: R = 0.5 with n = 400 gives
+    // z = −19.1; z = −9.6 needs about a quarter of the points focal, far
+    // below the floor 400·(1 − 2/20)² = 324.
+    let v = json(&["--n", "400", "--ratio", "0.50", "--z", "-9.6"]);
+    assert_eq!(v["consistent"], false);
+    let readings = v["consistent_if"].as_array().unwrap();
+    assert_eq!(readings.len(), 1);
+    assert_eq!(readings[0]["reading"], "guard-zone");
+    assert_eq!(readings[0]["plausible"], false);
+    assert!(
+        v["verdict"]
+            .as_str()
+            .unwrap()
+            .ends_with("of the 400 points focal (implausible)")
     );
 }

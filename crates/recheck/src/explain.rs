@@ -19,6 +19,7 @@
 
 use crate::interval::Interval;
 use crate::model::{Model, Tail, circle_shape, rectangle_shape};
+use crate::plausible::{self, Plausibility};
 use crate::reported::Quantity;
 use crate::{Figures, Joint, joint, joint_with};
 use patternproof_audit::sweep::MIN_FOCAL;
@@ -59,6 +60,9 @@ pub struct Explanation {
     /// For a fitting reading: the condition for the verdict line.
     #[serde(skip)]
     pub condition: Option<String>,
+    /// For a fitting reading: whether an ordinary study could have used it,
+    /// and what to ask the authors.
+    pub plausibility: Option<Plausibility>,
 }
 
 /// Try every reading and slip on `f`.
@@ -129,6 +133,7 @@ fn donnelly(f: &Figures) -> Explanation {
                 condition: Some(format!(
                     "Donnelly's edge correction was used, in a window whose perimeter is {shape}{tail}"
                 )),
+                plausibility: Some(plausible::donnelly(Interval::new(a, b))),
             }
         }
         None => Explanation {
@@ -142,6 +147,7 @@ fn donnelly(f: &Figures) -> Explanation {
             ),
             range: None,
             condition: None,
+            plausibility: None,
         },
     }
 }
@@ -201,6 +207,10 @@ fn guard_zone(f: &Figures) -> Explanation {
                     "a guard zone was used, leaving {span} of the {} points focal{tail}",
                     f.n
                 )),
+                plausibility: Some(plausible::guard_zone(
+                    f.n,
+                    Interval::new(a as f64, b as f64),
+                )),
             }
         }
         None => Explanation {
@@ -213,6 +223,7 @@ fn guard_zone(f: &Figures) -> Explanation {
             ),
             range: None,
             condition: None,
+            plausibility: None,
         },
     }
 }
@@ -242,6 +253,7 @@ fn other_n(f: &Figures) -> Explanation {
                 ),
                 range: Some(Interval::new(a as f64, b as f64)),
                 condition: None,
+                plausibility: None,
             }
         }
         None => Explanation {
@@ -251,6 +263,7 @@ fn other_n(f: &Figures) -> Explanation {
             detail: format!("no n between 2 and {hi} makes the figures agree"),
             range: None,
             condition: None,
+            plausibility: None,
         },
     }
 }
@@ -275,6 +288,7 @@ fn z_sign(f: &Figures) -> Option<Explanation> {
         },
         range: fits.then_some(flipped),
         condition: None,
+        plausibility: None,
     })
 }
 
@@ -310,6 +324,7 @@ fn odd_one_out(f: &Figures) -> Vec<Explanation> {
                 ),
                 range: Some(iv),
                 condition: None,
+                plausibility: None,
             })
         })
         .collect()

@@ -15,6 +15,7 @@
 //! | [`propagate`](mod@propagate) | the tightest interval of every figure under one reading |
 //! | [`checks`] | the named checks of the plain reading (z from R, p from z, area, …) |
 //! | [`explain`] | other readings and likely slips, tried when a plain check fails |
+//! | [`plausible`] | whether a fitting edge-corrected reading is one a study could have used |
 //! | [`attribution`] | which window × edge handling of the audit reproduces the figures |
 //! | [`verdict`] | "consistent", "inconsistent: …" or "consistent only if …" |
 //! | [`render`] | the terminal table |
@@ -30,6 +31,7 @@ pub mod checks;
 pub mod explain;
 pub mod interval;
 pub mod model;
+pub mod plausible;
 pub mod propagate;
 pub mod render;
 pub mod reported;
@@ -48,7 +50,7 @@ use patternproof_audit::Audit;
 use serde::Serialize;
 
 /// The JSON schema name of [`Recheck`] (documented in `docs/recheck-schema.md`).
-pub const SCHEMA: &str = "patternproof.recheck/1";
+pub const SCHEMA: &str = "patternproof.recheck/2";
 
 /// The reported figures of one result.
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -184,14 +186,20 @@ pub struct Recheck {
     pub schema: &'static str,
     /// Version of patternproof.
     pub tool_version: &'static str,
-    /// `true`: some reading reproduces every figure (see `conditions`);
-    /// `false`: none does; `null`: nothing could be checked.
+    /// `true`: the plain reading (the uncorrected test, every figure within
+    /// its rounding, either tail) reproduces every figure, maybe only under
+    /// `conditions`; `false`: it does not (see `consistent_if` for
+    /// edge-corrected readings that would); `null`: nothing could be
+    /// checked.
     pub consistent: Option<bool>,
     /// The verdict line.
     pub verdict: String,
-    /// What must be true for the figures to agree (empty: nothing beyond
-    /// the plain test).
+    /// What must be true for the figures to agree under the plain reading
+    /// (empty: nothing beyond the plain test).
     pub conditions: Vec<String>,
+    /// Edge-corrected readings that would reproduce figures the plain
+    /// reading cannot, each rated plausible or implausible.
+    pub consistent_if: Vec<verdict::Conditional>,
     /// The figures as given.
     pub reported: Figures,
     /// The checks, in table order.
@@ -242,6 +250,7 @@ pub fn recheck(figures: &Figures, sweep: Option<(&Audit, &str)>) -> Recheck {
         consistent: v.consistent,
         verdict: v.line,
         conditions: v.conditions,
+        consistent_if: v.consistent_if,
         reported: figures.clone(),
         checks,
         implied,

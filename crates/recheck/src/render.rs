@@ -126,8 +126,16 @@ pub fn text(r: &Recheck, width: Option<u16>) -> String {
     if !r.explanations.is_empty() {
         out.push_str("\nOther readings tried (the plain reading fails):\n");
         for e in r.explanations.iter().filter(|e| e.kind == Kind::Reading) {
-            let mark = if e.fits { "fits" } else { "no" };
+            let mark = match &e.plausibility {
+                Some(p) if e.fits && p.plausible => "fits, plausible",
+                Some(_) if e.fits => "fits, implausible",
+                _ if e.fits => "fits",
+                _ => "no",
+            };
             out.push_str(&format!("  [{mark}] {}\n", e.detail));
+            if let Some(p) = e.plausibility.as_ref().filter(|_| e.fits) {
+                out.push_str(&format!("      {}; {}\n", p.why, p.ask));
+            }
         }
         let slips: Vec<_> = r
             .explanations
@@ -193,6 +201,14 @@ pub fn text(r: &Recheck, width: Option<u16>) -> String {
     }
 
     out.push_str(&format!("\nVerdict: {}\n", r.verdict));
+    if r.explanations.is_empty() {
+        for c in &r.consistent_if {
+            out.push_str(&format!(
+                "  {}: {}; {}\n",
+                c.condition, c.rating.why, c.rating.ask
+            ));
+        }
+    }
     out.push_str(
         "  a recheck shows whether the printed figures can come from one nearest-neighbour test; it does not show that the study area or the test was a good choice\n",
     );

@@ -1,32 +1,120 @@
-//! The verdict line: "consistent", "inconsistent: …" or "consistent only
-//! if …".
+//! The verdict line: "consistent", "inconsistent: …" or "inconsistent as
+//! printed; consistent only if …".
 //!
+//! `consistent` is about the plain reading alone (the uncorrected test,
+//! every figure within its rounding, either tail):
 //! * Nothing decided (every check `cannot tell`, or none possible):
 //!   `consistent` is `null`.
-//! * Every decided check ok and no condition: "consistent".
-//! * Every decided check ok, some with a condition (a one-sided p, or with
-//!   the points only an edge-corrected row matching): "consistent only if …".
-//! * A plain check fails but a reading fits: with the points, a matching
-//!   row (e.g. Donnelly on `bbox`); without them, Donnelly's correction
-//!   for some window shape or a guard zone: "consistent only if …".
+//! * Every decided plain check ok: `true`, "consistent", or "consistent
+//!   only if …" when the agreement needs a one-sided p or, with the points,
+//!   an edge-corrected row.
+//! * A plain check fails: `false`. When an edge-corrected reading fits
+//!   (with the points, a matching row such as Donnelly on `bbox`; without
+//!   them, Donnelly's correction for some window shape or a guard zone with
+//!   some focal count) it goes to `consistent_if`, rated plausible or not,
+//!   and the line reads "inconsistent as printed; consistent only if …".
+//!   A free perimeter or focal count can "explain" almost any z that is too
+//!   small, so such a reading never makes the figures consistent.
 //! * Otherwise "inconsistent: …", with the slips that would fit.
 
 use crate::Figures;
 use crate::attribution::{Attribution, edge_words};
 use crate::checks::Check;
 use crate::explain::{Explanation, Kind};
+use crate::plausible::Plausibility;
 use serde::Serialize;
 
 /// The verdict.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Verdict {
-    /// `Some(true)` consistent (maybe only if `conditions`), `Some(false)`
-    /// inconsistent, `None` nothing could be checked.
+    /// `Some(true)` the plain reading fits (maybe only if `conditions`),
+    /// `Some(false)` it does not, `None` nothing could be checked.
     pub consistent: Option<bool>,
     /// The line.
     pub line: String,
-    /// What must hold for "consistent only if".
+    /// What must hold, within the plain reading's agreement, for
+    /// "consistent only if" (a one-sided p; with the points, the edge
+    /// handling of the matching rows).
     pub conditions: Vec<String>,
+    /// Edge-corrected readings under which figures that fail the plain
+    /// reading would agree, each rated.
+    pub consistent_if: Vec<Conditional>,
+}
+
+/// An edge-corrected reading that reproduces figures the plain reading
+/// cannot.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Conditional {
+    /// `donnelly`, `guard-zone`, or with the points the matching edge
+    /// handling (`donnelly`, `border`, `toroidal`).
+    pub reading: String,
+    /// What the analysis must have done.
+    pub condition: String,
+    /// Whether a study could plausibly have done it, why, and what to ask.
+    #[serde(flatten)]
+    pub rating: Plausibility,
+}
+
+impl Conditional {
+    fn phrase(&self) -> String {
+        let word = if self.rating.plausible {
+            "plausible"
+        } else {
+            "implausible"
+        };
+        format!("{} ({word})", self.condition)
+    }
+}
+
+/// "inconsistent as printed; consistent only if A (plausible), or B
+/// (implausible)", plausible readings first.
+fn as_printed(mut readings: Vec<Conditional>) -> Verdict {
+    readings.sort_by_key(|r| !r.rating.plausible);
+    let line = format!(
+        "inconsistent as printed; consistent only if {}",
+        readings
+            .iter()
+            .map(Conditional::phrase)
+            .collect::<Vec<_>>()
+            .join(", or ")
+    );
+    Verdict {
+        consistent: Some(false),
+        line,
+        conditions: Vec::new(),
+        consistent_if: readings,
+    }
+}
+
+/// With the points: the edge handlings whose rows reproduce the figures,
+/// one reading each; the points make them concrete, so they are plausible.
+fn match_readings(at: &Attribution) -> Vec<Conditional> {
+    let mut by_edge: Vec<(String, Vec<String>)> = Vec::new();
+    for m in &at.matches {
+        match by_edge.iter_mut().find(|(e, _)| *e == m.edge) {
+            Some((_, ws)) => ws.push(format!("`{}`", m.window)),
+            None => by_edge.push((m.edge.clone(), vec![format!("`{}`", m.window)])),
+        }
+    }
+    by_edge
+        .into_iter()
+        .map(|(e, ws)| Conditional {
+            condition: format!("{} was used (it matches {})", edge_words(&e), ws.join(", ")),
+            rating: Plausibility {
+                plausible: true,
+                why: format!(
+                    "these points reproduce the figures with {} in {}",
+                    edge_words(&e),
+                    ws.join(", ")
+                ),
+                ask: format!(
+                    "ask the authors to say that {} was used, and on which window",
+                    edge_words(&e)
+                ),
+            },
+            reading: e,
+        })
+        .collect()
 }
 
 const POINT_CHECKS: [&str; 2] = ["n from the points", "a window reproduces the figures"];
@@ -89,6 +177,7 @@ pub fn verdict(
                     .collect::<String>()
             ),
             conditions: Vec::new(),
+            consistent_if: Vec::new(),
         };
     }
     let failed_plain: Vec<&Check> = checks
@@ -114,13 +203,17 @@ pub fn verdict(
                 consistent: Some(false),
                 line: format!("{lead} {}", uniq(reasons).join("; ")),
                 conditions: Vec::new(),
+                consistent_if: Vec::new(),
             };
         }
         // Some row matches: the figures are reproducible from the points.
+        if !failed_plain.is_empty() && !at.matches.iter().any(|m| m.edge == "none") {
+            return as_printed(match_readings(at));
+        }
         let mut conditions = match_conditions(at);
         if failed_plain.is_empty() {
             conditions.extend(check_conditions);
-        } else if at.matches.iter().any(|m| m.edge == "none") {
+        } else {
             // Cannot happen (a plain row obeys every plain relation), but
             // say so rather than hide it.
             conditions.push(
@@ -143,17 +236,19 @@ pub fn verdict(
     if failed_plain.is_empty() {
         return conditional(uniq(check_conditions));
     }
-    let readings: Vec<String> = explanations
+    let readings: Vec<Conditional> = explanations
         .iter()
         .filter(|e| e.kind == Kind::Reading && e.fits)
-        .filter_map(|e| e.condition.clone())
+        .filter_map(|e| {
+            Some(Conditional {
+                reading: e.name.clone(),
+                condition: e.condition.clone()?,
+                rating: e.plausibility.clone()?,
+            })
+        })
         .collect();
     if !readings.is_empty() {
-        return Verdict {
-            consistent: Some(true),
-            line: format!("consistent only if {}", readings.join(", or ")),
-            conditions: readings,
-        };
+        return as_printed(readings);
     }
     let first = failed_plain
         .first()
@@ -189,6 +284,7 @@ pub fn verdict(
         consistent: Some(false),
         line,
         conditions: Vec::new(),
+        consistent_if: Vec::new(),
     }
 }
 
@@ -217,12 +313,14 @@ fn conditional(conditions: Vec<String>) -> Verdict {
             consistent: Some(true),
             line: "consistent".into(),
             conditions,
+            consistent_if: Vec::new(),
         }
     } else {
         Verdict {
             consistent: Some(true),
             line: format!("consistent only if {}", conditions.join(" and ")),
             conditions,
+            consistent_if: Vec::new(),
         }
     }
 }
