@@ -186,6 +186,30 @@ pub struct Audit {
     pub simulated_means: Vec<Vec<f64>>,
 }
 
+impl Audit {
+    /// Why no row has a number: the notes on windows that could not be
+    /// built, then each distinct reason a choice was skipped.
+    pub fn why_untested(&self) -> String {
+        // Reasons in first-seen order, each with the edge handlings it hit.
+        let mut reasons: Vec<(&str, Vec<String>)> = Vec::new();
+        for s in &self.skipped {
+            let edge = s.edge.to_string();
+            match reasons.iter_mut().find(|(r, _)| *r == s.reason) {
+                Some((_, edges)) if !edges.contains(&edge) => edges.push(edge),
+                Some(_) => {}
+                None => reasons.push((&s.reason, vec![edge])),
+            }
+        }
+        let mut why = self.notes.clone();
+        why.extend(
+            reasons
+                .into_iter()
+                .map(|(r, edges)| format!("{}: {r}", edges.join(", "))),
+        );
+        why.join("; ")
+    }
+}
+
 /// Run the sweep. `None` when fewer than two points are given or α is not
 /// in (0, 1). `tick` is called once per simulated pattern (progress bars).
 pub fn run_audit(
@@ -490,8 +514,10 @@ fn rows_of_window(
                         edge,
                         if w.shape.is_none() {
                             "a bare area has no outline to simulate in"
-                        } else {
+                        } else if options.sims == 0 {
                             "no simulations were run (--sims 0)"
+                        } else {
+                            "the window has no area to draw simulated points in"
                         },
                     ));
                     continue;

@@ -68,15 +68,10 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
             Failure::Internal("the sweep could not start although the input was checked".into())
         })?;
     progress.finish();
-    if audit.results.is_empty() {
-        let mut why: Vec<String> = audit.notes.clone();
-        for s in &audit.skipped {
-            let reason = format!("{}: {}", s.edge, s.reason);
-            if !why.contains(&reason) {
-                why.push(reason);
-            }
-        }
-        let hint = if !audit.windows.is_empty() {
+    if !audit.results.iter().any(|r| r.p.is_some()) {
+        let hint = if !audit.windows.is_empty()
+            && audit.n < patternproof_core::clark_evans::MIN_N_ANALYTIC
+        {
             "with so few points only the simulation test applies, and it needs an outline: give the surveyed outline with --boundary (and --sims above 0)"
         } else {
             "the points are identical or collinear, so no study area can be drawn from them; give the surveyed outline with --boundary or the study area with --area"
@@ -84,7 +79,7 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
         return Err(Failure::Input(format!(
             "{}: no window could be tested ({})\n  what to do: {hint}",
             a.input.points.display(),
-            why.join("; ")
+            audit.why_untested()
         )));
     }
 

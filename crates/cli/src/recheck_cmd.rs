@@ -130,11 +130,11 @@ pub fn run(a: &RecheckArgs) -> Result<(), Failure> {
                         d.points_file.display()
                     ))
                 })?;
-            if audit.results.is_empty() {
+            if !audit.results.iter().any(|r| r.p.is_some()) {
                 return Err(Failure::Input(format!(
                     "{}: no window could be tested ({})\n  what to do: give the surveyed outline with --boundary, or leave out --points to check the figures alone",
                     d.points_file.display(),
-                    audit.notes.join("; ")
+                    audit.why_untested()
                 )));
             }
             for w in &d.warnings {
