@@ -1,6 +1,6 @@
 //! `patternproof sites`: one locked protocol over many sites.
 
-use crate::args::{CoordArgs, OutArgs};
+use crate::args::{CoordArgs, OutArgs, count};
 use crate::audit_cmd::{RenderChoices, input_summary, render};
 use crate::fail::Failure;
 use crate::protocol_cmd::read_verified;
@@ -55,7 +55,7 @@ pub struct SitesArgs {
     pub drop_duplicates: bool,
     /// Simulations per window in each site's window-sensitivity sweep (the
     /// protocol window always gets the protocol's number).
-    #[arg(long, default_value_t = 99)]
+    #[arg(long, default_value_t = 99, value_parser = count::<usize>, allow_negative_numbers = true)]
     pub sweep_sims: usize,
     /// Leave the point maps out of the per-site reports.
     #[arg(long)]

@@ -399,3 +399,109 @@ fn where_on_a_csv_equals_the_filtered_file() {
     let shown = filtered["input"]["points_file"].as_str().unwrap();
     assert!(shown.ends_with("mixed.csv (year = 2024)"), "{shown}");
 }
+
+/// Issue 20: a negative number given to a numeric option reaches the
+/// tool's own check (exit 2, the option named, what to do) instead of the
+/// parser's "unexpected argument '-1'", for every command.
+#[test]
+fn negative_numbers_reach_the_tools_own_checks() {
+    let dir = tempfile::tempdir().unwrap();
+    let meadow = repo().join("demo-data/meadow-burrows.csv");
+    let hare = repo().join("demo-data/marsh-hare-track.csv");
+    let (meadow, hare) = (meadow.to_str().unwrap(), hare.to_str().unwrap());
+    let out = dir.path().join("out");
+    let out = out.to_str().unwrap();
+    let protocol = dir.path().join("p.json");
+    let protocol = protocol.to_str().unwrap();
+    let cases: &[(&[&str], &str)] = &[
+        (
+            &["audit", meadow, "--guard", "-1"],
+            "--guard -1: the guard width must be a non-negative distance",
+        ),
+        (
+            &["audit", meadow, "--alpha", "-0.05"],
+            "--alpha -0.05: the significance level",
+        ),
+        (
+            &["audit", meadow, "--area", "-100"],
+            "--area -100: the area must be a positive number",
+        ),
+        (
+            &["audit", meadow, "--concavity", "-2"],
+            "--concavity -2: must be a positive number",
+        ),
+        (
+            &["audit", meadow, "--buffers", "-3"],
+            "`-3` is not a positive distance",
+        ),
+        (
+            &["audit", meadow, "--sims", "-5"],
+            "invalid value '-5' for '--sims <SIMS>': not a whole number of 0 or more",
+        ),
+        (
+            &["audit", meadow, "--seed", "-1"],
+            "invalid value '-1' for '--seed <SEED>'",
+        ),
+        (
+            &["audit", meadow, "--scales-sims", "-1"],
+            "invalid value '-1' for '--scales-sims <N>'",
+        ),
+        (
+            &["scales", meadow, "--steps", "-1"],
+            "invalid value '-1' for '--steps <STEPS>'",
+        ),
+        (
+            &["scales", meadow, "--rmax", "-4"],
+            "--rmax -4: the largest distance must be a positive number",
+        ),
+        (
+            &["density", hare, "--cell", "-2"],
+            "--cell: -2 is not a positive cell size",
+        ),
+        (
+            &["density", hare, "--levels", "-5"],
+            "--levels: -5 is outside (0, 100)",
+        ),
+        (
+            &["density", hare, "--bandwidths", "-2"],
+            "\"-2\" is not a bandwidth",
+        ),
+        (
+            &["protocol", "new", "--guard", "-1", "--out", protocol],
+            "guard -1 is not a non-negative distance",
+        ),
+        (
+            &["protocol", "new", "--concavity", "-1", "--out", protocol],
+            "concavity -1 is not positive",
+        ),
+        (
+            &["protocol", "new", "--min-n", "-3", "--out", protocol],
+            "invalid value '-3' for '--min-n <MIN_N>'",
+        ),
+        (
+            &[
+                "sites",
+                "--protocol",
+                protocol,
+                "--sweep-sims",
+                "-1",
+                meadow,
+            ],
+            "invalid value '-1' for '--sweep-sims <SWEEP_SIMS>'",
+        ),
+    ];
+    for (args, want) in cases {
+        let mut cmd = bin();
+        cmd.args(*args);
+        if args[0] != "protocol" {
+            cmd.args(["--out", out]);
+        }
+        let o = cmd.output().unwrap();
+        let e = stderr(&o);
+        assert_eq!(o.status.code(), Some(2), "{args:?}: {e}");
+        assert!(!e.contains("unexpected argument"), "{args:?}: {e}");
+        assert!(e.contains(want), "{args:?}: expected `{want}` in {e}");
+        assert!(e.contains("what to do"), "{args:?}: {e}");
+        assert!(!Path::new(out).exists() && !Path::new(protocol).exists());
+    }
+}
