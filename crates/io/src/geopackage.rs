@@ -118,6 +118,9 @@ fn gpkg_error(path: &Path, e: GpkgError, flag: &str) -> InputError {
         }
         GpkgError::NoSuchLayer { .. } => format!("choose one of the layers listed with {flag} NAME"),
         GpkgError::NoSuchColumn { .. } => "use one of the columns listed (names are case-sensitive)".to_string(),
+        GpkgError::TooManySteps { .. } => {
+            "export the layer as a plain table (in a GIS: save it to a new GeoPackage) and read that file; a view is read only while its query ends in time".to_string()
+        }
         GpkgError::Geometry { .. } => {
             "repair or delete that feature in a GIS, or export the layer again".to_string()
         }
