@@ -190,6 +190,9 @@ pub fn run(a: &DensityArgs) -> Result<(), Failure> {
         ));
     }
     let data = crate::audit_cmd::load(&a.input)?;
+    if !a.quiet {
+        crate::audit_cmd::print_reading(&data);
+    }
     let config = parse_config(a, &data.unit)?;
     let points_name = a.input.points.display().to_string();
     let (window, source): (MultiPolygon<f64>, String) = match data.boundaries.first() {

@@ -121,6 +121,7 @@ pub fn run(a: &ScalesArgs) -> Result<(), Failure> {
         )));
     }
     let data = load(&a.input)?;
+    crate::audit_cmd::print_reading(&data);
     let options = ScalesOptions {
         corrections,
         tested,

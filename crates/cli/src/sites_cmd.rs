@@ -78,6 +78,7 @@ struct Loaded {
 pub fn run(a: &SitesArgs) -> Result<(), Failure> {
     let protocol = read_verified(&a.protocol)?;
     let (sites, datasets) = load_sites(a)?;
+    print_readings(&datasets);
     let inputs: Vec<SiteInput> = sites.iter().map(|s| s.input.clone()).collect();
     let runs = patternproof_sites::run_sites(
         &inputs,
@@ -122,6 +123,28 @@ pub fn run(a: &SitesArgs) -> Result<(), Failure> {
         a.output.out.display()
     );
     Ok(())
+}
+
+/// One reading line per distinct reading, naming its first file and how
+/// many more were read the same way, so two hundred sites read alike take
+/// one line and a file read differently stands out.
+fn print_readings(datasets: &[Dataset]) {
+    let mut groups: Vec<(&Dataset, usize)> = Vec::new();
+    for d in datasets {
+        match groups
+            .iter_mut()
+            .find(|(first, _)| first.reading == d.reading)
+        {
+            Some(g) => g.1 += 1,
+            None => groups.push((d, 0)),
+        }
+    }
+    for (first, others) in groups {
+        eprintln!(
+            "{}",
+            crate::audit_cmd::reading_line(&first.points_file, &first.reading, others)
+        );
+    }
 }
 
 fn load_sites(a: &SitesArgs) -> Result<(Vec<Loaded>, Vec<Dataset>), Failure> {

@@ -545,7 +545,7 @@ mod tests {
         let closed = ring(&[(0.0, 0.0), (4.0, 0.0), (4.0, 4.0), (0.0, 4.0), (0.0, 0.0)]);
         let open_hole = ring(&[(1.0, 1.0), (2.0, 1.0), (2.0, 2.0), (1.0, 2.0)]);
         let mut blob = vec![b'G', b'P', 0, 1, 0, 0, 0, 0];
-        blob.extend_from_slice(&polygon(&[closed.clone()]));
+        blob.extend_from_slice(&polygon(std::slice::from_ref(&closed)));
         assert!(matches!(
             decode(&blob).unwrap().shape,
             Some(Shape::Polygons(_))
@@ -553,7 +553,7 @@ mod tests {
         let mut multi = vec![b'G', b'P', 0, 1, 0, 0, 0, 0, 1];
         multi.extend_from_slice(&6u32.to_le_bytes());
         multi.extend_from_slice(&2u32.to_le_bytes());
-        multi.extend_from_slice(&polygon(&[closed.clone()]));
+        multi.extend_from_slice(&polygon(std::slice::from_ref(&closed)));
         multi.extend_from_slice(&polygon(&[closed, open_hole]));
         assert_eq!(
             decode(&multi).unwrap_err(),
