@@ -20,9 +20,13 @@ pub struct RawBoundary {
     pub name: String,
     /// The polygons, in file coordinates.
     pub shape: MultiPolygon<f64>,
-    /// What the file itself says about its coordinates (GeoJSON only;
-    /// WKT carries no system and follows the points).
+    /// What the file itself says about its coordinates (WKT carries no
+    /// system and follows the points).
     pub declared: Option<CoordSystem>,
+    /// Whether `declared` is the file's own statement (a GeoJSON `crs`
+    /// member, a GeoPackage coordinate-system row) rather than a format's
+    /// default (RFC 7946 lon/lat for GeoJSON without one).
+    pub stated: bool,
 }
 
 /// Read one boundary file (GeoJSON by extension or a leading `{`, else WKT).
@@ -110,6 +114,7 @@ pub(crate) fn add_part(
     name: String,
     polygons: Vec<Polygon<f64>>,
     declared: Option<CoordSystem>,
+    stated: bool,
 ) {
     match out.iter_mut().find(|b| b.name == name) {
         Some(b) => b.shape.0.extend(polygons),
@@ -117,6 +122,7 @@ pub(crate) fn add_part(
             name,
             shape: MultiPolygon(polygons),
             declared,
+            stated,
         }),
     }
 }
@@ -228,6 +234,7 @@ fn read_geojson(path: &Path, text: &str, stem: String) -> Result<RawBoundary, In
         InputError::new(path, format!("not valid GeoJSON ({e})"), "check the file against RFC 7946; polygon rings need at least four positions, first = last")
     })?;
     let declared = declared_system(legacy_crs(&gj));
+    let stated = legacy_crs(&gj).is_some();
     let features: Vec<(String, Option<geojson::Geometry>, Option<String>)> = match gj {
         GeoJson::FeatureCollection(fc) => fc
             .features
@@ -274,6 +281,7 @@ fn read_geojson(path: &Path, text: &str, stem: String) -> Result<RawBoundary, In
         name,
         shape: MultiPolygon(polys),
         declared,
+        stated,
     })
 }
 
@@ -294,6 +302,7 @@ fn read_wkt(path: &Path, text: &str, stem: String) -> Result<RawBoundary, InputE
         name: stem,
         shape: MultiPolygon(polys),
         declared: None,
+        stated: false,
     })
 }
 
@@ -316,7 +325,8 @@ pub fn read_named_boundaries(path: &Path, field: &str) -> Result<Vec<RawBoundary
             "put one Polygon/MultiPolygon feature per site in a FeatureCollection",
         ));
     };
-    let declared = declared_system(fc.foreign_members.as_ref().and_then(|m| m.get("crs")));
+    let crs = fc.foreign_members.as_ref().and_then(|m| m.get("crs"));
+    let (declared, stated) = (declared_system(crs), crs.is_some());
     let mut out: Vec<RawBoundary> = Vec::new();
     for (i, f) in fc.features.into_iter().enumerate() {
         let place = format!("feature {}", i + 1);
@@ -336,7 +346,7 @@ pub fn read_named_boundaries(path: &Path, field: &str) -> Result<Vec<RawBoundary
         check_rings(path, &place, &geometry)?;
         let mut polys = Vec::new();
         geojson_polygons(path, &place, geometry, &mut polys)?;
-        add_part(&mut out, name, polys, declared);
+        add_part(&mut out, name, polys, declared, stated);
     }
     if out.is_empty() {
         return Err(InputError::new(

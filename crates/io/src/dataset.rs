@@ -506,6 +506,9 @@ fn planar_boundary(
         (Some(CoordSystem::Projected), CoordSystem::LonLat) => {
             return Err(InputError::new(file, "the boundary declares projected coordinates but the points are lon/lat", "give the boundary in the same coordinates as the points"));
         }
+        (Some(CoordSystem::LonLat), CoordSystem::Projected) if choice == CoordChoice::Auto && raw.stated => {
+            return Err(InputError::new(file, "the boundary declares lon/lat coordinates but the points are projected", "give the boundary in the same coordinates as the points (reproject it in a GIS), or say how to read both with --coords"));
+        }
         (Some(CoordSystem::LonLat), CoordSystem::Projected) if choice == CoordChoice::Auto => warnings.push(format!(
             "{}: GeoJSON without a 'crs' member is lon/lat by RFC 7946, but the points are projected; the boundary is read in the points' planar coordinates",
             file.display()
@@ -669,6 +672,47 @@ mod reading_tests {
         assert_eq!(
             d.reading,
             "projected coordinates in m (the GeoJSON crs member names `local survey grid, metres`)"
+        );
+    }
+
+    /// A boundary that states lon/lat beside projected points is refused;
+    /// GeoJSON that is lon/lat only by the RFC 7946 default is read in the
+    /// points' plane with a warning (most local-grid exports carry no crs).
+    #[test]
+    fn stated_lonlat_boundaries_do_not_meet_projected_points() {
+        let pts = file(
+            ".csv",
+            "x,y\n512000,5600000\n512010,5600000\n512000,5600010\n",
+        );
+        let ring = "[[511990,5599990],[512020,5599990],[512020,5600020],[511990,5600020],[511990,5599990]]";
+        let stated = file(
+            ".geojson",
+            &format!(
+                r#"{{"type":"Polygon","crs":{{"type":"name","properties":{{"name":"EPSG:4326"}}}},"coordinates":[{ring}]}}"#
+            ),
+        );
+        let by_default = file(
+            ".geojson",
+            &format!(r#"{{"type":"Polygon","coordinates":[{ring}]}}"#),
+        );
+        let load = |b: &tempfile::NamedTempFile| {
+            Dataset::load(
+                pts.path(),
+                &[b.path().to_path_buf()],
+                &LoadOptions::default(),
+            )
+        };
+        let e = load(&stated).unwrap_err();
+        assert!(
+            e.what
+                .contains("declares lon/lat coordinates but the points are projected"),
+            "{e}"
+        );
+        let d = load(&by_default).unwrap();
+        assert!(
+            d.warnings.iter().any(|w| w.contains("RFC 7946")),
+            "{:?}",
+            d.warnings
         );
     }
 

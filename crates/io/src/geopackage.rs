@@ -412,6 +412,8 @@ struct BoundaryLayer {
     /// `None` under a forced `--coords`: that choice describes the points,
     /// and the boundary follows them.
     declared: Option<CoordSystem>,
+    /// Whether the layer's row names a system (not srs_id 0 or −1).
+    stated: bool,
     columns: Vec<String>,
 }
 
@@ -423,9 +425,12 @@ fn open_boundary_layer(
     let gpkg = GeoPackage::open(path).map_err(|e| gpkg_error(path, e, "--boundary-layer"))?;
     let layer = choose_layer(path, &gpkg, layer_name, "--boundary-layer")?;
     let srs = srs_of(path, &gpkg, &layer)?;
-    let declared = match choice {
-        CoordChoice::Auto => Some(decide(path, &layer, srs.as_ref(), choice)?.system),
-        _ => None,
+    let (declared, stated) = match choice {
+        CoordChoice::Auto => {
+            let d = decide(path, &layer, srs.as_ref(), choice)?;
+            (Some(d.system), d.basis.stated)
+        }
+        _ => (None, false),
     };
     let (columns, _) = gpkg
         .columns(&layer)
@@ -435,6 +440,7 @@ fn open_boundary_layer(
         layer,
         srs,
         declared,
+        stated,
         columns,
     })
 }
@@ -510,6 +516,7 @@ pub fn read_boundary(
             name,
             shape: MultiPolygon(polygons),
             declared: b.declared,
+            stated: b.stated,
         },
         layer: b.layer.name,
         srs: b.srs,
@@ -555,7 +562,7 @@ pub fn read_named_boundaries(
             )
             .at(b.place(f.fid)));
         };
-        add_part(&mut out, name, polygons.0.clone(), b.declared);
+        add_part(&mut out, name, polygons.0.clone(), b.declared, b.stated);
     }
     if out.is_empty() {
         return Err(b.no_polygon(path, features.len()));
