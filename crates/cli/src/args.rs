@@ -44,7 +44,8 @@ pub enum Command {
 /// How coordinates are to be read.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
 pub enum CoordsArg {
-    /// Decide from the file (CSV column names, GeoJSON `crs` member); stop when unclear.
+    /// Decide from the file (CSV column names, GeoJSON `crs` member, GeoPackage system); stop
+    /// when unclear, also when x,y-named columns hold only numbers within the lon/lat ranges.
     Auto,
     /// Planar coordinates in `--unit`.
     Projected,
@@ -94,7 +95,8 @@ pub struct CoordArgs {
     /// How to read coordinates.
     #[arg(long, value_enum, default_value_t = CoordsArg::Auto)]
     pub coords: CoordsArg,
-    /// Name of the unit of projected coordinates (shown with every distance and area).
+    /// Name of the unit of projected coordinates (shown with every distance and area); a unit
+    /// other than the default also says that x,y numbers are planar.
     #[arg(long, default_value = "m")]
     pub unit: String,
 }
