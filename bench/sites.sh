@@ -13,7 +13,7 @@ work=$(mktemp -d)
 for threads in ${THREADS:-2}; do
   start=$(date +%s.%N)
   RAYON_NUM_THREADS=$threads "$target/release/patternproof" sites --protocol "$work/protocol.json" \
-    "$work"/sites/*.csv --out "$work/out" ${EXTRA:-} >/dev/null
+    "$work"/sites/*.csv --coords projected --out "$work/out" ${EXTRA:-} >/dev/null
   end=$(date +%s.%N)
   echo "threads=$threads seconds=$(echo "$end - $start" | bc) output=$(du -sh "$work/out" | cut -f1)"
   rm -rf "$work/out"

@@ -26,7 +26,8 @@ reference/gpkg/survey.gpkg
   area_wgs84   POLYGON, EPSG:4326: a shell with a hole.
 reference/gpkg/*.csv, *.wkt  the same data as CSV and WKT.
 tests/bad-inputs/*.gpkg      damaged or ambiguous GeoPackages for the
-                             bad-input corpus.
+                             bad-input corpus (endless-view.gpkg: a point
+                             layer that is a view over an endless query).
 
 The JSON holds, per layer, the points in fid order and, per polygon
 layer, shapely's area and boundary length, so the Rust side can compare
@@ -147,6 +148,27 @@ def write_bad_multipoint():
     db.close()
 
 
+def write_endless_view():
+    """tests/bad-inputs/endless-view.gpkg: the point layer `plots` is a view
+    over a recursive query that never ends (every row the same point), as
+    a GeoPackage may register a view as a feature layer. Reading it must
+    stop with a message, not hang."""
+    p = BAD / "endless-view.gpkg"
+    db = new_gpkg(p, [("WGS 84 / UTM zone 33N", 32633, "EPSG", 32633, UTM33, None)])
+    point = blob(Point(500010.5, 5600020.25), 32633).hex()
+    db.execute(
+        "CREATE VIEW plots AS WITH RECURSIVE c(x) AS (SELECT 1 UNION ALL SELECT x + 1 FROM c) "
+        f"SELECT x AS fid, X'{point}' AS geom FROM c"
+    )
+    db.execute(
+        "INSERT INTO gpkg_contents (table_name, data_type, identifier, last_change, srs_id) "
+        "VALUES ('plots', 'features', 'plots', '2026-01-01T00:00:00.000Z', 32633)"
+    )
+    db.execute("INSERT INTO gpkg_geometry_columns VALUES ('plots', 'geom', 'POINT', 32633, 0, 0)")
+    db.commit()
+    db.close()
+
+
 def main():
     OUT.mkdir(exist_ok=True)
     rng = np.random.default_rng(SEED)
@@ -230,6 +252,7 @@ def main():
     db.commit()
     db.close()
     write_bad_multipoint()
+    write_endless_view()
 
     out = {
         "versions": {

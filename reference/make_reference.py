@@ -152,6 +152,96 @@ def multitest():
     }
 
 
+GEO_N = 40
+GEO_PER_SIDE = 100
+
+
+def wrap_lon(lon):
+    """Longitude into [-180, 180)."""
+    return ((np.asarray(lon) + 180.0) % 360.0) - 180.0
+
+
+def lonlat_box(lon0, lon1, lat0, lat1):
+    """Closed counter-clockwise lon/lat ring around a box, GEO_PER_SIDE
+    points a side, longitudes wrapped (so a box across 180 has vertices at
+    both ends of the range)."""
+    t = [i / GEO_PER_SIDE for i in range(GEO_PER_SIDE)]
+    ring = [(lon0 + (lon1 - lon0) * s, lat0) for s in t]
+    ring += [(lon1, lat0 + (lat1 - lat0) * s) for s in t]
+    ring += [(lon1 - (lon1 - lon0) * s, lat1) for s in t]
+    ring += [(lon0, lat1 - (lat1 - lat0) * s) for s in t]
+    ring.append(ring[0])
+    return [(float(wrap_lon(lon)), float(lat)) for lon, lat in ring]
+
+
+def geodesic_patterns(rng):
+    """Three invented lon/lat patterns of GEO_N points where a planar reading
+    goes wrong if the projection is centred carelessly: straddling the
+    antimeridian near 16 S, a cap around the North Pole (89-90 N), and one
+    across the prime meridian (a control). For each: every point's
+    nearest-neighbour distance on the WGS84 ellipsoid (pyproj.Geod.inv over
+    all pairs), the geodesic area of the convex hull (hull vertices found in
+    a LAEA plane centred on the points' mean unit vector, area by
+    Geod.polygon_area_perimeter with geodesic edges), and a densified study
+    area ring with its geodesic area. Also the mean direction itself, the
+    largest angle from it to a point (numpy) and the largest departure of
+    that plane's scale from 1 at the points (PROJ's Tissot factors,
+    Proj.get_factors), which set the tolerances."""
+    geod = pyproj.Geod(ellps="WGS84")
+    patterns = [
+        ("antimeridian", wrap_lon(rng.uniform(179.9, 180.1, GEO_N)), rng.uniform(-16.1, -15.9, GEO_N),
+         lonlat_box(179.85, 180.15, -16.15, -15.85)),
+        ("north_pole", rng.uniform(-180.0, 180.0, GEO_N), 90.0 - np.sqrt(rng.uniform(0.0, 1.0, GEO_N)),
+         [(float(wrap_lon(lon)), 88.9) for lon in range(-180, 181)]),
+        ("prime_meridian", rng.uniform(-0.1, 0.1, GEO_N), rng.uniform(51.4, 51.6, GEO_N),
+         lonlat_box(-0.15, 0.15, 51.35, 51.65)),
+    ]
+    out = []
+    for name, lon, lat, ring in patterns:
+        lon, lat = np.round(lon, 7), np.round(lat, 7)
+        n = len(lon)
+        nn = []
+        for i in range(n):
+            _, _, d = geod.inv(np.full(n - 1, lon[i]), np.full(n - 1, lat[i]), np.delete(lon, i), np.delete(lat, i))
+            nn.append(float(np.min(d)))
+        # The mean unit vector: where the hull is found, not what is tested.
+        phi, lam = np.radians(lat), np.radians(lon)
+        v = np.array([np.cos(phi) * np.cos(lam), np.cos(phi) * np.sin(lam), np.sin(phi)]).sum(axis=1)
+        lat0 = math.degrees(math.atan2(v[2], math.hypot(v[0], v[1])))
+        lon0 = math.degrees(math.atan2(v[1], v[0]))
+        c = v / np.linalg.norm(v)
+        u = np.array([np.cos(phi) * np.cos(lam), np.cos(phi) * np.sin(lam), np.sin(phi)])
+        reach = float(np.degrees(np.max(np.arctan2(np.linalg.norm(np.cross(c, u.T), axis=1), c @ u))))
+        laea = pyproj.Transformer.from_crs(
+            "EPSG:4326", f"+proj=laea +lat_0={lat0} +lon_0={lon0} +ellps=WGS84 +units=m", always_xy=True
+        )
+        x, y = laea.transform(lon, lat)
+        # PROJ's Tissot factors of that plane at every point: how far the
+        # scale departs from 1 there, in any direction.
+        factors = pyproj.Proj(f"+proj=laea +lat_0={lat0} +lon_0={lon0} +ellps=WGS84 +units=m").get_factors(lon, lat)
+        scale_error = float(np.max(np.maximum(np.abs(np.asarray(factors.tissot_semimajor) - 1.0),
+                                              np.abs(np.asarray(factors.tissot_semiminor) - 1.0))))
+        hull = MultiPoint(list(zip(x, y))).convex_hull
+        hull_xy = list(hull.exterior.coords)
+        index = {(float(a), float(b)): k for k, (a, b) in enumerate(zip(x, y))}
+        vertices = [index[(float(a), float(b))] for a, b in hull_xy]
+        h_area, _ = geod.polygon_area_perimeter([lon[k] for k in vertices], [lat[k] for k in vertices])
+        r_area, r_perim = geod.polygon_area_perimeter([p[0] for p in ring], [p[1] for p in ring])
+        out.append({
+            "name": name,
+            "points": [[float(a), float(b)] for a, b in zip(lon, lat)],
+            "mean_direction": {"lon": lon0, "lat": lat0, "reach_deg": reach},
+            "max_scale_error": scale_error,
+            "nn_geodesic_m": nn,
+            "mean_nn_geodesic_m": float(np.mean(nn)),
+            "hull_vertices": vertices,
+            "hull_area_geodesic_m2": abs(float(h_area)),
+            "ring": [[lon_, lat_] for lon_, lat_ in ring],
+            "ring_area_geodesic_m2": abs(float(r_area)),
+        })
+    return out
+
+
 def main():
     out_path = Path(__file__).resolve().parent / "values.json"
     rng = np.random.default_rng(SEED)
@@ -204,6 +294,7 @@ def main():
             },
         },
         "recheck_tails": recheck_tails(),
+        "geodesic_patterns": geodesic_patterns(np.random.default_rng(SEED + 2)),
     }
     out_path.write_text(json.dumps(values, indent=1) + "\n")
     print(f"wrote {out_path}", file=sys.stderr)

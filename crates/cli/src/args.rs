@@ -44,7 +44,8 @@ pub enum Command {
 /// How coordinates are to be read.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
 pub enum CoordsArg {
-    /// Decide from the file (CSV column names, GeoJSON `crs` member); stop when unclear.
+    /// Decide from the file (CSV column names, GeoJSON `crs` member, GeoPackage system); stop
+    /// when unclear, also when x,y-named columns hold only numbers within the lon/lat ranges.
     Auto,
     /// Planar coordinates in `--unit`.
     Projected,
@@ -94,7 +95,8 @@ pub struct CoordArgs {
     /// How to read coordinates.
     #[arg(long, value_enum, default_value_t = CoordsArg::Auto)]
     pub coords: CoordsArg,
-    /// Name of the unit of projected coordinates (shown with every distance and area).
+    /// Name of the unit of projected coordinates (shown with every distance and area); a unit
+    /// other than the default also says that x,y numbers are planar.
     #[arg(long, default_value = "m")]
     pub unit: String,
 }
@@ -134,10 +136,10 @@ pub struct AuditArgs {
     #[command(flatten)]
     pub window: WindowArgs,
     /// A bare study-area value (unit²), to reproduce an analysis whose outline is unknown.
-    #[arg(long, value_name = "A")]
+    #[arg(long, value_name = "A", allow_negative_numbers = true)]
     pub area: Option<f64>,
     /// Two-sided significance level.
-    #[arg(long, default_value_t = 0.05)]
+    #[arg(long, default_value_t = 0.05, allow_negative_numbers = true)]
     pub alpha: f64,
     /// Edge handlings to sweep: none, donnelly, border, toroidal, simulation.
     #[arg(
@@ -148,13 +150,13 @@ pub struct AuditArgs {
     )]
     pub edges: Vec<String>,
     /// Guard width for `border` (default: the observed mean nearest-neighbour distance).
-    #[arg(long, value_name = "W")]
+    #[arg(long, value_name = "W", allow_negative_numbers = true)]
     pub guard: Option<f64>,
     /// CSR simulations per window for the Monte Carlo test and the false-alarm rates.
-    #[arg(long, default_value_t = 999)]
+    #[arg(long, default_value_t = 999, value_parser = count::<usize>, allow_negative_numbers = true)]
     pub sims: usize,
     /// Seed of every random stream (printed in the report).
-    #[arg(long, default_value_t = 1)]
+    #[arg(long, default_value_t = 1, value_parser = count::<u64>, allow_negative_numbers = true)]
     pub seed: u64,
     /// Window whose simulated means `simulation.svg` shows (default: the
     /// first boundary, else the hull).
@@ -174,7 +176,7 @@ pub struct AuditArgs {
     #[arg(long)]
     pub scales: bool,
     /// CSR simulations per window for the K envelope test of `--scales`.
-    #[arg(long, default_value_t = 199, value_name = "N")]
+    #[arg(long, default_value_t = 199, value_name = "N", value_parser = count::<usize>, allow_negative_numbers = true)]
     pub scales_sims: usize,
     /// Largest distance of `--scales` (default: a quarter of the shorter
     /// side of the bounding rectangle of the window where that side is smallest).
@@ -185,4 +187,17 @@ pub struct AuditArgs {
     pub quiet: bool,
     #[command(flatten)]
     pub output: OutArgs,
+}
+
+/// The value parser of every count and seed option: a whole number of 0
+/// or more. A negative or fractional value gets this message rather than
+/// the parser's "invalid digit", and `allow_negative_numbers` on the option
+/// lets `-1` reach it at all (otherwise it reads as an unknown flag).
+pub fn count<T: std::str::FromStr>(text: &str) -> Result<T, String> {
+    text.trim().parse::<T>().map_err(|_| {
+        format!(
+            "not a whole number of 0 or more that fits in {} bits\n  what to do: give a count (or seed) without a sign or decimals, e.g. 999",
+            8 * std::mem::size_of::<T>()
+        )
+    })
 }

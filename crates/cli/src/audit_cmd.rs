@@ -44,6 +44,7 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
         )));
     }
     let data = load(&a.input)?;
+    print_reading(&data);
     let shapes = named_shapes(&data);
     let options = AuditOptions {
         windows: WindowOptions {
@@ -299,6 +300,27 @@ pub fn load(input: &InputArgs) -> Result<Dataset, Failure> {
             )?,
         },
     )?)
+}
+
+/// Say how the points were read, first thing: which coordinate system and
+/// why (column names, a format's default, the file's own declaration or
+/// `--coords`). On stderr, beside the warnings, so that a table or JSON on
+/// stdout stays clean; a misreading is never silent.
+pub fn print_reading(data: &Dataset) {
+    eprintln!("{}", reading_line(&data.points_file, &data.reading, 0));
+}
+
+/// The reading line of one file, or of `others` more read the same way.
+pub fn reading_line(file: &std::path::Path, reading: &str, others: usize) -> String {
+    let more = match others {
+        0 => String::new(),
+        1 => " and 1 more file".to_string(),
+        n => format!(" and {n} more files"),
+    };
+    format!(
+        "patternproof: reading {}{more} as {reading}",
+        file.display()
+    )
 }
 
 /// `--layer`, `--boundary-layer` and `--where` as the reader wants them.

@@ -31,18 +31,20 @@ pub struct DensityArgs {
         long,
         value_delimiter = ',',
         default_value = "scott,lcv,0.5x,2x",
-        value_name = "LIST"
+        value_name = "LIST",
+        allow_hyphen_values = true
     )]
     pub bandwidths: Vec<String>,
     /// Cell side in the unit (default: about 250 cells on the window's long side).
-    #[arg(long, value_name = "C")]
+    #[arg(long, value_name = "C", allow_negative_numbers = true)]
     pub cell: Option<f64>,
     /// Isopleth levels in percent of the mass.
     #[arg(
         long,
         value_delimiter = ',',
         default_value = "50,95",
-        value_name = "P,…"
+        value_name = "P,…",
+        allow_hyphen_values = true
     )]
     pub levels: Vec<String>,
     /// Edge handlings: none, uniform (divide by the kernel mass inside the window
@@ -188,6 +190,9 @@ pub fn run(a: &DensityArgs) -> Result<(), Failure> {
         ));
     }
     let data = crate::audit_cmd::load(&a.input)?;
+    if !a.quiet {
+        crate::audit_cmd::print_reading(&data);
+    }
     let config = parse_config(a, &data.unit)?;
     let points_name = a.input.points.display().to_string();
     let (window, source): (MultiPolygon<f64>, String) = match data.boundaries.first() {

@@ -1,6 +1,7 @@
 //! `patternproof protocol new|show`: write a study protocol down once and
 //! check it later.
 
+use crate::args::count;
 use crate::fail::Failure;
 use clap::{Args, Subcommand};
 use patternproof_audit::Edge;
@@ -35,25 +36,25 @@ pub struct NewArgs {
     #[arg(long, default_value = "simulation", value_name = "E")]
     pub edge: String,
     /// Two-sided significance level.
-    #[arg(long, default_value_t = 0.05)]
+    #[arg(long, default_value_t = 0.05, allow_negative_numbers = true)]
     pub alpha: f64,
     /// CSR simulations per site.
-    #[arg(long, default_value_t = 999)]
+    #[arg(long, default_value_t = 999, value_parser = count::<usize>, allow_negative_numbers = true)]
     pub sims: usize,
     /// Seed; each site's streams derive from it and the site's name.
-    #[arg(long, default_value_t = 1)]
+    #[arg(long, default_value_t = 1, value_parser = count::<u64>, allow_negative_numbers = true)]
     pub seed: u64,
     /// Multiple-testing adjustment across sites: holm, bh or none.
     #[arg(long, default_value = "holm")]
     pub adjust: String,
     /// Sites with fewer points are listed, not tested.
-    #[arg(long, default_value_t = 10)]
+    #[arg(long, default_value_t = 10, value_parser = count::<usize>, allow_negative_numbers = true)]
     pub min_n: usize,
     /// Guard width for `border` (default: each site's mean nearest-neighbour distance).
-    #[arg(long, value_name = "W")]
+    #[arg(long, value_name = "W", allow_negative_numbers = true)]
     pub guard: Option<f64>,
     /// Concavity of the concave hull.
-    #[arg(long, default_value_t = 2.0)]
+    #[arg(long, default_value_t = 2.0, allow_negative_numbers = true)]
     pub concavity: f64,
     /// Free text: who fixed the protocol, when, why.
     #[arg(long, value_name = "TEXT")]

@@ -113,7 +113,9 @@ pub fn run(a: &RecheckArgs) -> Result<(), Failure> {
                 field: None,
                 gpkg: Default::default(),
             };
-            Some(Dataset::load(path, &a.boundaries, &options)?)
+            let data = Dataset::load(path, &a.boundaries, &options)?;
+            crate::audit_cmd::print_reading(&data);
+            Some(data)
         }
         None => None,
     };

@@ -5,7 +5,7 @@
 //! The flags and the run function live here together; the estimators and
 //! the test are in the `patternproof-scales` crate.
 
-use crate::args::{InputArgs, OutArgs};
+use crate::args::{InputArgs, OutArgs, count};
 use crate::audit_cmd::{check_alpha, load, named_shapes};
 use crate::fail::Failure;
 use crate::progress::Progress;
@@ -58,13 +58,13 @@ pub struct ScalesArgs {
     #[arg(long, value_name = "R", allow_hyphen_values = true)]
     pub rmax: Option<f64>,
     /// Number of distances on the grid r_max·k/steps, k = 1..steps.
-    #[arg(long, default_value_t = 50)]
+    #[arg(long, default_value_t = 50, value_parser = count::<usize>, allow_negative_numbers = true)]
     pub steps: usize,
     /// CSR simulations per window for the envelope test (0: no test).
-    #[arg(long, default_value_t = 99)]
+    #[arg(long, default_value_t = 99, value_parser = count::<usize>, allow_negative_numbers = true)]
     pub sims: usize,
     /// Seed of every random stream (printed in the report).
-    #[arg(long, default_value_t = 1)]
+    #[arg(long, default_value_t = 1, value_parser = count::<u64>, allow_negative_numbers = true)]
     pub seed: u64,
     /// Significance level of the global test.
     #[arg(long, default_value_t = 0.05, allow_hyphen_values = true)]
@@ -121,6 +121,7 @@ pub fn run(a: &ScalesArgs) -> Result<(), Failure> {
         )));
     }
     let data = load(&a.input)?;
+    crate::audit_cmd::print_reading(&data);
     let options = ScalesOptions {
         corrections,
         tested,

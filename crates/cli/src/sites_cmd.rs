@@ -1,6 +1,6 @@
 //! `patternproof sites`: one locked protocol over many sites.
 
-use crate::args::{CoordArgs, OutArgs};
+use crate::args::{CoordArgs, OutArgs, count};
 use crate::audit_cmd::{RenderChoices, input_summary, render};
 use crate::fail::Failure;
 use crate::protocol_cmd::read_verified;
@@ -55,7 +55,7 @@ pub struct SitesArgs {
     pub drop_duplicates: bool,
     /// Simulations per window in each site's window-sensitivity sweep (the
     /// protocol window always gets the protocol's number).
-    #[arg(long, default_value_t = 99)]
+    #[arg(long, default_value_t = 99, value_parser = count::<usize>, allow_negative_numbers = true)]
     pub sweep_sims: usize,
     /// Leave the point maps out of the per-site reports.
     #[arg(long)]
@@ -101,6 +101,7 @@ pub fn run(a: &SitesArgs) -> Result<(), Failure> {
             if sites.len() > 5 { ", …" } else { "" }
         )));
     }
+    print_readings(&datasets);
     let inputs: Vec<SiteInput> = sites.iter().map(|s| s.input.clone()).collect();
     let runs = patternproof_sites::run_sites(
         &inputs,
@@ -145,6 +146,28 @@ pub fn run(a: &SitesArgs) -> Result<(), Failure> {
         a.output.out.display()
     );
     Ok(())
+}
+
+/// One reading line per distinct reading, naming its first file and how
+/// many more were read the same way, so two hundred sites read alike take
+/// one line and a file read differently stands out.
+fn print_readings(datasets: &[Dataset]) {
+    let mut groups: Vec<(&Dataset, usize)> = Vec::new();
+    for d in datasets {
+        match groups
+            .iter_mut()
+            .find(|(first, _)| first.reading == d.reading)
+        {
+            Some(g) => g.1 += 1,
+            None => groups.push((d, 0)),
+        }
+    }
+    for (first, others) in groups {
+        eprintln!(
+            "{}",
+            crate::audit_cmd::reading_line(&first.points_file, &first.reading, others)
+        );
+    }
 }
 
 fn load_sites(a: &SitesArgs) -> Result<(Vec<Loaded>, Vec<Dataset>), Failure> {

@@ -16,11 +16,12 @@ pub struct WindowArgs {
         long,
         value_delimiter = ',',
         default_value = "0.5x,1x,2x",
-        value_name = "D,…"
+        value_name = "D,…",
+        allow_hyphen_values = true
     )]
     pub buffers: Vec<String>,
     /// Concavity of the concave hull (geo's parameter; smaller cuts deeper).
-    #[arg(long, default_value_t = 2.0)]
+    #[arg(long, default_value_t = 2.0, allow_negative_numbers = true)]
     pub concavity: f64,
 }
 

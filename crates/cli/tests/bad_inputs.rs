@@ -8,6 +8,11 @@
 use std::path::{Path, PathBuf};
 use std::process::Command;
 
+/// The clean seven-point file of the `GOOD` cases: a survey grid in metres
+/// with a false origin, so that it reads as projected without `--coords`
+/// (small numbers under x,y would look like lon/lat degrees and stop).
+const GOOD: &str = "x,y\n512001,5600001\n512004,5600002\n512002,5600007\n512008,5600003\n512005,5600005\n512009,5600009\n512000,5600006\n";
+
 fn corpus() -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR")).join("../../tests/bad-inputs")
 }
@@ -16,7 +21,7 @@ fn corpus() -> PathBuf {
 fn every_case_in_the_corpus() {
     let dir = tempfile::tempdir().unwrap();
     let good = dir.path().join("good.csv");
-    std::fs::write(&good, "x,y\n1,1\n4,2\n2,7\n8,3\n5,5\n9,9\n0,6\n").unwrap();
+    std::fs::write(&good, GOOD).unwrap();
     let table = std::fs::read_to_string(corpus().join("cases.tsv")).unwrap();
     let mut failures = Vec::new();
     let mut count = 0;
@@ -92,7 +97,7 @@ fn every_case_in_the_corpus() {
 fn existing_folders_need_force() {
     let dir = tempfile::tempdir().unwrap();
     let good = dir.path().join("good.csv");
-    std::fs::write(&good, "x,y\n1,1\n4,2\n2,7\n8,3\n5,5\n9,9\n0,6\n").unwrap();
+    std::fs::write(&good, GOOD).unwrap();
     let out = dir.path().join("r");
     let run = |extra: &[&str], out: &Path| {
         Command::new(env!("CARGO_BIN_EXE_patternproof"))

@@ -41,7 +41,11 @@ fn assert_refused(args: &[&str], dir: &Path, must_mention: &[&str]) {
     let o = audit(args, &out);
     let e = stderr(&o);
     assert_eq!(o.status.code(), Some(2), "stderr: {e}");
-    assert!(e.starts_with("patternproof: error: "), "{e}");
+    // The error may follow the line saying how the points were read.
+    assert!(
+        e.lines().any(|l| l.starts_with("patternproof: error: ")),
+        "{e}"
+    );
     assert!(e.contains("what to do"), "{e}");
     for m in must_mention {
         assert!(e.contains(m), "expected `{m}` in: {e}");
@@ -163,6 +167,8 @@ fn same_seed_same_bytes_for_any_thread_count() {
                 "199",
                 "--seed",
                 "42",
+                "--coords",
+                "projected",
                 "--quiet",
                 "--out",
             ])
@@ -212,14 +218,23 @@ fn lonlat_out_of_range_suggests_projected() {
 #[test]
 fn identical_or_collinear_points_are_refused_without_a_window() {
     let dir = tempfile::tempdir().unwrap();
+    let planar = ["--coords", "projected"];
     let p = write(dir.path(), "same.csv", "x,y\n1,1\n1,1\n1,1\n");
-    assert_refused(&[p.to_str().unwrap()], dir.path(), &["same.csv"]);
+    assert_refused(
+        &[p.to_str().unwrap(), planar[0], planar[1]],
+        dir.path(),
+        &["same.csv", "no window could be tested"],
+    );
     let q = write(dir.path(), "line.csv", "x,y\n0,3\n1,3\n2,3\n5,3\n");
-    assert_refused(&[q.to_str().unwrap()], dir.path(), &["line.csv", "--area"]);
+    assert_refused(
+        &[q.to_str().unwrap(), planar[0], planar[1]],
+        dir.path(),
+        &["line.csv", "--area"],
+    );
     // With a bare area four points get no closed-form row (fewer than
     // ten), and the message says why.
     assert_refused(
-        &[q.to_str().unwrap(), "--area", "100"],
+        &[q.to_str().unwrap(), "--area", "100", planar[0], planar[1]],
         dir.path(),
         &["line.csv", "at least 10"],
     );
@@ -230,7 +245,10 @@ fn identical_or_collinear_points_are_refused_without_a_window() {
     }
     let q = write(dir.path(), "line12.csv", &text);
     let out = dir.path().join("with-area");
-    let o = audit(&[q.to_str().unwrap(), "--area", "400"], &out);
+    let o = audit(
+        &[q.to_str().unwrap(), "--area", "400", planar[0], planar[1]],
+        &out,
+    );
     assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
 }
 
@@ -241,7 +259,10 @@ fn duplicates_are_counted_kept_or_dropped() {
     text.push_str("10,10\n20,20\n");
     let p = write(dir.path(), "dup.csv", &text);
     let out = dir.path().join("kept");
-    let o = audit(&[p.to_str().unwrap(), "--sims", "19"], &out);
+    let o = audit(
+        &[p.to_str().unwrap(), "--sims", "19", "--coords", "projected"],
+        &out,
+    );
     assert_eq!(o.status.code(), Some(0));
     assert!(stderr(&o).contains("2 point(s) repeat"), "{}", stderr(&o));
     let j: serde_json::Value =
@@ -250,7 +271,14 @@ fn duplicates_are_counted_kept_or_dropped() {
     assert_eq!(j["input"]["n"], 27);
     let out2 = dir.path().join("dropped");
     let o = audit(
-        &[p.to_str().unwrap(), "--sims", "19", "--drop-duplicates"],
+        &[
+            p.to_str().unwrap(),
+            "--sims",
+            "19",
+            "--drop-duplicates",
+            "--coords",
+            "projected",
+        ],
         &out2,
     );
     assert_eq!(o.status.code(), Some(0));
@@ -269,7 +297,13 @@ fn invalid_boundary_is_refused() {
         "POLYGON((0 0, 30 30, 30 0, 0 30, 0 0))",
     );
     assert_refused(
-        &[p.to_str().unwrap(), "--boundary", b.to_str().unwrap()],
+        &[
+            p.to_str().unwrap(),
+            "--boundary",
+            b.to_str().unwrap(),
+            "--coords",
+            "projected",
+        ],
         dir.path(),
         &["bowtie.wkt", "valid polygon"],
     );
@@ -294,6 +328,8 @@ fn points_outside_a_boundary_are_counted_and_flagged() {
             b.to_str().unwrap(),
             "--sims",
             "19",
+            "--coords",
+            "projected",
         ],
         &out,
     );
@@ -474,7 +510,10 @@ fn a_foreign_out_folder_is_not_overwritten() {
     let mine = dir.path().join("mine");
     std::fs::create_dir(&mine).unwrap();
     std::fs::write(mine.join("notes.txt"), "keep me").unwrap();
-    let o = audit(&[p.to_str().unwrap(), "--sims", "19"], &mine);
+    let o = audit(
+        &[p.to_str().unwrap(), "--sims", "19", "--coords", "projected"],
+        &mine,
+    );
     assert_eq!(o.status.code(), Some(2));
     assert!(stderr(&o).contains("does not hold an earlier report"));
     assert_eq!(
@@ -584,4 +623,209 @@ fn shuffled_rows_give_the_same_report() {
     let (b, b_files) = run(&shuffled, "shuffled");
     assert_eq!(a, b);
     assert_eq!(a_files, b_files);
+}
+
+/// Issue 20: a negative number given to a numeric option reaches the
+/// tool's own check (exit 2, the option named, what to do) instead of the
+/// parser's "unexpected argument '-1'", for every command.
+#[test]
+fn negative_numbers_reach_the_tools_own_checks() {
+    let dir = tempfile::tempdir().unwrap();
+    let meadow = repo().join("demo-data/meadow-burrows.csv");
+    let hare = repo().join("demo-data/marsh-hare-track.csv");
+    let (meadow, hare) = (meadow.to_str().unwrap(), hare.to_str().unwrap());
+    let out = dir.path().join("out");
+    let out = out.to_str().unwrap();
+    let protocol = dir.path().join("p.json");
+    let protocol = protocol.to_str().unwrap();
+    let cases: &[(&[&str], &str)] = &[
+        (
+            &["audit", meadow, "--guard", "-1"],
+            "--guard -1: the guard width must be a non-negative distance",
+        ),
+        (
+            &["audit", meadow, "--alpha", "-0.05"],
+            "--alpha -0.05: the significance level",
+        ),
+        (
+            &["audit", meadow, "--area", "-100"],
+            "--area -100: the area must be a positive number",
+        ),
+        (
+            &["audit", meadow, "--concavity", "-2"],
+            "--concavity -2: must be a positive number",
+        ),
+        (
+            &["audit", meadow, "--buffers", "-3"],
+            "`-3` is not a positive distance",
+        ),
+        (
+            &["audit", meadow, "--sims", "-5"],
+            "invalid value '-5' for '--sims <SIMS>': not a whole number of 0 or more",
+        ),
+        (
+            &["audit", meadow, "--seed", "-1"],
+            "invalid value '-1' for '--seed <SEED>'",
+        ),
+        (
+            &["audit", meadow, "--scales-sims", "-1"],
+            "invalid value '-1' for '--scales-sims <N>'",
+        ),
+        (
+            &["scales", meadow, "--steps", "-1"],
+            "invalid value '-1' for '--steps <STEPS>'",
+        ),
+        (
+            &["scales", meadow, "--rmax", "-4"],
+            "--rmax -4: the largest distance must be a positive number",
+        ),
+        (
+            &["density", hare, "--cell", "-2"],
+            "--cell: -2 is not a positive cell size",
+        ),
+        (
+            &["density", hare, "--levels", "-5"],
+            "--levels: -5 is outside (0, 100)",
+        ),
+        (
+            &["density", hare, "--bandwidths", "-2"],
+            "\"-2\" is not a bandwidth",
+        ),
+        (
+            &["protocol", "new", "--guard", "-1", "--out", protocol],
+            "guard -1 is not a non-negative distance",
+        ),
+        (
+            &["protocol", "new", "--concavity", "-1", "--out", protocol],
+            "concavity -1 is not positive",
+        ),
+        (
+            &["protocol", "new", "--min-n", "-3", "--out", protocol],
+            "invalid value '-3' for '--min-n <MIN_N>'",
+        ),
+        (
+            &[
+                "sites",
+                "--protocol",
+                protocol,
+                "--sweep-sims",
+                "-1",
+                meadow,
+            ],
+            "invalid value '-1' for '--sweep-sims <SWEEP_SIMS>'",
+        ),
+    ];
+    for (args, want) in cases {
+        let mut cmd = bin();
+        cmd.args(*args);
+        if args[0] != "protocol" {
+            cmd.args(["--out", out]);
+        }
+        let o = cmd.output().unwrap();
+        let e = stderr(&o);
+        assert_eq!(o.status.code(), Some(2), "{args:?}: {e}");
+        assert!(!e.contains("unexpected argument"), "{args:?}: {e}");
+        assert!(e.contains(want), "{args:?}: expected `{want}` in {e}");
+        assert!(e.contains("what to do"), "{args:?}: {e}");
+        assert!(!Path::new(out).exists() && !Path::new(protocol).exists());
+    }
+}
+
+/// Issue 20, item 3: every command that reads points says first, on
+/// stderr, how it read them and why; stdout stays the command's own (the
+/// JSON of `recheck --json` still parses), and `density --quiet` prints
+/// nothing but errors.
+#[test]
+fn every_command_says_how_it_read_the_points() {
+    let dir = tempfile::tempdir().unwrap();
+    let meadow = repo().join("demo-data/meadow-burrows.csv");
+    let meadow = meadow.to_str().unwrap();
+    let plots = repo().join("demo-data/plots/plot-c.csv");
+    let plots = plots.to_str().unwrap();
+    let protocol = dir.path().join("p.json");
+    let o = bin()
+        .args(["protocol", "new", "--sims", "9", "--out"])
+        .arg(&protocol)
+        .output()
+        .unwrap();
+    assert!(o.status.success(), "{}", stderr(&o));
+    let out = |name: &str| dir.path().join(name).display().to_string();
+    let projected = "as projected coordinates in m (the CSV columns are named x,y)";
+    let runs: Vec<Vec<String>> = vec![
+        vec![
+            "audit".into(),
+            meadow.into(),
+            "--sims".into(),
+            "9".into(),
+            "--out".into(),
+            out("a"),
+        ],
+        vec![
+            "scales".into(),
+            meadow.into(),
+            "--sims".into(),
+            "9".into(),
+            "--out".into(),
+            out("s"),
+        ],
+        vec![
+            "density".into(),
+            meadow.into(),
+            "--kernels".into(),
+            "gaussian".into(),
+            "--bandwidths".into(),
+            "scott".into(),
+            "--out".into(),
+            out("d"),
+        ],
+        vec![
+            "recheck".into(),
+            "--n".into(),
+            "143".into(),
+            "--ratio".into(),
+            "0.9".into(),
+            "--points".into(),
+            meadow.into(),
+            "--json".into(),
+        ],
+        vec![
+            "sites".into(),
+            "--protocol".into(),
+            protocol.display().to_string(),
+            plots.into(),
+            "--sweep-sims".into(),
+            "0".into(),
+            "--out".into(),
+            out("t"),
+        ],
+    ];
+    for args in &runs {
+        let o = bin().args(args).output().unwrap();
+        let e = stderr(&o);
+        assert!(o.status.success(), "{args:?}: {e}");
+        let first = e.lines().next().unwrap_or_default();
+        assert!(
+            first.starts_with("patternproof: reading ") && first.ends_with(projected),
+            "{args:?}: first line {first:?}"
+        );
+        if args[0] == "recheck" {
+            let json: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+            assert_eq!(json["schema"], "patternproof.recheck/2");
+        }
+    }
+    let o = bin()
+        .args([
+            "density",
+            meadow,
+            "--kernels",
+            "gaussian",
+            "--bandwidths",
+            "scott",
+            "--quiet",
+            "--out",
+        ])
+        .arg(out("q"))
+        .output()
+        .unwrap();
+    assert!(o.status.success() && o.stderr.is_empty() && o.stdout.is_empty());
 }

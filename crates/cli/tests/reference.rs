@@ -315,3 +315,148 @@ fn multitest_adjustment_matches_statsmodels() {
         }
     }
 }
+
+/// Issue 20 (antimeridian): lon/lat patterns straddling ±180° near 16° S,
+/// filling the cap around the North Pole above 89° N, and across the prime
+/// meridian (a control), read through the whole input path (CSV, centre of
+/// the equal-area plane, projection, a WKT study area across ±180° or
+/// around the pole). The plane must be centred on the points' mean unit
+/// vector, planar nearest-neighbour distances must match the geodesic ones
+/// on the WGS84 ellipsoid, and areas the geodesic areas.
+///
+/// Reference: pyproj.Geod(ellps="WGS84").inv over all pairs for the
+/// distances, .polygon_area_perimeter for the areas, numpy for the mean
+/// direction and its reach c (the largest angle from it to a point), and
+/// PROJ's Tissot factors (pyproj Proj.get_factors) of the plane centred
+/// there (reference libraries, versions in values.json).
+///
+/// Tolerances come from the reference, never from the tool's own centre (a
+/// misplaced centre would only widen them). A short distance measured on
+/// the plane is off by no more than the scale's largest departure from 1
+/// along it, which for these convex patterns is largest at a point: PROJ's
+/// Tissot axes give it (1.4e-6 near the antimeridian, 4.0e-5 on the pole
+/// cap; on the sphere it would be 1/cos(c/2) − 1 ≈ c²/8, Snyder 1987,
+/// ch. 24, and the ellipsoid adds to that). The straight chord and the
+/// geodesic of a 20 km neighbour pair differ by about (L/R)²/24 < 1e-9, so
+/// 1e-7 is added for rounding. A hull edge of length L is straight in the
+/// plane but a geodesic on the ellipsoid; the image of the geodesic bends
+/// with the gradient of the scale's anisotropy, ln(k/h) ≈ c²/4 on the
+/// sphere, that is with curvature up to c/(2R), so the two part by a
+/// sagitta of up to c·L²/(16R) and enclose (2/3)·L·sagitta between them:
+/// the area may differ by c·ΣL³/(24R), allowed twice plus 1e-7 of the area
+/// (about 5e-5 of the pole cap's hull, whose edges are up to 100 km long;
+/// 7e-7 near the antimeridian). The study-area rings are densified (edges
+/// ≤ 1 km), so their areas agree within 1e-6.
+#[test]
+fn lonlat_patterns_match_geodesic_distances_and_areas() {
+    use geo::{Area, ConvexHull, MultiPoint, Point};
+    const R: f64 = 6_371_008.8;
+    let v = values();
+    let dir = tempfile::tempdir().unwrap();
+    for pattern in v["geodesic_patterns"].as_array().unwrap() {
+        let name = pattern["name"].as_str().unwrap();
+        let pts = points(pattern);
+        let mut csv = String::from("lon,lat\n");
+        for p in &pts {
+            csv.push_str(&format!("{},{}\n", p[0], p[1]));
+        }
+        let file = dir.path().join(format!("{name}.csv"));
+        std::fs::write(&file, csv).unwrap();
+        let ring: Vec<String> = pattern["ring"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|p| format!("{} {}", f(&p[0]), f(&p[1])))
+            .collect();
+        let boundary = dir.path().join(format!("{name}.wkt"));
+        std::fs::write(&boundary, format!("POLYGON (({}))", ring.join(", "))).unwrap();
+        let data = patternproof_io::Dataset::load(
+            &file,
+            std::slice::from_ref(&boundary),
+            &patternproof_io::LoadOptions::default(),
+        )
+        .unwrap_or_else(|e| panic!("{name}: {e}"));
+
+        let md = &pattern["mean_direction"];
+        let c = f(&md["reach_deg"]).to_radians();
+        let nn_tol = f(&pattern["max_scale_error"]) + 1e-7;
+        let got = patternproof_core::nearest::nearest_distances(&data.points).unwrap();
+        let in_file_order: Vec<f64> = pattern["nn_geodesic_m"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(f)
+            .collect();
+        // The points are analysed in canonical order; each one's place
+        // (its CSV line, the header being line 1) finds its reference.
+        let want: Vec<f64> = data
+            .places
+            .iter()
+            .map(|place| match place {
+                patternproof_io::points::Place::Line(line) => in_file_order[*line as usize - 2],
+                other => panic!("{name}: a CSV point placed at {other}"),
+            })
+            .collect();
+        let worst = got
+            .iter()
+            .zip(&want)
+            .map(|(g, w)| ((g - w) / w).abs())
+            .fold(0.0, f64::max);
+        eprintln!("{name}: worst relative nearest-neighbour error {worst:e} (allowed {nn_tol:e})");
+        for (i, (g, w)) in got.iter().zip(&want).enumerate() {
+            assert_rel(
+                &format!("{name}: point {i} nearest neighbour"),
+                *g,
+                *w,
+                nn_tol,
+            );
+        }
+
+        let hull =
+            MultiPoint(data.points.iter().map(|p| Point::new(p[0], p[1])).collect()).convex_hull();
+        let edges: f64 = hull
+            .exterior()
+            .lines()
+            .map(|l| {
+                let len = (l.end.x - l.start.x).hypot(l.end.y - l.start.y);
+                len * len * len
+            })
+            .sum();
+        let hull_area = hull.unsigned_area();
+        let hull_want = f(&pattern["hull_area_geodesic_m2"]);
+        let hull_tol = 2.0 * c * edges / (24.0 * R) / hull_want + 1e-7;
+        eprintln!(
+            "{name}: hull {hull_area} m², geodesic {hull_want} m², relative {:e} (allowed {hull_tol:e})",
+            (hull_area - hull_want) / hull_want
+        );
+        assert_rel(
+            &format!("{name}: hull area"),
+            hull_area,
+            hull_want,
+            hull_tol,
+        );
+
+        let area = data.boundaries[0].shape.unsigned_area();
+        let area_want = f(&pattern["ring_area_geodesic_m2"]);
+        eprintln!(
+            "{name}: study area {area} m², geodesic {area_want} m², relative {:e}",
+            (area - area_want) / area_want
+        );
+        assert_rel(&format!("{name}: study area"), area, area_want, 1e-6);
+
+        let proj = data.projection.as_ref().unwrap();
+        let dlon = (proj.lon0 - f(&md["lon"]) + 540.0) % 360.0 - 180.0;
+        let dlat = proj.lat0 - f(&md["lat"]);
+        // The tool rounds its centre to 1e-6°; at 89.9° N a longitude
+        // step is 500 times shorter, so compare on the ground.
+        let apart = dlat.hypot(dlon * f(&md["lat"]).to_radians().cos());
+        assert!(
+            apart <= 1e-6,
+            "{name}: centre ({}, {}) vs numpy's mean direction ({}, {})",
+            proj.lon0,
+            proj.lat0,
+            md["lon"],
+            md["lat"]
+        );
+    }
+}

@@ -183,7 +183,17 @@ fn tiny_data_set_pictures() {
     )
     .expect("write");
     let out = dir.path().join("r");
-    audit(&[points.to_str().expect("path"), "--sims", "99"], &out);
+    // A 20 m grid at the origin: numbers that fit lon/lat, so say so.
+    audit(
+        &[
+            points.to_str().expect("path"),
+            "--sims",
+            "99",
+            "--coords",
+            "projected",
+        ],
+        &out,
+    );
     check_sensitivity(&out);
     // Without a boundary the simulation picture shows the hull.
     let texts = svg_texts(&read(&out.join("simulation.svg")));

@@ -46,11 +46,16 @@ fn new_protocol(dir: &Path, extra: &[&str]) -> PathBuf {
     p
 }
 
+/// `sites` on the demo plots. Their survey grid starts at the first plot's
+/// corner, so plot-a and plot-b hold only numbers within the lon/lat
+/// ranges: `--coords projected` says they are metres.
 fn sites(protocol: &Path, out: &Path, extra: &[&str]) -> Output {
     let mut args: Vec<String> = vec![
         "sites".into(),
         "--protocol".into(),
         protocol.display().to_string(),
+        "--coords".into(),
+        "projected".into(),
     ];
     args.extend(extra.iter().map(|s| s.to_string()));
     args.extend(["--out".into(), out.display().to_string()]);
@@ -383,4 +388,36 @@ fn sha2_hex(bytes: &[u8]) -> String {
         .iter()
         .map(|b| format!("{b:02x}"))
         .collect()
+}
+/// Issue 20: without `--coords`, the demo plots whose numbers all fit the
+/// lon/lat ranges stop the run with exit 2, naming the file, saying what
+/// the numbers look like and which flag answers; no folder is written.
+#[test]
+fn degree_like_plots_ask_how_to_read_them() {
+    let dir = tempfile::tempdir().unwrap();
+    let p = new_protocol(dir.path(), &["--sims", "9"]);
+    let out = dir.path().join("run");
+    let mut args = vec![
+        "sites".to_string(),
+        "--protocol".into(),
+        p.display().to_string(),
+    ];
+    args.extend(plots());
+    args.extend(["--out".into(), out.display().to_string()]);
+    let o = Command::new(env!("CARGO_BIN_EXE_patternproof"))
+        .args(&args)
+        .output()
+        .unwrap();
+    let e = String::from_utf8_lossy(&o.stderr);
+    assert_eq!(o.status.code(), Some(2), "{e}");
+    for want in [
+        "plot-a.csv",
+        "the CSV columns are named x,y",
+        "every x lies within −180..180 and every y within −90..90",
+        "--coords lonlat",
+        "--coords projected",
+    ] {
+        assert!(e.contains(want), "expected `{want}` in {e}");
+    }
+    assert!(!out.exists());
 }

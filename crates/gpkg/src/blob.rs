@@ -23,7 +23,10 @@
 
 use geo::{Coord, MultiPolygon, Polygon};
 use geo_traits::to_geo::{ToGeoMultiPolygon, ToGeoPolygon};
-use geo_traits::{CoordTrait, GeometryTrait, GeometryType, MultiPointTrait, PointTrait};
+use geo_traits::{
+    CoordTrait, GeometryTrait, GeometryType, LineStringTrait, MultiPointTrait, MultiPolygonTrait,
+    PointTrait, PolygonTrait,
+};
 use std::fmt;
 
 /// The two magic bytes, "GP".
@@ -195,8 +198,15 @@ pub fn decode(bytes: &[u8]) -> Result<Decoded, BlobError> {
     if used < body.len() {
         return Err(BlobError::Trailing(body.len() - used));
     }
-    if let GeometryType::MultiPoint(mp) = wkb.as_type() {
-        check_members(mp)?;
+    match wkb.as_type() {
+        GeometryType::MultiPoint(mp) => check_members(mp)?,
+        GeometryType::Polygon(p) => check_rings(0, p)?,
+        GeometryType::MultiPolygon(mp) => {
+            for (k, p) in mp.polygons().enumerate() {
+                check_rings(k, &p)?;
+            }
+        }
+        _ => {}
     }
     Ok(Decoded {
         header,
@@ -236,6 +246,38 @@ fn check_members(mp: &wkb::reader::MultiPoint<'_>) -> Result<(), BlobError> {
             return Err(problem(
                 "not a plain point with the MultiPoint's own coordinate dimensions".into(),
             ));
+        }
+    }
+    Ok(())
+}
+
+/// Every ring of a non-empty polygon must be closed, with at least four
+/// positions (OGC 06-103r4, Simple Features §6.1.11.1: a ring is a closed
+/// curve, and WKB writes the closing point). The conversion to `geo` would
+/// close an open ring silently, as it would for GeoJSON and WKT, where
+/// such a ring is refused too. `polygon` is the 0-based member index.
+fn check_rings(polygon: usize, p: &impl PolygonTrait<T = f64>) -> Result<(), BlobError> {
+    let Some(exterior) = p.exterior() else {
+        return Ok(());
+    };
+    if exterior.num_coords() == 0 {
+        return Ok(());
+    }
+    let rings = std::iter::once(exterior).chain(p.interiors());
+    for (r, ring) in rings.enumerate() {
+        let n = ring.num_coords();
+        let at = |i: usize| ring.coord(i).map(|c| (c.x(), c.y()));
+        if n < 4 || at(0) != at(n - 1) {
+            let which = if r == 0 {
+                "the outer ring".to_string()
+            } else {
+                format!("hole {r}")
+            };
+            return Err(BlobError::Wkb(format!(
+                "polygon {}, ring {} ({which}) is not closed ({n} positions; the first must equal the last, and a ring needs at least four)",
+                polygon + 1,
+                r + 1
+            )));
         }
     }
     Ok(())
@@ -474,5 +516,50 @@ mod tests {
             }
             let _ = decode(&b);
         }
+    }
+
+    /// Issue 20: a WKB polygon with an open ring is refused, naming the
+    /// polygon and the ring, as GeoJSON and WKT boundaries are; before, the
+    /// conversion closed it without a word. WKB polygon layout: OGC
+    /// 06-103r4 §8.2 (type 3, ring count, per ring a point count and the
+    /// points; type 6 wraps polygons with their own byte order and type).
+    #[test]
+    fn open_polygon_rings_are_refused() {
+        let ring = |pts: &[(f64, f64)]| {
+            let mut b = (pts.len() as u32).to_le_bytes().to_vec();
+            for (x, y) in pts {
+                b.extend_from_slice(&x.to_le_bytes());
+                b.extend_from_slice(&y.to_le_bytes());
+            }
+            b
+        };
+        let polygon = |rings: &[Vec<u8>]| {
+            let mut b = vec![1u8];
+            b.extend_from_slice(&3u32.to_le_bytes());
+            b.extend_from_slice(&(rings.len() as u32).to_le_bytes());
+            for r in rings {
+                b.extend_from_slice(r);
+            }
+            b
+        };
+        let closed = ring(&[(0.0, 0.0), (4.0, 0.0), (4.0, 4.0), (0.0, 4.0), (0.0, 0.0)]);
+        let open_hole = ring(&[(1.0, 1.0), (2.0, 1.0), (2.0, 2.0), (1.0, 2.0)]);
+        let mut blob = vec![b'G', b'P', 0, 1, 0, 0, 0, 0];
+        blob.extend_from_slice(&polygon(std::slice::from_ref(&closed)));
+        assert!(matches!(
+            decode(&blob).unwrap().shape,
+            Some(Shape::Polygons(_))
+        ));
+        let mut multi = vec![b'G', b'P', 0, 1, 0, 0, 0, 0, 1];
+        multi.extend_from_slice(&6u32.to_le_bytes());
+        multi.extend_from_slice(&2u32.to_le_bytes());
+        multi.extend_from_slice(&polygon(std::slice::from_ref(&closed)));
+        multi.extend_from_slice(&polygon(&[closed, open_hole]));
+        assert_eq!(
+            decode(&multi).unwrap_err(),
+            BlobError::Wkb(
+                "polygon 2, ring 2 (hole 1) is not closed (4 positions; the first must equal the last, and a ring needs at least four)".into()
+            )
+        );
     }
 }

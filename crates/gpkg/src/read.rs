@@ -9,19 +9,46 @@
 //! identifier. A user's `--where` value is bound as a parameter, never
 //! pasted. The file is opened read-only and `query_only`, so even a query
 //! that went wrong could not change it.
+//!
+//! A layer may be a view, and a view may run any query, an endless
+//! recursive one included. So every statement on the connection shares one
+//! budget of SQLite virtual-machine steps, counted by a progress handler
+//! and proportional to the file's size ([`step_budget`]): far more than
+//! reading plain tables needs, and finite. Counting steps, not seconds,
+//! keeps the refusal the same on every machine.
 
 use crate::blob::{self, BlobError, Shape};
 use rusqlite::types::ValueRef;
 use rusqlite::{Connection, OpenFlags, OptionalExtension};
 use std::fmt;
 use std::path::Path;
+use std::sync::Arc;
+use std::sync::atomic::{AtomicU64, Ordering};
 
 /// The SQLite file header (SQLite file format §1.3: the first 16 bytes).
 const SQLITE_MAGIC: &[u8; 16] = b"SQLite format 3\0";
 
+/// SQLite virtual-machine steps between two calls of the progress handler.
+const STEPS_PER_CALL: u64 = 10_000;
+
+/// The steps every file may use, whatever its size.
+const BASE_STEPS: u64 = 100_000_000;
+
+/// Further steps per byte of the file. Reading a plain table costs about
+/// ten steps a row, and a row takes at least ten bytes, so this is a
+/// hundred times what the reader's queries need on any plain layer.
+const STEPS_PER_BYTE: u64 = 100;
+
+/// The step budget of all queries on a file of `bytes` bytes.
+pub fn step_budget(bytes: u64) -> u64 {
+    BASE_STEPS.saturating_add(bytes.saturating_mul(STEPS_PER_BYTE))
+}
+
 /// A GeoPackage opened for reading.
 pub struct GeoPackage {
     conn: Connection,
+    /// SQLite steps the budget allows.
+    budget: u64,
 }
 
 impl fmt::Debug for GeoPackage {
@@ -43,6 +70,8 @@ pub struct Layer {
     pub srs_id: i32,
     /// Rows in the table.
     pub count: i64,
+    /// Whether the layer is a view (a stored query) rather than a table.
+    pub view: bool,
 }
 
 impl fmt::Display for Layer {
@@ -146,6 +175,16 @@ pub enum GpkgError {
         /// What is wrong.
         problem: String,
     },
+    /// The queries on the file used up their step budget: a layer is a
+    /// view over an endless (or very slow) query.
+    TooManySteps {
+        /// The layer being read, when known.
+        layer: Option<String>,
+        /// Whether that layer is a view rather than a table.
+        view: bool,
+        /// The budget, in SQLite steps.
+        budget: u64,
+    },
     /// One feature's geometry blob is malformed.
     Geometry {
         /// The layer.
@@ -182,6 +221,22 @@ impl fmt::Display for GpkgError {
                 columns.join(", ")
             ),
             GpkgError::BrokenLayer { layer, problem } => write!(f, "layer `{layer}`: {problem}"),
+            GpkgError::TooManySteps {
+                layer,
+                view,
+                budget,
+            } => {
+                match (layer, view) {
+                    (Some(l), true) => write!(f, "layer `{l}` is a view whose query")?,
+                    (Some(l), false) => write!(f, "reading layer `{l}`")?,
+                    (None, _) => write!(f, "reading the file's catalogue")?,
+                }
+                write!(
+                    f,
+                    " did not finish within {} million SQLite steps, far more than reading a plain table of this file's size needs (the query may never end)",
+                    budget / 1_000_000
+                )
+            }
             GpkgError::Geometry {
                 layer,
                 fid,
@@ -204,6 +259,16 @@ pub fn list(layers: &[Layer]) -> String {
 
 fn sql(e: rusqlite::Error) -> GpkgError {
     match &e {
+        rusqlite::Error::SqliteFailure(code, _)
+            if code.code == rusqlite::ErrorCode::OperationInterrupted =>
+        {
+            // Only the step budget interrupts; the caller names the layer.
+            GpkgError::TooManySteps {
+                layer: None,
+                view: false,
+                budget: 0,
+            }
+        }
         rusqlite::Error::SqliteFailure(code, _)
             if matches!(
                 code.code,
@@ -254,11 +319,19 @@ impl GeoPackage {
             OpenFlags::SQLITE_OPEN_READ_ONLY | OpenFlags::SQLITE_OPEN_NO_MUTEX,
         )
         .map_err(sql)?;
+        let budget = step_budget(meta.len());
+        let calls = Arc::new(AtomicU64::new(0));
+        let allowed = budget / STEPS_PER_CALL;
+        conn.progress_handler(
+            STEPS_PER_CALL as std::os::raw::c_int,
+            Some(move || calls.fetch_add(1, Ordering::Relaxed) >= allowed),
+        )
+        .map_err(sql)?;
         // Belt and braces: no writes, and no functions called from the
         // file's own schema (views, triggers) beyond SQLite's built-ins.
         conn.execute_batch("PRAGMA query_only = ON; PRAGMA trusted_schema = OFF;")
             .map_err(sql)?;
-        let gpkg = Self { conn };
+        let gpkg = Self { conn, budget };
         for table in [
             "gpkg_contents",
             "gpkg_geometry_columns",
@@ -274,14 +347,39 @@ impl GeoPackage {
     }
 
     fn has_table(&self, name: &str) -> Result<bool, GpkgError> {
+        Ok(self.table_kind(name)?.is_some())
+    }
+
+    /// `table` or `view` for a name in the schema, `None` when absent.
+    fn table_kind(&self, name: &str) -> Result<Option<String>, GpkgError> {
         self.conn
             .query_row(
-                "SELECT count(*) FROM sqlite_schema WHERE type IN ('table', 'view') AND name = ?1",
+                "SELECT type FROM sqlite_schema WHERE type IN ('table', 'view') AND name = ?1",
                 [name],
-                |r| r.get::<_, i64>(0),
+                |r| r.get::<_, String>(0),
             )
-            .map(|n| n > 0)
-            .map_err(sql)
+            .optional()
+            .map_err(|e| self.within_budget(sql(e), None))
+    }
+
+    /// Complete a budget refusal with the budget and, when the caller
+    /// knows it, the layer (name, is a view) being read.
+    fn within_budget(&self, e: GpkgError, reading: Option<(&str, bool)>) -> GpkgError {
+        match e {
+            GpkgError::TooManySteps { layer, view, .. } => {
+                let (layer, view) = match (layer, reading) {
+                    (Some(l), _) => (Some(l), view),
+                    (None, Some((name, is_view))) => (Some(name.to_string()), is_view),
+                    (None, None) => (None, false),
+                };
+                GpkgError::TooManySteps {
+                    layer,
+                    view,
+                    budget: self.budget,
+                }
+            }
+            other => other,
+        }
     }
 
     /// `PRAGMA application_id` (0x47504B47, "GPKG", for GeoPackage 1.2 and later).
@@ -289,11 +387,15 @@ impl GeoPackage {
         self.conn
             .query_row("PRAGMA application_id", [], |r| r.get::<_, i64>(0))
             .map(|v| v as u32)
-            .map_err(sql)
+            .map_err(|e| self.within_budget(sql(e), None))
     }
 
     /// Every feature layer, by name.
     pub fn layers(&self) -> Result<Vec<Layer>, GpkgError> {
+        self.read_layers().map_err(|e| self.within_budget(e, None))
+    }
+
+    fn read_layers(&self) -> Result<Vec<Layer>, GpkgError> {
         let mut stmt = self
             .conn
             .prepare(
@@ -315,12 +417,13 @@ impl GeoPackage {
         let mut out = Vec::new();
         for row in rows {
             let (name, column, geometry_type, srs_id) = row.map_err(sql)?;
-            if !self.has_table(&name)? {
+            let Some(kind) = self.table_kind(&name)? else {
                 return Err(GpkgError::BrokenLayer {
                     layer: name,
                     problem: "gpkg_contents lists it but the file has no such table".into(),
                 });
-            }
+            };
+            let view = kind == "view";
             let count = self
                 .conn
                 .query_row(
@@ -328,7 +431,7 @@ impl GeoPackage {
                     [],
                     |r| r.get::<_, i64>(0),
                 )
-                .map_err(sql)?;
+                .map_err(|e| self.within_budget(sql(e), Some((&name, view))))?;
             let srs_id = i32::try_from(srs_id).map_err(|_| GpkgError::BrokenLayer {
                 layer: name.clone(),
                 problem: format!("srs_id {srs_id} is out of range"),
@@ -339,6 +442,7 @@ impl GeoPackage {
                 geometry_type,
                 srs_id,
                 count,
+                view,
             });
         }
         Ok(out)
@@ -376,11 +480,16 @@ impl GeoPackage {
                 },
             )
             .optional()
-            .map_err(sql)
+            .map_err(|e| self.within_budget(sql(e), None))
     }
 
     /// Column names of a layer, with the primary-key column if any.
     pub fn columns(&self, layer: &Layer) -> Result<(Vec<String>, Option<String>), GpkgError> {
+        self.read_columns(layer)
+            .map_err(|e| self.within_budget(e, Some((&layer.name, layer.view))))
+    }
+
+    fn read_columns(&self, layer: &Layer) -> Result<(Vec<String>, Option<String>), GpkgError> {
         let mut stmt = self
             .conn
             .prepare("SELECT name, pk FROM pragma_table_info(?1) ORDER BY cid")
@@ -411,6 +520,16 @@ impl GeoPackage {
         attribute: Option<&str>,
         filter: Option<&Filter>,
     ) -> Result<Vec<Feature>, GpkgError> {
+        self.read_features(layer, attribute, filter)
+            .map_err(|e| self.within_budget(e, Some((&layer.name, layer.view))))
+    }
+
+    fn read_features(
+        &self,
+        layer: &Layer,
+        attribute: Option<&str>,
+        filter: Option<&Filter>,
+    ) -> Result<Vec<Feature>, GpkgError> {
         let (columns, key) = self.columns(layer)?;
         let known = |name: &str| -> Result<String, GpkgError> {
             if columns.iter().any(|c| c == name) {
@@ -430,22 +549,29 @@ impl GeoPackage {
                 layer.column
             ),
         })?;
-        let fid = match &key {
-            Some(k) => quote_identifier(k)?,
-            None => "rowid".to_string(),
+        // A view has no rowid and declares no key: its `fid` column if it
+        // has one, else the rows are numbered in the order the view gives.
+        let fid = match (&key, layer.view) {
+            (Some(k), _) => Some(quote_identifier(k)?),
+            (None, false) => Some("rowid".to_string()),
+            (None, true) if columns.iter().any(|c| c == "fid") => Some(quote_identifier("fid")?),
+            (None, true) => None,
         };
         let value = match attribute {
             Some(a) => known(a)?,
             None => "NULL".to_string(),
         };
         let table = quote_identifier(&layer.name)?;
-        let mut text = format!("SELECT {fid}, {geom}, {value} FROM {table}");
+        let key_column = fid.as_deref().unwrap_or("NULL");
+        let mut text = format!("SELECT {key_column}, {geom}, {value} FROM {table}");
         let mut params: Vec<&str> = Vec::new();
         if let Some(f) = filter {
             text.push_str(&format!(" WHERE {} = ?1", known(&f.field)?));
             params.push(&f.value);
         }
-        text.push_str(&format!(" ORDER BY {fid}"));
+        if let Some(fid) = &fid {
+            text.push_str(&format!(" ORDER BY {fid}"));
+        }
         let mut stmt = self.conn.prepare(&text).map_err(sql)?;
         let mut rows = stmt
             .query(rusqlite::params_from_iter(params.iter()))
@@ -502,5 +628,76 @@ fn kind(v: ValueRef<'_>) -> &'static str {
         ValueRef::Real(_) => "a number",
         ValueRef::Text(_) => "text",
         ValueRef::Blob(_) => "a blob",
+    }
+}
+
+#[cfg(test)]
+#[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
+mod tests {
+    use super::*;
+
+    /// A GeoPackage whose only feature layer `plots` is created by `sql`
+    /// (a table or a view), with the catalogue rows of OGC 12-128 §1.1.
+    fn gpkg_with(sql_text: &str) -> tempfile::NamedTempFile {
+        let f = tempfile::Builder::new().suffix(".gpkg").tempfile().unwrap();
+        let conn = Connection::open(f.path()).unwrap();
+        conn.execute_batch(
+            "CREATE TABLE gpkg_spatial_ref_sys (srs_name TEXT, srs_id INTEGER PRIMARY KEY, organization TEXT, organization_coordsys_id INTEGER, definition TEXT, description TEXT);
+             CREATE TABLE gpkg_contents (table_name TEXT PRIMARY KEY, data_type TEXT, identifier TEXT, srs_id INTEGER);
+             CREATE TABLE gpkg_geometry_columns (table_name TEXT, column_name TEXT, geometry_type_name TEXT, srs_id INTEGER, z TINYINT, m TINYINT);
+             INSERT INTO gpkg_contents VALUES ('plots', 'features', 'plots', -1);
+             INSERT INTO gpkg_geometry_columns VALUES ('plots', 'geom', 'POINT', -1, 0, 0);",
+        )
+        .unwrap();
+        conn.execute_batch(sql_text).unwrap();
+        f
+    }
+
+    /// Issue 20: a feature layer that is a view over an endless recursive
+    /// query stops with `TooManySteps` naming the layer as a view, after a
+    /// budget set by the file's size, instead of hanging the run.
+    #[test]
+    fn an_endless_view_uses_up_its_budget_and_stops() {
+        let f = gpkg_with(
+            "CREATE VIEW plots AS WITH RECURSIVE c(x) AS (SELECT 1 UNION ALL SELECT x + 1 FROM c) SELECT x AS fid, NULL AS geom FROM c;",
+        );
+        let g = GeoPackage::open(f.path()).unwrap();
+        let bytes = std::fs::metadata(f.path()).unwrap().len();
+        match g.layers().unwrap_err() {
+            GpkgError::TooManySteps {
+                layer,
+                view,
+                budget,
+            } => {
+                assert_eq!(layer.as_deref(), Some("plots"));
+                assert!(view);
+                assert_eq!(budget, step_budget(bytes));
+            }
+            other => panic!("{other}"),
+        }
+        // A view that ends is read like a table.
+        let f = gpkg_with(
+            "CREATE TABLE pts (fid INTEGER PRIMARY KEY, geom BLOB);
+             INSERT INTO pts VALUES (1, NULL), (2, NULL);
+             CREATE VIEW plots AS SELECT fid + 10 AS fid, geom FROM pts;",
+        );
+        let g = GeoPackage::open(f.path()).unwrap();
+        let layers = g.layers().unwrap();
+        assert_eq!((layers[0].count, layers[0].view), (2, true));
+        let fids: Vec<i64> = g
+            .features(&layers[0], None, None)
+            .unwrap()
+            .iter()
+            .map(|f| f.fid)
+            .collect();
+        assert_eq!(fids, vec![11, 12]);
+    }
+
+    /// The budget grows with the file: 100 million steps, plus 100 a byte.
+    #[test]
+    fn the_budget_follows_the_file_size() {
+        assert_eq!(step_budget(0), 100_000_000);
+        assert_eq!(step_budget(1 << 20), 100_000_000 + 100 * (1 << 20));
+        assert_eq!(step_budget(u64::MAX), u64::MAX);
     }
 }

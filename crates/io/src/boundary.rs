@@ -11,7 +11,7 @@ use crate::points::{declared_lonlat, is_geojson, legacy_crs};
 use geo::{Geometry, MultiPolygon, Polygon};
 use geojson::GeoJson;
 use std::path::Path;
-use wkt::TryFromWkt;
+use std::str::FromStr;
 
 /// A boundary as read, before projection and validation.
 #[derive(Debug, Clone, PartialEq)]
@@ -20,9 +20,13 @@ pub struct RawBoundary {
     pub name: String,
     /// The polygons, in file coordinates.
     pub shape: MultiPolygon<f64>,
-    /// What the file itself says about its coordinates (GeoJSON only;
-    /// WKT carries no system and follows the points).
+    /// What the file itself says about its coordinates (WKT carries no
+    /// system and follows the points).
     pub declared: Option<CoordSystem>,
+    /// Whether `declared` is the file's own statement (a GeoJSON `crs`
+    /// member, a GeoPackage coordinate-system row) rather than a format's
+    /// default (RFC 7946 lon/lat for GeoJSON without one).
+    pub stated: bool,
 }
 
 /// Read one boundary file (GeoJSON by extension or a leading `{`, else WKT).
@@ -110,6 +114,7 @@ pub(crate) fn add_part(
     name: String,
     polygons: Vec<Polygon<f64>>,
     declared: Option<CoordSystem>,
+    stated: bool,
 ) {
     match out.iter_mut().find(|b| b.name == name) {
         Some(b) => b.shape.0.extend(polygons),
@@ -117,6 +122,7 @@ pub(crate) fn add_part(
             name,
             shape: MultiPolygon(polygons),
             declared,
+            stated,
         }),
     }
 }
@@ -133,6 +139,46 @@ fn declared_system(crs: Option<&serde_json::Value>) -> Option<CoordSystem> {
     })
 }
 
+/// The words for an unclosed ring, the same for every format: which
+/// polygon, which ring, how many positions.
+pub(crate) fn unclosed_ring(polygon: usize, ring: usize, positions: usize) -> String {
+    let which = if ring == 0 {
+        "the outer ring".to_string()
+    } else {
+        format!("hole {ring}")
+    };
+    format!(
+        "polygon {}, ring {} ({which}) is not closed ({positions} positions; the first must equal the last, and a ring needs at least four)",
+        polygon + 1,
+        ring + 1
+    )
+}
+
+/// The first ring that is not closed, as (polygon, ring, positions), the
+/// indices 0-based. `polygons` gives, per polygon, each ring's positions.
+fn first_unclosed<'a, P: PartialEq + 'a>(
+    polygons: impl IntoIterator<Item = Vec<&'a [P]>>,
+) -> Option<(usize, usize, usize)> {
+    for (p, rings) in polygons.into_iter().enumerate() {
+        for (r, ring) in rings.into_iter().enumerate() {
+            let closed = ring.len() >= 4 && ring.first() == ring.last();
+            if !closed {
+                return Some((p, r, ring.len()));
+            }
+        }
+    }
+    None
+}
+
+fn unclosed_error(path: &Path, place: &str, (p, r, n): (usize, usize, usize)) -> InputError {
+    InputError::new(
+        path,
+        unclosed_ring(p, r, n),
+        "repeat the first position at the end of the ring; if the export was cut short, export it again",
+    )
+    .at(place.to_string())
+}
+
 /// GeoJSON rings must be closed (RFC 7946 §3.1.6: first and last
 /// positions equal, at least four positions); geo would close them
 /// silently, hiding a truncated export.
@@ -142,23 +188,45 @@ fn check_rings(path: &Path, place: &str, g: &geojson::Geometry) -> Result<(), In
         geojson::GeometryValue::MultiPolygon { coordinates } => coordinates.iter().collect(),
         _ => Vec::new(),
     };
-    for (k, ring) in polygons.iter().flat_map(|p| p.iter()).enumerate() {
-        let closed = ring.len() >= 4
-            && ring.first().map(|p| p.as_slice()) == ring.last().map(|p| p.as_slice());
-        if !closed {
-            return Err(InputError::new(
-                path,
-                format!(
-                    "ring {} is not closed ({} positions; the first must equal the last, and a ring needs at least four)",
-                    k + 1,
-                    ring.len()
-                ),
-                "repeat the first position at the end of the ring; if the export was cut short, export it again",
-            )
-            .at(place.to_string()));
-        }
+    let rings = polygons.iter().map(|p| {
+        p.iter()
+            .map(|ring| ring.as_slice())
+            .collect::<Vec<&[geojson::Position]>>()
+    });
+    match first_unclosed(rings) {
+        Some(at) => Err(unclosed_error(path, place, at)),
+        None => Ok(()),
     }
-    Ok(())
+}
+
+/// WKT rings must be closed as well (OGC 06-103r4, Simple Features §6.1.11:
+/// a ring is a closed simple curve; WKT writes the closing point): the
+/// same refusal as for GeoJSON, not the silent closing of the conversion.
+fn check_wkt_rings(path: &Path, w: &wkt::Wkt<f64>) -> Result<(), InputError> {
+    let polygons: Vec<&wkt::types::Polygon<f64>> = match w {
+        wkt::Wkt::Polygon(p) => vec![p],
+        wkt::Wkt::MultiPolygon(mp) => mp.polygons().iter().collect(),
+        _ => Vec::new(),
+    };
+    let xy = |c: &wkt::types::Coord<f64>| (c.x, c.y);
+    let rings: Vec<Vec<Vec<(f64, f64)>>> = polygons
+        .iter()
+        .map(|p| {
+            p.rings()
+                .iter()
+                .map(|r| r.coords().iter().map(xy).collect())
+                .collect()
+        })
+        .collect();
+    let slices = rings.iter().map(|p| {
+        p.iter()
+            .map(|r| r.as_slice())
+            .collect::<Vec<&[(f64, f64)]>>()
+    });
+    match first_unclosed(slices) {
+        Some(at) => Err(unclosed_error(path, "WKT text", at)),
+        None => Ok(()),
+    }
 }
 
 fn read_geojson(path: &Path, text: &str, stem: String) -> Result<RawBoundary, InputError> {
@@ -166,6 +234,7 @@ fn read_geojson(path: &Path, text: &str, stem: String) -> Result<RawBoundary, In
         InputError::new(path, format!("not valid GeoJSON ({e})"), "check the file against RFC 7946; polygon rings need at least four positions, first = last")
     })?;
     let declared = declared_system(legacy_crs(&gj));
+    let stated = legacy_crs(&gj).is_some();
     let features: Vec<(String, Option<geojson::Geometry>, Option<String>)> = match gj {
         GeoJson::FeatureCollection(fc) => fc
             .features
@@ -212,23 +281,28 @@ fn read_geojson(path: &Path, text: &str, stem: String) -> Result<RawBoundary, In
         name,
         shape: MultiPolygon(polys),
         declared,
+        stated,
     })
 }
 
 fn read_wkt(path: &Path, text: &str, stem: String) -> Result<RawBoundary, InputError> {
-    let g = Geometry::<f64>::try_from_wkt_str(text.trim()).map_err(|e| {
+    let unreadable = |e: &dyn std::fmt::Display| {
         InputError::new(
             path,
             format!("not readable as WKT ({e})"),
             "write the boundary as POLYGON ((x y, x y, ...)) or MULTIPOLYGON (...), or use GeoJSON",
         )
-    })?;
+    };
+    let w = wkt::Wkt::<f64>::from_str(text.trim()).map_err(|e| unreadable(&e))?;
+    check_wkt_rings(path, &w)?;
+    let g = Geometry::<f64>::try_from(w).map_err(|e| unreadable(&e))?;
     let mut polys = Vec::new();
     polygons_of(path, "WKT text", g, &mut polys)?;
     Ok(RawBoundary {
         name: stem,
         shape: MultiPolygon(polys),
         declared: None,
+        stated: false,
     })
 }
 
@@ -251,7 +325,8 @@ pub fn read_named_boundaries(path: &Path, field: &str) -> Result<Vec<RawBoundary
             "put one Polygon/MultiPolygon feature per site in a FeatureCollection",
         ));
     };
-    let declared = declared_system(fc.foreign_members.as_ref().and_then(|m| m.get("crs")));
+    let crs = fc.foreign_members.as_ref().and_then(|m| m.get("crs"));
+    let (declared, stated) = (declared_system(crs), crs.is_some());
     let mut out: Vec<RawBoundary> = Vec::new();
     for (i, f) in fc.features.into_iter().enumerate() {
         let place = format!("feature {}", i + 1);
@@ -271,7 +346,7 @@ pub fn read_named_boundaries(path: &Path, field: &str) -> Result<Vec<RawBoundary
         check_rings(path, &place, &geometry)?;
         let mut polys = Vec::new();
         geojson_polygons(path, &place, geometry, &mut polys)?;
-        add_part(&mut out, name, polys, declared);
+        add_part(&mut out, name, polys, declared, stated);
     }
     if out.is_empty() {
         return Err(InputError::new(
@@ -332,5 +407,51 @@ mod tests {
         let e = read_named_boundaries(f.path(), "name").unwrap_err();
         assert!(e.what.contains("not closed"), "{}", e.what);
         assert_eq!(e.location.as_deref(), Some("feature 2"));
+    }
+
+    /// Issue 20: an unclosed WKT ring is refused like an unclosed GeoJSON
+    /// ring, naming the polygon and the ring, instead of being closed
+    /// silently by the conversion (OGC Simple Features: a ring is closed).
+    #[test]
+    fn wkt_refuses_unclosed_rings_like_geojson() {
+        let f = file(".wkt", "POLYGON ((0 0, 10 0, 10 10, 0 10))");
+        let e = read_boundary(f.path()).unwrap_err();
+        assert_eq!(e.location.as_deref(), Some("WKT text"));
+        assert!(
+            e.what
+                .contains("polygon 1, ring 1 (the outer ring) is not closed (4 positions"),
+            "{}",
+            e.what
+        );
+        let f = file(
+            ".wkt",
+            "MULTIPOLYGON (((0 0, 10 0, 10 10, 0 10, 0 0)), ((20 0, 30 0, 30 10, 20 10, 20 0), (22 2, 24 2, 24 4, 22 4)))",
+        );
+        let e = read_boundary(f.path()).unwrap_err();
+        assert!(
+            e.what.contains("polygon 2, ring 2 (hole 1) is not closed"),
+            "{}",
+            e.what
+        );
+        // Closed but with three positions: not a ring either.
+        let f = file(".wkt", "POLYGON ((0 0, 10 0, 0 0))");
+        assert!(
+            read_boundary(f.path())
+                .unwrap_err()
+                .what
+                .contains("at least four")
+        );
+        // The same ring as GeoJSON gets the same words.
+        let g = file(
+            ".geojson",
+            r#"{"type":"Polygon","coordinates":[[[0,0],[10,0],[10,10],[0,10]]]}"#,
+        );
+        let e = read_boundary(g.path()).unwrap_err();
+        assert!(
+            e.what
+                .contains("polygon 1, ring 1 (the outer ring) is not closed (4 positions"),
+            "{}",
+            e.what
+        );
     }
 }

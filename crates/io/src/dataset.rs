@@ -6,7 +6,10 @@
 //! (a boundary file that declares a different one is an error, not a guess).
 
 use crate::boundary::{RawBoundary, read_boundary};
-use crate::coords::{CoordChoice, CoordSystem, Projection, in_lat_range, in_lon_range};
+use crate::coords::{
+    Basis, CoordChoice, CoordSystem, MEAN_RADIUS_M, Projection, in_lat_range, in_lon_range,
+    plane_distortion, spherical_centre,
+};
 use crate::error::InputError;
 use crate::geopackage::{self, GpkgChoice, is_geopackage};
 use crate::points::read_points;
@@ -73,6 +76,9 @@ pub struct Dataset {
     pub duplicates_dropped: bool,
     /// The coordinate system of the input.
     pub system: CoordSystem,
+    /// How the points were read and why, in words for the terminal:
+    /// "projected coordinates in m (the CSV columns are named x,y)".
+    pub reading: String,
     /// The projection applied, for lon/lat input.
     pub projection: Option<Projection>,
     /// Distance unit of `points` (metre for projected lon/lat).
@@ -179,13 +185,7 @@ impl Dataset {
                         .at(place.to_string()));
                     }
                 }
-                let projection = centred_projection(&raw.coords).ok_or_else(|| {
-                    InputError::new(
-                        points_file,
-                        "cannot set up the equal-area projection for these points",
-                        "check that the coordinates are lon/lat in degrees",
-                    )
-                })?;
+                let projection = equal_area_plane(points_file, &raw.coords, &mut warnings)?;
                 let mut planar = Vec::with_capacity(n_read);
                 for (c, place) in raw.coords.iter().zip(&raw.places) {
                     planar.push(projection.forward(c[0], c[1]).ok_or_else(|| {
@@ -198,6 +198,7 @@ impl Dataset {
                         options.unit
                     ));
                 }
+                warnings.extend(whole_degrees_far_apart(points_file, &raw.coords, &planar));
                 (planar, Some(projection), "m".to_string())
             }
         };
@@ -237,6 +238,16 @@ impl Dataset {
                 "the nearest-neighbour test needs at least two points",
             ));
         }
+        if raw.system == CoordSystem::Projected && file_unit.is_none() && unit == "m" {
+            check_not_degrees(points_file, &raw.basis, &points)?;
+        }
+        let reading = match &projection {
+            None => format!("projected coordinates in {unit} ({})", raw.basis.why),
+            Some(p) => format!(
+                "lon/lat degrees on WGS84 ({}), measured on the equal-area plane centred at lat {}, lon {}",
+                raw.basis.why, p.lat0, p.lon0
+            ),
+        };
 
         let mut boundaries = Vec::new();
         if options.gpkg.boundary_layer.is_some() && !boundary_files.iter().any(|f| is_geopackage(f))
@@ -303,6 +314,7 @@ impl Dataset {
             duplicates,
             duplicates_dropped: options.drop_duplicates,
             system: raw.system,
+            reading,
             projection,
             unit,
             boundaries,
@@ -382,15 +394,116 @@ fn repeated_points(coords: &[[f64; 2]]) -> Vec<bool> {
     repeats
 }
 
-fn centred_projection(coords: &[[f64; 2]]) -> Option<Projection> {
-    let (mut lo_x, mut hi_x, mut lo_y, mut hi_y) = (f64::MAX, f64::MIN, f64::MAX, f64::MIN);
-    for c in coords {
-        lo_x = lo_x.min(c[0]);
-        hi_x = hi_x.max(c[0]);
-        lo_y = lo_y.min(c[1]);
-        hi_y = hi_y.max(c[1]);
+/// The equal-area plane for lon/lat points: centred on their spherical
+/// mean direction, refused when they spread over more than a hemisphere
+/// around it, with a warning when distances at the edge are distorted by
+/// more than 1 % or the pattern is implausibly wide for one study area.
+fn equal_area_plane(
+    file: &Path,
+    coords: &[[f64; 2]],
+    warnings: &mut Vec<String>,
+) -> Result<Projection, InputError> {
+    let split = "analyse each region on its own (split the file), or project the points to a planar system that suits them and pass --coords projected";
+    let Some(centre) = spherical_centre(coords) else {
+        return Err(InputError::new(
+            file,
+            "the points are spread evenly around the globe, so no single equal-area plane can be centred on them",
+            split,
+        ));
+    };
+    let km = |deg: f64| (deg.to_radians() * MEAN_RADIUS_M / 1000.0).round();
+    let stretch = plane_distortion(centre.reach);
+    let at = format!(
+        "{:.1}° ({} km) from their centre at lat {}, lon {}",
+        centre.reach,
+        km(centre.reach),
+        centre.lat,
+        centre.lon
+    );
+    if centre.reach > 90.0 {
+        return Err(InputError::new(
+            file,
+            format!(
+                "the points spread over more than a hemisphere: one lies {at}, where the equal-area plane would distort distances by {:.0} %",
+                100.0 * stretch
+            ),
+            split,
+        ));
     }
-    Projection::centred_at((lo_x + hi_x) / 2.0, (lo_y + hi_y) / 2.0)
+    if centre.reach > 45.0 {
+        warnings.push(format!(
+            "{}: read as lon/lat, the points lie up to {at}: a pattern a quarter of the globe across is implausible for one study area; check that the coordinates are lon/lat degrees (if they are planar, pass --coords projected)",
+            file.display()
+        ));
+    }
+    if stretch > 0.01 {
+        warnings.push(format!(
+            "{}: the points lie up to {at}; there the equal-area plane distorts distances by up to {:.1} % (areas stay exact), so nearest-neighbour distances near the edge of the pattern are off by as much",
+            file.display(),
+            100.0 * stretch
+        ));
+    }
+    Projection::centred_at(centre.lon, centre.lat).ok_or_else(|| {
+        InputError::new(
+            file,
+            "cannot set up the equal-area projection for these points",
+            "check that the coordinates are lon/lat in degrees",
+        )
+    })
+}
+
+/// Lon/lat points whose every coordinate is a whole number and whose
+/// neighbours lie more than 100 km apart on average: the mark of a planar
+/// grid (metres, or plot numbers) read as degrees. A warning, not a stop:
+/// a coarse global grid is possible, but rarely a point pattern.
+fn whole_degrees_far_apart(
+    file: &Path,
+    lonlat: &[[f64; 2]],
+    planar: &[[f64; 2]],
+) -> Option<String> {
+    let whole = |v: f64| v.fract() == 0.0;
+    if !lonlat.iter().all(|c| whole(c[0]) && whole(c[1])) {
+        return None;
+    }
+    let mean = patternproof_core::nearest::nearest_distances(planar)
+        .and_then(|d| patternproof_core::nearest::mean(&d))?;
+    (mean > 100_000.0).then(|| {
+        format!(
+            "{}: every coordinate is a whole number and, read as lon/lat degrees, neighbouring points lie {:.0} km apart on average: if these are planar coordinates (a local grid), pass --coords projected",
+            file.display(),
+            mean / 1000.0
+        )
+    })
+}
+
+/// Stop when numbers read as metres only because of their column names
+/// (or a default) look like degrees: every x within −180..180 and every
+/// y within −90..90. Such a pattern, read as metres, spans at most a few
+/// hundred metres, and is far more often lon/lat with columns named x,y.
+/// `--coords` or a unit other than the default `m` says what they are.
+fn check_not_degrees(file: &Path, basis: &Basis, points: &[[f64; 2]]) -> Result<(), InputError> {
+    if basis.stated
+        || !points
+            .iter()
+            .all(|p| in_lon_range(p[0]) && in_lat_range(p[1]))
+    {
+        return Ok(());
+    }
+    let (mut lo, mut hi) = ([f64::MAX; 2], [f64::MIN; 2]);
+    for p in points {
+        for k in 0..2 {
+            lo[k] = lo[k].min(p[k]);
+            hi[k] = hi[k].max(p[k]);
+        }
+    }
+    Err(InputError::new(
+        file,
+        format!(
+            "the coordinates are read as projected metres because {}, but every x lies within −180..180 and every y within −90..90 (x {}..{}, y {}..{}), as longitude and latitude do",
+            basis.why, lo[0], hi[0], lo[1], hi[1]
+        ),
+        "say which they are: --coords lonlat if they are longitude/latitude in degrees, --coords projected if they are planar metres (or --unit U for another unit)",
+    ))
 }
 
 fn planar_boundary(
@@ -404,6 +517,9 @@ fn planar_boundary(
     match (raw.declared, system) {
         (Some(CoordSystem::Projected), CoordSystem::LonLat) => {
             return Err(InputError::new(file, "the boundary declares projected coordinates but the points are lon/lat", "give the boundary in the same coordinates as the points"));
+        }
+        (Some(CoordSystem::LonLat), CoordSystem::Projected) if choice == CoordChoice::Auto && raw.stated => {
+            return Err(InputError::new(file, "the boundary declares lon/lat coordinates but the points are projected", "give the boundary in the same coordinates as the points (reproject it in a GIS), or say how to read both with --coords"));
         }
         (Some(CoordSystem::LonLat), CoordSystem::Projected) if choice == CoordChoice::Auto => warnings.push(format!(
             "{}: GeoJSON without a 'crs' member is lon/lat by RFC 7946, but the points are projected; the boundary is read in the points' planar coordinates",
@@ -495,5 +611,178 @@ mod repeat_tests {
         assert_eq!(got.iter().filter(|&&r| r).count(), 20_002 - seen.len());
         assert!(seen.len() < 13_600);
         assert_eq!(repeated_points(&[]), Vec::<bool>::new());
+    }
+}
+
+#[cfg(test)]
+#[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
+mod reading_tests {
+    use super::*;
+    use crate::test_files::file;
+
+    fn load(
+        f: &tempfile::NamedTempFile,
+        coords: CoordChoice,
+        unit: &str,
+    ) -> Result<Dataset, InputError> {
+        Dataset::load(
+            f.path(),
+            &[],
+            &LoadOptions {
+                coords,
+                unit: unit.into(),
+                ..LoadOptions::default()
+            },
+        )
+    }
+
+    /// Issue 20, item 2: numbers read as metres only because of their
+    /// column names stop when every x fits −180..180 and every y −90..90;
+    /// `--coords`, a unit other than the default, or a file that states
+    /// its system answers the question. Values by construction.
+    #[test]
+    fn degree_like_numbers_under_planar_names_ask_how_to_read_them() {
+        let small = file(".csv", "x,y\n12.5,45.1\n12.6,45.2\n12.7,45.0\n");
+        let e = load(&small, CoordChoice::Auto, "m").unwrap_err();
+        assert!(
+            e.what.contains("because the CSV columns are named x,y"),
+            "{}",
+            e.what
+        );
+        assert!(e.what.contains("(x 12.5..12.7, y 45..45.2)"), "{}", e.what);
+        assert!(e.hint.contains("--coords lonlat") && e.hint.contains("--coords projected"));
+        let d = load(&small, CoordChoice::Projected, "m").unwrap();
+        assert_eq!(
+            d.reading,
+            "projected coordinates in m (--coords projected was given)"
+        );
+        let d = load(&small, CoordChoice::Auto, "ft").unwrap();
+        assert_eq!(
+            d.reading,
+            "projected coordinates in ft (the CSV columns are named x,y)"
+        );
+        let d = load(&small, CoordChoice::LonLat, "m").unwrap();
+        assert_eq!(d.system, CoordSystem::LonLat);
+        let en = file(".csv", "easting;northing\n1;2\n3;4\n");
+        assert!(
+            load(&en, CoordChoice::Auto, "m")
+                .unwrap_err()
+                .what
+                .contains("named easting,northing")
+        );
+        // One number out of range is enough to read them as planar.
+        let far = file(".csv", "x,y\n12.5,45.1\n12.6,95.2\n");
+        assert!(load(&far, CoordChoice::Auto, "m").is_ok());
+        // A GeoJSON crs member that names a planar system states it.
+        let stated = file(
+            ".geojson",
+            r#"{"type":"FeatureCollection","crs":{"type":"name","properties":{"name":"local survey grid, metres"}},"features":[
+              {"type":"Feature","properties":{},"geometry":{"type":"Point","coordinates":[1,2]}},
+              {"type":"Feature","properties":{},"geometry":{"type":"Point","coordinates":[3,5]}}]}"#,
+        );
+        let d = load(&stated, CoordChoice::Auto, "m").unwrap();
+        assert_eq!(
+            d.reading,
+            "projected coordinates in m (the GeoJSON crs member names `local survey grid, metres`)"
+        );
+    }
+
+    /// A boundary that states lon/lat beside projected points is refused;
+    /// GeoJSON that is lon/lat only by the RFC 7946 default is read in the
+    /// points' plane with a warning (most local-grid exports carry no crs).
+    #[test]
+    fn stated_lonlat_boundaries_do_not_meet_projected_points() {
+        let pts = file(
+            ".csv",
+            "x,y\n512000,5600000\n512010,5600000\n512000,5600010\n",
+        );
+        let ring = "[[511990,5599990],[512020,5599990],[512020,5600020],[511990,5600020],[511990,5599990]]";
+        let stated = file(
+            ".geojson",
+            &format!(
+                r#"{{"type":"Polygon","crs":{{"type":"name","properties":{{"name":"EPSG:4326"}}}},"coordinates":[{ring}]}}"#
+            ),
+        );
+        let by_default = file(
+            ".geojson",
+            &format!(r#"{{"type":"Polygon","coordinates":[{ring}]}}"#),
+        );
+        let load = |b: &tempfile::NamedTempFile| {
+            Dataset::load(
+                pts.path(),
+                &[b.path().to_path_buf()],
+                &LoadOptions::default(),
+            )
+        };
+        let e = load(&stated).unwrap_err();
+        assert!(
+            e.what
+                .contains("declares lon/lat coordinates but the points are projected"),
+            "{e}"
+        );
+        let d = load(&by_default).unwrap();
+        assert!(
+            d.warnings.iter().any(|w| w.contains("RFC 7946")),
+            "{:?}",
+            d.warnings
+        );
+    }
+
+    /// Issue 20, items 1 and 3: lon/lat across ±180° is centred there and
+    /// says so; whole-number "degrees" hundreds of km apart get a warning;
+    /// points beyond a hemisphere from their centre are refused.
+    #[test]
+    fn lonlat_readings_are_centred_and_checked() {
+        let across = file(
+            ".csv",
+            "lon,lat\n179.95,-16.0\n-179.95,-16.0\n179.99,-16.05\n",
+        );
+        let d = load(&across, CoordChoice::Auto, "m").unwrap();
+        let p = d.projection.as_ref().unwrap();
+        assert!(
+            p.lon0.abs() > 179.9 && (p.lat0 + 16.0).abs() < 0.05,
+            "{p:?}"
+        );
+        assert!(
+            d.reading.starts_with("lon/lat degrees on WGS84 (the CSV columns are named lon,lat), measured on the equal-area plane centred at lat -16.0"),
+            "{}",
+            d.reading
+        );
+        // 0.1° of longitude at 16° S is about 10.7 km: the two points on
+        // either side of ±180° are neighbours, not a globe apart.
+        let gap = (d.points[0][0] - d.points[1][0]).hypot(d.points[0][1] - d.points[1][1]);
+        assert!((gap - 10_700.0).abs() < 100.0, "{gap}");
+        assert!(d.warnings.is_empty(), "{:?}", d.warnings);
+
+        let grid = file(
+            ".geojson",
+            r#"{"type":"FeatureCollection","features":[
+              {"type":"Feature","properties":{},"geometry":{"type":"Point","coordinates":[1,1]}},
+              {"type":"Feature","properties":{},"geometry":{"type":"Point","coordinates":[4,2]}},
+              {"type":"Feature","properties":{},"geometry":{"type":"Point","coordinates":[2,7]}}]}"#,
+        );
+        let d = load(&grid, CoordChoice::Auto, "m").unwrap();
+        assert!(
+            d.reading
+                .contains("(GeoJSON without a crs member is lon/lat by RFC 7946)")
+        );
+        assert!(
+            d.warnings
+                .iter()
+                .any(|w| w.contains("every coordinate is a whole number")),
+            "{:?}",
+            d.warnings
+        );
+
+        let globe = file(".csv", "lon,lat\n0,0\n120,0\n-120,0\n0,60\n");
+        let e = load(&globe, CoordChoice::Auto, "m").unwrap_err();
+        assert!(e.what.contains("more than a hemisphere"), "{}", e.what);
+        let even = file(".csv", "lon,lat\n0,0\n180,0\n");
+        let e = load(&even, CoordChoice::Auto, "m").unwrap_err();
+        assert!(
+            e.what.contains("spread evenly around the globe"),
+            "{}",
+            e.what
+        );
     }
 }

@@ -21,7 +21,7 @@
 //!   the rows whose column equals the value (bound as a query parameter).
 
 use crate::boundary::{RawBoundary, add_part};
-use crate::coords::{CoordChoice, CoordSystem, Projection};
+use crate::coords::{Basis, CoordChoice, CoordSystem, Projection};
 use crate::error::InputError;
 use crate::points::{Place, RawPoints, epsg_is_lonlat};
 use geo::MultiPolygon;
@@ -102,6 +102,7 @@ struct Decision {
     system: CoordSystem,
     unit: Option<String>,
     warning: Option<String>,
+    basis: Basis,
 }
 
 fn gpkg_error(path: &Path, e: GpkgError, flag: &str) -> InputError {
@@ -118,6 +119,9 @@ fn gpkg_error(path: &Path, e: GpkgError, flag: &str) -> InputError {
         }
         GpkgError::NoSuchLayer { .. } => format!("choose one of the layers listed with {flag} NAME"),
         GpkgError::NoSuchColumn { .. } => "use one of the columns listed (names are case-sensitive)".to_string(),
+        GpkgError::TooManySteps { .. } => {
+            "export the layer as a plain table (in a GIS: save it to a new GeoPackage) and read that file; a view is read only while its query ends in time".to_string()
+        }
         GpkgError::Geometry { .. } => {
             "repair or delete that feature in a GIS, or export the layer again".to_string()
         }
@@ -175,15 +179,17 @@ fn decide(
     srs: Option<&SpatialRef>,
     choice: CoordChoice,
 ) -> Result<Decision, InputError> {
-    let plain = |system| Decision {
-        system,
-        unit: None,
-        warning: None,
-    };
-    match choice {
-        CoordChoice::Projected => return Ok(plain(CoordSystem::Projected)),
-        CoordChoice::LonLat => return Ok(plain(CoordSystem::LonLat)),
-        CoordChoice::Auto => {}
+    if let Some(basis) = Basis::forced(choice) {
+        let system = match choice {
+            CoordChoice::LonLat => CoordSystem::LonLat,
+            _ => CoordSystem::Projected,
+        };
+        return Ok(Decision {
+            system,
+            unit: None,
+            warning: None,
+            basis,
+        });
     }
     let unknown = |what: String| {
         InputError::new(
@@ -199,6 +205,12 @@ fn decide(
             layer.srs_id
         )));
     };
+    let named = |system| Decision {
+        system,
+        unit: None,
+        warning: None,
+        basis: Basis::stated(format!("layer `{}` is in {}", layer.name, srs.label())),
+    };
     let undefined = srs.definition.trim().eq_ignore_ascii_case("undefined");
     if srs.srs_id == -1
         || (undefined && srs.organization.eq_ignore_ascii_case("NONE") && srs.srs_id != 0)
@@ -212,13 +224,23 @@ fn decide(
                 layer.name,
                 srs.srs_id
             )),
+            basis: Basis::inferred(format!(
+                "layer `{}` is in the undefined Cartesian system (srs_id {})",
+                layer.name, srs.srs_id
+            )),
         });
     }
     if srs.srs_id == 0 {
-        return Ok(plain(CoordSystem::LonLat));
+        return Ok(Decision {
+            basis: Basis::inferred(format!(
+                "layer `{}` is in the undefined geographic system (srs_id 0)",
+                layer.name
+            )),
+            ..named(CoordSystem::LonLat)
+        });
     }
     match kind_of(&srs.definition) {
-        Some(CrsKind::Geographic { degrees: true, .. }) => Ok(plain(CoordSystem::LonLat)),
+        Some(CrsKind::Geographic { degrees: true, .. }) => Ok(named(CoordSystem::LonLat)),
         Some(CrsKind::Geographic { degrees: false, unit }) => Err(InputError::new(
             path,
             format!(
@@ -230,18 +252,16 @@ fn decide(
         )
         .at(format!("layer `{}`", layer.name))),
         Some(CrsKind::Projected { unit: Some(unit) }) => Ok(Decision {
-            system: CoordSystem::Projected,
             unit: Some(unit),
-            warning: None,
+            ..named(CoordSystem::Projected)
         }),
         Some(CrsKind::Projected { unit: None }) => Ok(Decision {
-            system: CoordSystem::Projected,
-            unit: None,
             warning: Some(format!(
                 "{}: the definition of {} names no linear unit; distances are labelled with --unit",
                 path.display(),
                 srs.label()
             )),
+            ..named(CoordSystem::Projected)
         }),
         Some(CrsKind::Other(keyword)) => Err(unknown(format!(
             "the layer is in {}, a {keyword} system that is neither lon/lat nor projected",
@@ -250,12 +270,11 @@ fn decide(
         None => {
             let code = u32::try_from(srs.organization_id).ok();
             match (srs.organization.eq_ignore_ascii_case("EPSG"), code.and_then(epsg_is_lonlat)) {
-                (true, Some(true)) => Ok(plain(CoordSystem::LonLat)),
+                (true, Some(true)) => Ok(named(CoordSystem::LonLat)),
                 // Every projected code on that list is metre-based.
                 (true, Some(false)) => Ok(Decision {
-                    system: CoordSystem::Projected,
                     unit: Some("m".into()),
-                    warning: None,
+                    ..named(CoordSystem::Projected)
                 }),
                 _ => Err(unknown(format!(
                     "the layer is in {}, which patternproof cannot identify as lon/lat or projected (its definition is `{}`)",
@@ -374,6 +393,7 @@ pub fn read_points(
             coords,
             places,
             system: decision.system,
+            basis: decision.basis,
             field_values: field.map(|_| values),
             skipped_empty: skipped,
         },
@@ -392,6 +412,8 @@ struct BoundaryLayer {
     /// `None` under a forced `--coords`: that choice describes the points,
     /// and the boundary follows them.
     declared: Option<CoordSystem>,
+    /// Whether the layer's row names a system (not srs_id 0 or −1).
+    stated: bool,
     columns: Vec<String>,
 }
 
@@ -403,9 +425,12 @@ fn open_boundary_layer(
     let gpkg = GeoPackage::open(path).map_err(|e| gpkg_error(path, e, "--boundary-layer"))?;
     let layer = choose_layer(path, &gpkg, layer_name, "--boundary-layer")?;
     let srs = srs_of(path, &gpkg, &layer)?;
-    let declared = match choice {
-        CoordChoice::Auto => Some(decide(path, &layer, srs.as_ref(), choice)?.system),
-        _ => None,
+    let (declared, stated) = match choice {
+        CoordChoice::Auto => {
+            let d = decide(path, &layer, srs.as_ref(), choice)?;
+            (Some(d.system), d.basis.stated)
+        }
+        _ => (None, false),
     };
     let (columns, _) = gpkg
         .columns(&layer)
@@ -415,6 +440,7 @@ fn open_boundary_layer(
         layer,
         srs,
         declared,
+        stated,
         columns,
     })
 }
@@ -490,6 +516,7 @@ pub fn read_boundary(
             name,
             shape: MultiPolygon(polygons),
             declared: b.declared,
+            stated: b.stated,
         },
         layer: b.layer.name,
         srs: b.srs,
@@ -535,7 +562,7 @@ pub fn read_named_boundaries(
             )
             .at(b.place(f.fid)));
         };
-        add_part(&mut out, name, polygons.0.clone(), b.declared);
+        add_part(&mut out, name, polygons.0.clone(), b.declared, b.stated);
     }
     if out.is_empty() {
         return Err(b.no_polygon(path, features.len()));

@@ -7,7 +7,7 @@
 //! | [`error`] | one error type that names the file, the place, what is wrong and what to do |
 //! | [`points`] | CSV and GeoJSON point readers |
 //! | [`boundary`] | GeoJSON and WKT polygon readers, with validity checks |
-//! | [`coords`] | the projected / lon-lat decision and the Lambert azimuthal equal-area projection |
+//! | [`coords`] | the projected / lon-lat decision, why it was made, and the Lambert azimuthal equal-area projection centred on the points' mean direction |
 //! | [`geopackage`] | GeoPackage point and polygon layers, their coordinate system, `--where` |
 //! | [`dataset`] | loads points and boundaries together into one planar data set |
 //!

@@ -7,7 +7,7 @@
 //! the place it came from (`line 12`, `feature 3`) so later checks can point
 //! back into the file.
 
-use crate::coords::{CoordChoice, CoordSystem};
+use crate::coords::{Basis, CoordChoice, CoordSystem};
 use crate::error::{InputError, cannot_read, read_text};
 use geojson::{GeoJson, GeometryValue};
 use patternproof_gpkg::Filter;
@@ -88,6 +88,8 @@ pub struct RawPoints {
     pub places: Vec<Place>,
     /// How the coordinates are to be read.
     pub system: CoordSystem,
+    /// Why they are read so.
+    pub basis: Basis,
     /// One value per point of the requested attribute field, when asked for.
     pub field_values: Option<Vec<String>>,
     /// Features without geometry, skipped.
@@ -240,6 +242,12 @@ fn read_csv_points<R: std::io::Read>(
             .at("line 1"));
         }
     };
+    let basis = Basis::forced(choice).unwrap_or_else(|| {
+        Basis::inferred(format!(
+            "the CSV columns are named {},{}",
+            headers[cols.0], headers[cols.1]
+        ))
+    });
     let field_col = match field {
         Some(name) => Some(
             find(&headers, &[name.to_ascii_lowercase().as_str()]).ok_or_else(|| {
@@ -329,6 +337,7 @@ fn read_csv_points<R: std::io::Read>(
         coords,
         places,
         system,
+        basis,
         field_values: field_col.map(|_| values),
         skipped_empty: 0,
     })
@@ -491,6 +500,11 @@ fn read_geojson_points(
         )
     })?;
     let crs = legacy_crs(&gj);
+    let basis = match (Basis::forced(choice), crs) {
+        (Some(forced), _) => forced,
+        (None, None) => Basis::inferred("GeoJSON without a crs member is lon/lat by RFC 7946"),
+        (None, Some(c)) => Basis::stated(format!("the GeoJSON crs member names `{}`", crs_name(c))),
+    };
     let system = match (choice, declared_lonlat(crs)) {
         (CoordChoice::Projected, _) => CoordSystem::Projected,
         (CoordChoice::LonLat, _) => CoordSystem::LonLat,
@@ -610,6 +624,7 @@ fn read_geojson_points(
         coords,
         places,
         system,
+        basis,
         field_values: field.map(|_| values),
         skipped_empty: skipped,
     })

@@ -271,10 +271,20 @@ fn a_hostile_layer_name_is_read_and_changes_nothing() {
     point_layer(&c, HOSTILE, -1, &grid(-1));
     drop(c);
     let before = std::fs::read(&path).unwrap();
-    let d = Dataset::load(&path, &[], &options(Some(HOSTILE), None)).unwrap();
+    // srs_id −1 is the standard's undefined Cartesian system: planar, unit
+    // from --unit. Under the default `m` these small numbers would read as
+    // metres by default only, and they fit the lon/lat ranges: a stop.
+    let e = Dataset::load(&path, &[], &options(Some(HOSTILE), None)).unwrap_err();
+    assert!(
+        e.what.contains("undefined Cartesian system (srs_id -1)")
+            && e.what.contains("as longitude and latitude do"),
+        "{e}"
+    );
+    let mut in_feet = options(Some(HOSTILE), None);
+    in_feet.unit = "ft".into();
+    let d = Dataset::load(&path, &[], &in_feet).unwrap();
     assert_eq!(d.points.len(), 12);
-    // srs_id −1 is the standard's undefined Cartesian system: planar, unit from --unit.
-    assert_eq!(d.system, CoordSystem::Projected);
+    assert_eq!((d.system, d.unit.as_str()), (CoordSystem::Projected, "ft"));
     assert!(d.warnings.iter().any(|w| w.contains("undefined Cartesian")));
     // A name that merely contains SQL is not a layer.
     let e = Dataset::load(&path, &[], &options(Some("pts\" OR 1=1 --"), None)).unwrap_err();
@@ -301,6 +311,8 @@ fn sql_in_a_where_value_is_only_a_value() {
     let before = std::fs::read(&path).unwrap();
     let run = |w: &str| {
         let mut o = options(Some("pts"), None);
+        // Small planar numbers in an undefined system: say the unit.
+        o.unit = "ft".into();
         o.gpkg.filter = Some(parse_filter(w).unwrap());
         Dataset::load(&path, &[], &o)
     };
