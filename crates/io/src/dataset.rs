@@ -750,7 +750,17 @@ mod reading_tests {
         );
         // 0.1° of longitude at 16° S is about 10.7 km: the two points on
         // either side of ±180° are neighbours, not a globe apart.
-        let gap = (d.points[0][0] - d.points[1][0]).hypot(d.points[0][1] - d.points[1][1]);
+        // (The points are in canonical order; their places find lines 2, 3.)
+        let at = |line: u64| {
+            let k = d
+                .places
+                .iter()
+                .position(|p| *p == crate::points::Place::Line(line))
+                .unwrap();
+            d.points[k]
+        };
+        let (a, b) = (at(2), at(3));
+        let gap = (a[0] - b[0]).hypot(a[1] - b[1]);
         assert!((gap - 10_700.0).abs() < 100.0, "{gap}");
         assert!(d.warnings.is_empty(), "{:?}", d.warnings);
 
