@@ -14,7 +14,7 @@ use crate::error::InputError;
 use crate::geopackage::{self, GpkgChoice, is_geopackage};
 use crate::points::read_points;
 use geo::Intersects;
-use geo::{Area, MapCoords, MultiPolygon, Validation};
+use geo::{Area, MapCoords, MultiPolygon};
 use patternproof_core::Xy;
 use patternproof_core::order::{canonical_permutation, permute};
 use patternproof_gpkg::SpatialRef;
@@ -154,6 +154,12 @@ impl Dataset {
                 "add at least two points (the nearest-neighbour test needs pairs)",
             ));
         }
+        crate::magnitude::check_points(
+            points_file,
+            &raw.coords,
+            &raw.places,
+            raw.system == CoordSystem::Projected,
+        )?;
         // Which points repeat an earlier one exactly, found before the
         // coordinates move on: one flag per point, no copy of the points.
         let repeats = repeated_points(&raw.coords);
@@ -506,6 +512,25 @@ fn check_not_degrees(file: &Path, basis: &Basis, points: &[[f64; 2]]) -> Result<
     ))
 }
 
+/// The shape without `EMPTY` members (WKT `MULTIPOLYGON (EMPTY, ...)`, a
+/// hole written `EMPTY`, GeoJSON's empty coordinate arrays): they cover
+/// nothing, so leaving them out reads the file exactly, and nothing
+/// downstream has to expect a ring without vertices.
+fn without_empty_parts(shape: MultiPolygon<f64>) -> MultiPolygon<f64> {
+    MultiPolygon(
+        shape
+            .0
+            .into_iter()
+            .filter(|p| !p.exterior().0.is_empty())
+            .map(|p| {
+                let (shell, holes) = p.into_inner();
+                let holes = holes.into_iter().filter(|h| !h.0.is_empty()).collect();
+                geo::Polygon::new(shell, holes)
+            })
+            .collect(),
+    )
+}
+
 fn planar_boundary(
     file: &Path,
     raw: RawBoundary,
@@ -527,8 +552,9 @@ fn planar_boundary(
         )),
         _ => {}
     }
+    crate::magnitude::check_boundary(file, &raw.shape, projection.is_none())?;
     let shape = match projection {
-        None => raw.shape,
+        None => without_empty_parts(raw.shape),
         Some(proj) => {
             let bad = std::cell::Cell::new(None);
             let bad_ref = &bad;
@@ -556,10 +582,10 @@ fn planar_boundary(
                     "give the boundary in lon/lat degrees like the points",
                 ));
             }
-            mapped
+            without_empty_parts(mapped)
         }
     };
-    if let Err(problem) = shape.check_validation() {
+    if let Err(problem) = crate::validity::check(&shape) {
         return Err(InputError::new(
             file,
             format!("the boundary is not a valid polygon: {problem}"),

@@ -186,6 +186,22 @@ fn find(headers: &[String], names: &[&str]) -> Option<usize> {
     headers.iter().position(|h| names.contains(&h.as_str()))
 }
 
+/// A column the reader uses whose name (compared as read: trimmed,
+/// lower-case) appears again in the header, as (name, first, second) with
+/// 1-based column numbers. The reader would take the first silently.
+fn repeated_name(headers: &[String], used: &[usize]) -> Option<(String, usize, usize)> {
+    used.iter().find_map(|&c| {
+        let name = &headers[c];
+        let mut at = headers
+            .iter()
+            .enumerate()
+            .filter(|(_, h)| *h == name)
+            .map(|(k, _)| k + 1);
+        let first = at.next()?;
+        at.next().map(|second| (name.clone(), first, second))
+    })
+}
+
 fn read_csv_points<R: std::io::Read>(
     path: &Path,
     stream: R,
@@ -242,6 +258,7 @@ fn read_csv_points<R: std::io::Read>(
             .at("line 1"));
         }
     };
+    let mut used = vec![cols.0, cols.1];
     let basis = Basis::forced(choice).unwrap_or_else(|| {
         Basis::inferred(format!(
             "the CSV columns are named {},{}",
@@ -279,6 +296,18 @@ fn read_csv_points<R: std::io::Read>(
         )),
         None => None,
     };
+    used.extend(field_col);
+    used.extend(filter_col.map(|(c, _)| c));
+    if let Some((name, first, second)) = repeated_name(&headers, &used) {
+        return Err(InputError::new(
+            path,
+            format!(
+                "the column name '{name}' appears twice (columns {first} and {second}), so which one to read cannot be told"
+            ),
+            "rename or remove one of the two columns",
+        )
+        .at("line 1"));
+    }
     let mut rows = 0usize;
 
     let lenient_decimal_comma = delimiter != b',';
@@ -644,6 +673,30 @@ mod tests {
         assert_eq!(p.system, CoordSystem::Projected);
         assert_eq!(p.places[1], Place::Line(3));
         assert_eq!(p.places[1].to_string(), "line 3");
+    }
+
+    /// A used column whose name appears twice (case aside) is refused with
+    /// both column numbers; a repeated name the reader does not use is not.
+    #[test]
+    fn csv_refuses_a_repeated_coordinate_or_filter_column() {
+        let dup = file(".csv", "x,X,y\n1,2,3\n4,5,6\n");
+        let e = read_points(dup.path(), CoordChoice::Auto, None, None).unwrap_err();
+        assert_eq!(e.location.as_deref(), Some("line 1"));
+        assert!(
+            e.what.contains("'x' appears twice (columns 1 and 2)"),
+            "{}",
+            e.what
+        );
+        let year = file(".csv", "x,y,year,year\n1,2,2023,2024\n");
+        let e = read_points(
+            year.path(),
+            CoordChoice::Auto,
+            None,
+            Some(&keep("year", "2024")),
+        )
+        .unwrap_err();
+        assert!(e.what.contains("'year' appears twice (columns 3 and 4)"));
+        assert!(read_points(year.path(), CoordChoice::Auto, None, None).is_ok());
     }
 
     fn keep(field: &str, value: &str) -> Filter {
