@@ -447,7 +447,7 @@ fn check_target(
             "look through the folder and delete it yourself, or choose a new --out folder",
         )),
         manifest::Contents::NoMarker => Err(refuse(
-            "the folder exists and does not hold a patternproof report (it has no .patternproof file list)".into(),
+            "the folder exists and does not hold an earlier report (it has no .patternproof file list)".into(),
             "choose a new --out folder, or empty this one",
         )),
     }

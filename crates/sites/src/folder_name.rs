@@ -136,7 +136,7 @@ mod tests {
         // so it cannot take it), names that differ in case only, and the
         // same name twice.
         let f = site_folders(&["plot_3_b~ea9d5a5aea", "plot 3/b", "Plot", "plot", "plot"]);
-        assert_eq!(f[0], "plot_3_b_ea9d5a5aea~bb8464b846");
+        assert_eq!(f[0], "plot_3_b_ea9d5a5aea~50342a17db");
         assert_eq!(f[1], "plot_3_b~ea9d5a5aea");
         assert_eq!(f[2], "Plot");
         assert_eq!(f[3], "plot~0f3850ab36");
