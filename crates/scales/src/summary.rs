@@ -97,14 +97,15 @@ pub fn table_rows(run: &ScalesRun) -> Vec<[String; 7]> {
 
 /// `scales.md`.
 pub fn markdown(run: &ScalesRun) -> String {
+    use patternproof_report::markdown_escape::{code, prose, text};
     let mut s = String::from("# Multi-scale audit: L(r) − r across windows\n\n");
     let _ = writeln!(
         s,
         "{} points; distances up to {} {} ({}), {} grid steps; {} CSR simulations per window, seed {}, α = {}.\n",
         run.n_points,
         distance(run.rmax),
-        run.unit,
-        run.rmax_rule,
+        text(&run.unit),
+        prose(&run.rmax_rule),
         run.r.len(),
         run.sims,
         run.seed,
@@ -112,7 +113,12 @@ pub fn markdown(run: &ScalesRun) -> String {
     );
     s.push_str("## Verdict\n\n");
     for v in &run.verdicts {
-        let _ = writeln!(s, "- {} correction: {}.", v.correction.as_str(), v.sentence);
+        let _ = writeln!(
+            s,
+            "- {} correction: {}.",
+            v.correction.as_str(),
+            prose(&v.sentence)
+        );
     }
     if run.verdicts.is_empty() {
         s.push_str("- no envelope test was run (`--sims 0`).\n");
@@ -122,16 +128,22 @@ pub fn markdown(run: &ScalesRun) -> String {
     for r in table_rows(run) {
         let _ = writeln!(
             s,
-            "| `{}` | {} | {} | {} | {} | {} | {} |",
-            r[0], r[1], r[2], r[3], r[4], r[5], r[6]
+            "| {} | {} | {} | {} | {} | {} | {} |",
+            code(&r[0]),
+            text(&r[1]),
+            text(&r[2]),
+            text(&r[3]),
+            text(&r[4]),
+            text(&r[5]),
+            prose(&r[6])
         );
     }
     for k in &run.skipped {
-        let _ = writeln!(s, "\nSkipped `{}`: {}.", k.window, k.reason);
+        let _ = writeln!(s, "\nSkipped {}: {}.", code(&k.window), prose(&k.reason));
     }
     s.push_str("\n## What this does and does not show\n\n");
     for c in &run.cautions {
-        let _ = writeln!(s, "- {c}");
+        let _ = writeln!(s, "- {}", prose(c));
     }
     s
 }

@@ -13,11 +13,13 @@
 //!
 //! | module | job |
 //! |---|---|
+//! | [`folder_name`] | a safe, unique folder name for each site's report |
 //! | [`pick`] | finds the protocol's window among a site's windows |
 //! | [`render`] | `sites.csv`, `sites.md`, `sites.json` |
 //! | [`forest`] | the site-by-site picture of R and its interval |
 //! | [`page`] | `index.html` of the run |
 
+pub mod folder_name;
 pub mod forest;
 pub mod page;
 pub mod pick;
