@@ -282,3 +282,32 @@ fn audit_with_scales_adds_the_same_k_audit() {
         assert!(joint.join(f).is_file(), "{f}");
     }
 }
+
+/// A boundary whose name holds a comma and a quote keeps `scales.csv` a
+/// table: the window id is quoted as RFC 4180 says, and every row has as
+/// many fields as the header (read back with the `csv` crate).
+#[test]
+fn window_ids_with_commas_are_quoted_in_the_csv() {
+    let dir = tempfile::tempdir().unwrap();
+    let odd = dir.path().join("north, \"upper\" field.wkt");
+    std::fs::write(&odd, "POLYGON((0 0,160 0,160 160,0 160,0 0))").unwrap();
+    let out = dir.path().join("out");
+    let mut args: Vec<&str> = SMALL.to_vec();
+    args.extend(["--boundary", odd.to_str().unwrap()]);
+    let o = scales(&args, &out, "2");
+    assert_eq!(
+        o.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&o.stderr)
+    );
+    let mut reader = csv::Reader::from_path(out.join("scales.csv")).unwrap();
+    let width = reader.headers().unwrap().len();
+    let mut ids = std::collections::BTreeSet::new();
+    for record in reader.records() {
+        let record = record.unwrap();
+        assert_eq!(record.len(), width);
+        ids.insert(record[0].to_string());
+    }
+    assert!(ids.contains("boundary:north, \"upper\" field"), "{ids:?}");
+}

@@ -12,23 +12,39 @@ fn opt(v: Option<f64>) -> String {
 
 /// `scales.csv`: one row per window × correction × distance, with the
 /// envelope columns filled for the tested corrections. Full precision.
+/// Written by the `csv` crate, so a window id with a comma or a quote (a
+/// boundary's name) is quoted as RFC 4180 says.
 pub fn csv(run: &ScalesRun) -> String {
-    let mut s = String::from(
-        "window,correction,r,k,l,l_minus_r,centre,global_lo,global_hi,pointwise_lo,pointwise_hi,departure,erl_lo,erl_hi,erl_departure\n",
-    );
-    for w in &run.windows {
-        for c in &w.curves {
-            let test = w.tests.iter().find(|t| t.correction == c.correction);
+    let mut w = csv::Writer::from_writer(Vec::new());
+    let _ = w.write_record([
+        "window",
+        "correction",
+        "r",
+        "k",
+        "l",
+        "l_minus_r",
+        "centre",
+        "global_lo",
+        "global_hi",
+        "pointwise_lo",
+        "pointwise_hi",
+        "departure",
+        "erl_lo",
+        "erl_hi",
+        "erl_departure",
+    ]);
+    for win in &run.windows {
+        for c in &win.curves {
+            let test = win.tests.iter().find(|t| t.correction == c.correction);
             for (k, r) in run.r.iter().enumerate() {
                 let t = |f: fn(&crate::envelope::EnvelopeTest) -> &Vec<Option<f64>>| {
                     test.map_or(String::new(), |t| opt(f(t)[k]))
                 };
                 let rank = test.and_then(|t| t.rank.as_ref());
-                let _ = writeln!(
-                    s,
-                    "{},{},{r},{},{},{},{},{},{},{},{},{},{},{},{}",
-                    w.id,
-                    c.correction.as_str(),
+                let _ = w.write_record([
+                    win.id.clone(),
+                    c.correction.as_str().to_string(),
+                    format!("{r}"),
                     opt(c.k[k]),
                     opt(c.l[k]),
                     opt(c.l_minus_r[k]),
@@ -41,11 +57,14 @@ pub fn csv(run: &ScalesRun) -> String {
                     rank.map_or(String::new(), |e| opt(e.lo[k])),
                     rank.map_or(String::new(), |e| opt(e.hi[k])),
                     rank.map_or(String::new(), |e| e.departure[k].to_string()),
-                );
+                ]);
             }
         }
     }
-    s
+    // Writing into memory cannot fail; the text is ASCII digits, names
+    // and UTF-8 window ids.
+    let bytes = w.into_inner().unwrap_or_default();
+    String::from_utf8(bytes).unwrap_or_default()
 }
 
 /// The per-window table lines (terminal and Markdown share them).
