@@ -7,6 +7,7 @@
 
 mod args;
 mod audit_cmd;
+mod budget;
 mod density_cmd;
 mod fail;
 mod progress;

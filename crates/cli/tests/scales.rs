@@ -158,6 +158,31 @@ fn bad_input_exits_2_with_advice() {
     assert!(String::from_utf8_lossy(&o.stderr).contains("no-such-file.csv"));
 }
 
+/// Issue 20: `scales --sims 1000000000` used to abort on a 24 GB
+/// allocation. Both global tests need every simulated curve, so the run's
+/// memory is estimated first, and one beyond the machine stops with exit
+/// 2, the estimate and the largest `--sims` that fits.
+#[test]
+fn a_billion_simulations_are_refused_up_front() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("never");
+    let o = scales(&["--sims", "1000000000"], &out, "2");
+    let e = String::from_utf8_lossy(&o.stderr);
+    assert_eq!(o.status.code(), Some(2), "{e}");
+    for words in [
+        "--sims 1000000000: the run needs about",
+        "TiB of memory",
+        "1240 bytes per simulation for the L(r) − r curves",
+        "available",
+        "use at most --sims ",
+        "what to do",
+    ] {
+        assert!(e.contains(words), "`{words}` missing: {e}");
+    }
+    assert!(!e.contains("panicked"), "{e}");
+    assert!(!out.exists(), "a folder was written");
+}
+
 /// `audit --scales` runs the same K audit as `scales` with the audit's
 /// seed and α: identical scales.json bytes, its files in the audit folder,
 /// and a section of index.html with the verdict sentence and the picture.
