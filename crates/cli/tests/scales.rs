@@ -183,6 +183,31 @@ fn a_billion_simulations_are_refused_up_front() {
     assert!(!out.exists(), "a folder was written");
 }
 
+/// Too few simulations for α cannot show a departure; the run says so
+/// and names the fewest that can (⌊α(N + 1)⌋ ≥ 1: 19 at α = 0.05, 99 at
+/// α = 0.01), instead of a bare "no departure".
+#[test]
+fn too_few_simulations_for_alpha_are_named() {
+    let dir = tempfile::tempdir().unwrap();
+    let mut args = SMALL.to_vec();
+    args[1] = "5";
+    let o = scales(&args, &dir.path().join("five"), "1");
+    let stdout = String::from_utf8_lossy(&o.stdout);
+    assert!(o.status.success());
+    assert!(
+        stdout.contains("5 simulations are too few for a test at α = 0.05")
+            && stdout.contains("1/6 = 0.167")
+            && stdout.contains("Use at least 19 (--sims 19)"),
+        "{stdout}"
+    );
+    let o = scales(&SMALL, &dir.path().join("enough"), "1");
+    assert!(!String::from_utf8_lossy(&o.stdout).contains("too few"));
+    args.extend(["--alpha", "0.01"]);
+    args[1] = "98";
+    let o = scales(&args, &dir.path().join("strict"), "1");
+    assert!(String::from_utf8_lossy(&o.stdout).contains("Use at least 99 (--sims 99)"));
+}
+
 /// `audit --scales` runs the same K audit as `scales` with the audit's
 /// seed and α: identical scales.json bytes, its files in the audit folder,
 /// and a section of index.html with the verdict sentence and the picture.

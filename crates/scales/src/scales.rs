@@ -153,6 +153,27 @@ pub fn cautions() -> Vec<String> {
     ]
 }
 
+/// The fewest simulations that can give a global band at `alpha`:
+/// ⌊α(N + 1)⌋ ≥ 1 (the rule of [`crate::envelope`]).
+pub fn fewest_simulations(alpha: f64) -> usize {
+    ((1.0 - 1e-9) / alpha).ceil().max(1.0) as usize - 1
+}
+
+/// A caution when the run simulated too few patterns for any departure
+/// to show at its α: the verdict "no departure" then says nothing.
+fn too_few_simulations(options: &ScalesOptions) -> Option<String> {
+    let fewest = fewest_simulations(options.alpha);
+    (options.sims > 0 && options.sims < fewest && !options.tested.is_empty()).then(|| {
+        format!(
+            "{} simulations are too few for a test at α = {}: the smallest possible p is 1/{} = {:.3}, so no departure can show. Use at least {fewest} (--sims {fewest}).",
+            options.sims,
+            options.alpha,
+            options.sims + 1,
+            1.0 / (options.sims + 1) as f64
+        )
+    })
+}
+
 /// Decide how the translation overlaps of one window are found, and
 /// tabulate them when the run weighs many pairs
 /// ([`translation::worth_a_table`]).
@@ -387,7 +408,10 @@ impl Plan<'_> {
             windows: results,
             skipped,
             verdicts,
-            cautions: cautions(),
+            cautions: cautions()
+                .into_iter()
+                .chain(too_few_simulations(options))
+                .collect(),
         }
     }
 }
