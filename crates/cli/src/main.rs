@@ -8,6 +8,7 @@
 
 mod args;
 mod audit_cmd;
+mod budget;
 mod density_cmd;
 mod fail;
 mod interrupt;

@@ -2,9 +2,12 @@
 
 use crate::args::{CoordArgs, OutArgs, count};
 use crate::audit_cmd::{RenderChoices, input_summary, render};
+use crate::budget;
 use crate::fail::Failure;
+use crate::progress::Progress;
 use crate::protocol_cmd::read_verified;
 use clap::Args;
+use patternproof_audit::simulation;
 use patternproof_audit::window::NamedShape;
 use patternproof_io::boundary::read_named_boundaries;
 use patternproof_io::geopackage::{self, is_geopackage};
@@ -61,6 +64,9 @@ pub struct SitesArgs {
     /// Leave the point maps out of the per-site reports.
     #[arg(long)]
     pub no_map: bool,
+    /// No progress bar and no forecast of the run's time.
+    #[arg(long, short)]
+    pub quiet: bool,
     #[command(flatten)]
     pub output: OutArgs,
 }
@@ -104,13 +110,17 @@ pub fn run(a: &SitesArgs) -> Result<(), Failure> {
     }
     print_readings(&datasets);
     let inputs: Vec<SiteInput> = sites.iter().map(|s| s.input.clone()).collect();
-    let runs = patternproof_sites::run_sites(
-        &inputs,
-        &protocol,
-        RunOptions {
-            sweep_sims: a.sweep_sims,
-        },
+    let opts = RunOptions {
+        sweep_sims: a.sweep_sims,
+    };
+    check_budget(&inputs, &protocol, opts, a.quiet)?;
+    let progress = Progress::new(
+        patternproof_sites::simulated_patterns(&inputs, &protocol, opts),
+        a.quiet,
+        "simulating CSR at every site",
     );
+    let runs = patternproof_sites::run_sites_with(&inputs, &protocol, opts, &|| progress.tick());
+    progress.finish();
     let folder = outputs(a, &protocol, &sites, &datasets, &runs)?;
     a.output.write(&folder)?;
 
@@ -169,6 +179,53 @@ fn print_readings(datasets: &[Dataset]) {
             crate::audit_cmd::reading_line(&first.points_file, &first.reading, others)
         );
     }
+}
+
+/// Stop before any site runs when the sweeps' simulations need more
+/// memory than is free, or would take absurdly long; say how long a long
+/// run will take ([`budget`]). The time comes from a trial on the largest
+/// site.
+fn check_budget(
+    inputs: &[SiteInput],
+    protocol: &Protocol,
+    opts: RunOptions,
+    quiet: bool,
+) -> Result<(), Failure> {
+    let threads = rayon::current_num_threads();
+    let need = |sweep_sims: usize| {
+        patternproof_sites::run_bytes(inputs, protocol, RunOptions { sweep_sims }, threads)
+    };
+    let basis = format!(
+        "the simulated means of every site's sweep are kept until the folders are written: 8 bytes per simulation and window, for {} site(s)",
+        inputs.len()
+    );
+    budget::check_memory(
+        "--sweep-sims",
+        opts.sweep_sims,
+        need,
+        &basis,
+        budget::available_memory(),
+    )?;
+    let Some(largest) = inputs.iter().max_by_key(|s| s.points.len()) else {
+        return Ok(());
+    };
+    if patternproof_sites::simulated_patterns(inputs, protocol, opts) == 0 {
+        return Ok(());
+    }
+    let Some(trial) = simulation::trial_seconds(&largest.points, 0.2, 64) else {
+        return Ok(());
+    };
+    let seconds = |sweep_sims: usize| {
+        patternproof_sites::forecast_seconds(
+            inputs,
+            protocol,
+            RunOptions { sweep_sims },
+            trial,
+            largest.points.len(),
+            threads,
+        )
+    };
+    budget::check_time("--sweep-sims", opts.sweep_sims, seconds, threads, quiet)
 }
 
 fn load_sites(a: &SitesArgs) -> Result<(Vec<Loaded>, Vec<Dataset>), Failure> {

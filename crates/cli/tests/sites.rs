@@ -496,3 +496,36 @@ fn degree_like_plots_ask_how_to_read_them() {
     }
     assert!(!out.exists());
 }
+
+/// Issue 20: `sites --sweep-sims 1000000000` used to run silently for
+/// ever. Every site's sweep keeps its simulated means until the folders
+/// are written, so the memory is estimated first, and a run beyond the
+/// machine stops with exit 2, the estimate and the largest value that
+/// fits, before any site runs.
+#[test]
+fn a_billion_sweep_simulations_are_refused_up_front() {
+    let dir = tempfile::tempdir().unwrap();
+    let p = new_protocol(dir.path(), &["--window", "boundary", "--sims", "99"]);
+    let out = dir.path().join("run");
+    let mut args = plots();
+    args.extend([
+        "--boundaries".into(),
+        boundaries(),
+        "--sweep-sims".into(),
+        "1000000000".into(),
+    ]);
+    let refs: Vec<&str> = args.iter().map(String::as_str).collect();
+    let o = sites(&p, &out, &refs);
+    let e = String::from_utf8_lossy(&o.stderr);
+    assert_eq!(o.status.code(), Some(2), "{e}");
+    for words in [
+        "--sweep-sims 1000000000: the run needs about",
+        "for 6 site(s)",
+        "available",
+        "use at most --sweep-sims ",
+        "what to do",
+    ] {
+        assert!(e.contains(words), "`{words}` missing: {e}");
+    }
+    assert!(!out.exists(), "a folder was written");
+}
