@@ -6,6 +6,6 @@ use libfuzzer_sys::fuzz_target;
 fuzz_target!(|data: &[u8]| {
     let path = std::env::temp_dir().join(format!("patternproof-fuzz-{}.csv", std::process::id()));
     if std::fs::write(&path, data).is_ok() {
-        let _ = patternproof_io::points::read_points(&path, patternproof_io::CoordChoice::Auto, None);
+        let _ = patternproof_io::points::read_points(&path, patternproof_io::CoordChoice::Auto, None, None);
     }
 });

@@ -113,6 +113,13 @@ pub fn simulate(
     m: Measure<'_>,
     tick: &(dyn Fn() + Sync),
 ) -> Vec<PatternStats> {
+    if n < 2 {
+        return Vec::new();
+    }
+    // Collected by index straight into one vector of `sims` entries (a
+    // flattened collect would gather chunks in lists and copy them again).
+    // A pattern of n ≥ 2 points always measures, so the fallback below is
+    // never taken.
     (0..sims)
         .into_par_iter()
         .map_init(
@@ -122,11 +129,99 @@ pub fn simulate(
                 sampler.sample_into(n, &mut rng, pts);
                 let s = measure_with(pts, m, ws);
                 tick();
-                s
+                s.unwrap_or(PatternStats {
+                    mean_nn: f64::NAN,
+                    border: None,
+                    torus_mean: None,
+                })
             },
         )
-        .flatten()
         .collect()
+}
+
+/// Bytes a window's simulations hold per simulated pattern while the
+/// window is simulated: its [`PatternStats`] until the rows are made, and
+/// the sorted copy of the mean distances the quantiles take.
+pub const BYTES_WHILE_SIMULATING: u64 = std::mem::size_of::<PatternStats>() as u64 + 8;
+
+/// Bytes kept per simulated pattern of every window until the report is
+/// written: its mean distance (the simulation row and `simulation.svg`
+/// need the whole distribution: rank p, quantiles, histogram), held by the
+/// audit and by the report made from it.
+pub const BYTES_KEPT: u64 = 2 * 8;
+
+/// Bytes per point of the data set beyond the points themselves: window
+/// membership lists (8 per window), the centred copy and a window's own
+/// copy (16 + 16), the observed distances and their grid (about 56), and
+/// on each thread one simulated pattern with its grid and distances
+/// (about 90).
+pub fn bytes_per_point(windows: usize, threads: usize) -> u64 {
+    8 * windows as u64 + 88 + 90 * threads as u64
+}
+
+/// The memory an audit needs beyond its input: `n` points, `windows`
+/// windows with an outline (those simulated), `threads` threads, `sims`
+/// simulations per window. Saturates rather than wrapping.
+pub fn run_bytes(n: usize, windows: usize, threads: usize, sims: usize) -> u64 {
+    let per_sim = BYTES_WHILE_SIMULATING + BYTES_KEPT * windows as u64;
+    (n as u64)
+        .saturating_mul(bytes_per_point(windows, threads))
+        .saturating_add((sims as u64).saturating_mul(per_sim))
+}
+
+/// Seconds one thread takes to draw and measure one CSR pattern of
+/// `points.len()` points with every statistic (nearest neighbours, guard
+/// zone, torus), from a short trial in the points' bounding rectangle:
+/// patterns are drawn until `enough` seconds have passed or `most` are
+/// done. For forecasts only; it draws from its own stream and changes no
+/// result. `None` for fewer than two points or a degenerate rectangle.
+pub fn trial_seconds(points: &[Xy], enough: f64, most: usize) -> Option<f64> {
+    let n = points.len();
+    let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
+    for p in points {
+        for k in 0..2 {
+            lo[k] = lo[k].min(p[k]);
+            hi[k] = hi[k].max(p[k]);
+        }
+    }
+    let (w, h) = (hi[0] - lo[0], hi[1] - lo[1]);
+    if n < 2 || !(w > 0.0 && h > 0.0 && w.is_finite() && h.is_finite()) {
+        return None;
+    }
+    let shape = geo::MultiPolygon::new(vec![
+        geo::Rect::new(geo::coord! { x: 0.0, y: 0.0 }, geo::coord! { x: w, y: h }).to_polygon(),
+    ]);
+    let sampler = Sampler::new(&shape)?;
+    let guard = 0.5 * (w * h / n as f64).sqrt();
+    let outline = Outline::new(&shape, Some(guard));
+    let m = Measure {
+        outline: Some(&outline),
+        guard: Some(guard),
+        rectangle: Some(Rect {
+            min: [0.0, 0.0],
+            max: [w, h],
+        }),
+    };
+    // One thread, as each simulation runs on one thread of the pool.
+    let pool = rayon::ThreadPoolBuilder::new()
+        .num_threads(1)
+        .build()
+        .ok()?;
+    pool.install(|| {
+        let (mut pts, mut ws) = (Vec::with_capacity(n), Distances::new());
+        let started = std::time::Instant::now();
+        let mut done = 0usize;
+        while done < most.max(1) {
+            let mut rng = stream(0, "trial", done as u64);
+            sampler.sample_into(n, &mut rng, &mut pts);
+            measure_with(&pts, m, &mut ws)?;
+            done += 1;
+            if started.elapsed().as_secs_f64() >= enough {
+                break;
+            }
+        }
+        Some(started.elapsed().as_secs_f64() / done as f64)
+    })
 }
 
 #[cfg(test)]
@@ -154,6 +249,33 @@ mod tests {
                 .install(|| simulate(&sampler, 40, 64, 11, "bbox", m, &|| {}))
         };
         assert_eq!(run(1), run(2));
+    }
+}
+
+#[cfg(test)]
+mod budget {
+    use super::*;
+
+    /// By hand: a pattern's statistics take 48 bytes (three f64, a count
+    /// and two tags, padded), so 56 while simulating; 7 windows keep
+    /// 7 × 16 more. A billion simulations of the demo's 143 points then
+    /// need 168 GB, far beyond a workstation: the command refuses them.
+    #[test]
+    fn figures_by_hand() {
+        assert_eq!(BYTES_WHILE_SIMULATING, 56);
+        assert_eq!(bytes_per_point(7, 2), 56 + 88 + 180);
+        assert_eq!(
+            run_bytes(143, 7, 2, 1_000_000_000),
+            143 * 324 + 1_000_000_000 * (56 + 112)
+        );
+        assert_eq!(run_bytes(usize::MAX, 7, 2, usize::MAX), u64::MAX);
+        // The trial measures real patterns; only its being a positive
+        // number is checked here, never its value.
+        let pts: Vec<Xy> = (0..50)
+            .map(|k| [f64::from(k % 7), f64::from(k / 7)])
+            .collect();
+        assert!(trial_seconds(&pts, 0.0, 2).is_some_and(|s| s >= 0.0));
+        assert_eq!(trial_seconds(&pts[..1], 0.0, 2), None);
     }
 }
 

@@ -379,6 +379,9 @@ fn rows_of_window(
         },
         _ => Vec::new(),
     };
+    // The one per-simulation list kept after this window: the simulation
+    // row and `simulation.svg` need the whole distribution.
+    let means: Vec<f64> = sims.iter().map(|s| s.mean_nn).collect();
     let outside_note = (w.points_outside > 0).then(|| {
         format!(
             "{} point(s) outside this window are left out",
@@ -522,7 +525,6 @@ fn rows_of_window(
                     ));
                     continue;
                 }
-                let means: Vec<f64> = sims.iter().map(|s| s.mean_nn).collect();
                 simulation_row(row, observed.mean_nn, &means, options)
             }
         };
@@ -532,7 +534,7 @@ fn rows_of_window(
         }
         rows.push(row);
     }
-    (rows, skips, sims.iter().map(|s| s.mean_nn).collect())
+    (rows, skips, means)
 }
 
 fn simulation_row(

@@ -2,10 +2,11 @@
 //! here; help text, defaults and validation come from this table.
 
 use crate::fail::Failure;
+use crate::interrupt;
 use crate::window_args::WindowArgs;
 use clap::{Args, Parser, Subcommand, ValueEnum};
 use patternproof_io::CoordChoice;
-use patternproof_report::{OutputFolder, write_folder_with};
+use patternproof_report::{FolderError, OutputFolder, write_folder_interruptible};
 use std::path::PathBuf;
 
 /// Does a claim about a point pattern survive every defensible study area
@@ -111,8 +112,8 @@ impl CoordArgs {
 /// `--force` and `--out`, shared by the commands that write a report folder.
 #[derive(Debug, Args)]
 pub struct OutArgs {
-    /// Replace an earlier report in `--out` (a folder that is not a
-    /// patternproof report is never replaced).
+    /// Replace an earlier report in `--out` (only a folder holding nothing
+    /// but the files patternproof listed in it is ever replaced).
     #[arg(long)]
     pub force: bool,
     /// Report folder (written whole or not at all).
@@ -122,9 +123,43 @@ pub struct OutArgs {
 
 impl OutArgs {
     /// Write the report folder; a refusal (an earlier report without
-    /// `--force`, a folder that is not a report) is bad input.
+    /// `--force`, a folder that is not a report) is bad input. A signal
+    /// during the write leaves the old report or the new one, whole, and
+    /// ends the program after saying which.
     pub fn write(&self, folder: &OutputFolder) -> Result<(), Failure> {
-        write_folder_with(&self.out, folder, self.force).map_err(|e| Failure::Input(e.to_string()))
+        let (result, signal) =
+            interrupt::hold(|stop| write_folder_interruptible(&self.out, folder, self.force, stop));
+        if let Ok(written) = &result {
+            for note in &written.repaired {
+                eprintln!("patternproof: note: {note}");
+            }
+        }
+        let out = self.out.display();
+        match (result, signal) {
+            (Err(FolderError::BadName(n)), _) => Err(Failure::Internal(format!(
+                "the report has a file named `{n}`, which is not a plain relative path"
+            ))),
+            (Ok(_), Some(signal)) => Err(Failure::Interrupted {
+                signal,
+                message: format!(
+                    "stopped by {}; the new report in {out} was already complete and is kept",
+                    interrupt::name(signal)
+                ),
+            }),
+            (Err(e), Some(signal)) => Err(Failure::Interrupted {
+                signal,
+                message: format!(
+                    "stopped by {} while writing {out}; {}",
+                    interrupt::name(signal),
+                    match e {
+                        FolderError::Interrupted => "nothing was changed there".to_string(),
+                        e => e.to_string(),
+                    }
+                ),
+            }),
+            (Err(e), None) => Err(Failure::Input(e.to_string())),
+            (Ok(_), None) => Ok(()),
+        }
     }
 }
 

@@ -1,9 +1,11 @@
 //! `patternproof audit`: load, sweep, write the report folder, print.
 
 use crate::args::{AuditArgs, InputArgs};
+use crate::budget;
 use crate::fail::Failure;
 use crate::progress::Progress;
 use crate::scales_cmd;
+use patternproof_audit::simulation;
 use patternproof_audit::window::{NamedShape, WindowOptions};
 use patternproof_audit::{AuditOptions, BufferRule, Edge, run_audit};
 use patternproof_io::{Dataset, LoadOptions};
@@ -46,6 +48,15 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
     let data = load(&a.input)?;
     print_reading(&data);
     let shapes = named_shapes(&data);
+    let windows = budget::outlined_windows(buffers.len(), shapes.len());
+    let scales_options = a.scales.then(|| ScalesOptions {
+        rmax: a.scales_rmax,
+        sims: a.scales_sims,
+        seed: a.seed,
+        alpha: a.alpha,
+        ..ScalesOptions::default()
+    });
+    check_budget(a, &data, windows, scales_options.as_ref())?;
     let options = AuditOptions {
         windows: WindowOptions {
             buffers: buffers.clone(),
@@ -58,9 +69,8 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
         sims: a.sims,
         seed: a.seed,
     };
-    let windows_with_outline = 4 + buffers.len() + shapes.len();
     let progress = Progress::new(
-        (a.sims * windows_with_outline) as u64,
+        a.sims.saturating_mul(windows) as u64,
         a.quiet,
         "simulating CSR",
     );
@@ -98,23 +108,16 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
     );
     let mut report = report;
     report.provenance = provenance(&data)?;
-    let scales = if a.scales {
-        let options = ScalesOptions {
-            rmax: a.scales_rmax,
-            sims: a.scales_sims,
-            seed: a.seed,
-            alpha: a.alpha,
-            ..ScalesOptions::default()
-        };
-        Some(scales_cmd::compute(
+    let scales = match &scales_options {
+        Some(options) => Some(scales_cmd::compute(
             &data,
             buffers.clone(),
             concavity,
-            &options,
+            options,
             a.quiet,
-        )?)
-    } else {
-        None
+            "--scales-sims",
+        )?),
+        None => None,
     };
     let choices = RenderChoices {
         picture_window: a.picture_window.clone(),
@@ -131,6 +134,39 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
     if let Some((run, notes)) = &scales {
         println!("\nRipley's K across the same windows (--scales):");
         scales_cmd::print_lines(run, notes);
+    }
+    Ok(())
+}
+
+/// Stop before the sweep when its simulations (and those of `--scales`)
+/// need more memory than is free, or would take absurdly long; say how
+/// long a long run will take ([`budget`]).
+fn check_budget(
+    a: &AuditArgs,
+    data: &Dataset,
+    windows: usize,
+    scales: Option<&ScalesOptions>,
+) -> Result<(), Failure> {
+    let n = data.points.len();
+    let threads = rayon::current_num_threads();
+    let need = |sims: usize| simulation::run_bytes(n, windows, threads, sims);
+    let basis = format!(
+        "{} bytes per simulation while a window is simulated and {} per simulation and window kept for the report, {} bytes per point",
+        simulation::BYTES_WHILE_SIMULATING,
+        simulation::BYTES_KEPT,
+        simulation::bytes_per_point(windows, threads)
+    );
+    budget::check_memory("--sims", a.sims, need, &basis, budget::available_memory())?;
+    if let Some(options) = scales {
+        // The sweep's kept means stay in memory while K runs.
+        let held = (a.sims as u64).saturating_mul(simulation::BYTES_KEPT * windows as u64);
+        scales_cmd::check_memory("--scales-sims", options, n, windows, held)?;
+    }
+    if a.sims > 0
+        && let Some(trial) = simulation::trial_seconds(&data.points, 0.2, 64)
+    {
+        let seconds = |sims: usize| trial * sims as f64 * windows as f64 / threads as f64;
+        budget::check_time("--sims", a.sims, seconds, threads, a.quiet)?;
     }
     Ok(())
 }

@@ -10,6 +10,14 @@ pub enum Failure {
     Input(String),
     /// Something that should not happen: exit 1.
     Internal(String),
+    /// A signal arrived while the report folder was being written: what
+    /// became of it. The program then ends by the signal.
+    Interrupted {
+        /// The signal number.
+        signal: i32,
+        /// What is on disk now.
+        message: String,
+    },
 }
 
 impl Failure {
@@ -18,6 +26,7 @@ impl Failure {
         match self {
             Failure::Input(_) => 2,
             Failure::Internal(_) => 1,
+            Failure::Interrupted { signal, .. } => u8::try_from(128 + signal).unwrap_or(1),
         }
     }
 }
@@ -25,7 +34,7 @@ impl Failure {
 impl fmt::Display for Failure {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         match self {
-            Failure::Input(m) => f.write_str(m),
+            Failure::Input(m) | Failure::Interrupted { message: m, .. } => f.write_str(m),
             Failure::Internal(m) => write!(
                 f,
                 "{m}\n  this is a bug in patternproof; please report it with the command you ran"

@@ -3,12 +3,15 @@
 //!
 //! Exit codes: 0 done; 2 bad input or usage (the message names the file,
 //! where, what is wrong and what to do); 1 an internal failure (a bug:
-//! please report it).
+//! please report it); 128 + the signal number (130, 143) when stopped by
+//! a signal, which leaves no half-written folder (see [`interrupt`]).
 
 mod args;
 mod audit_cmd;
+mod budget;
 mod density_cmd;
 mod fail;
+mod interrupt;
 mod progress;
 mod protocol_cmd;
 mod recheck_cmd;
@@ -20,6 +23,7 @@ use clap::Parser;
 use std::process::ExitCode;
 
 fn main() -> ExitCode {
+    interrupt::install();
     let cli = args::Cli::parse();
     let result = match cli.command {
         args::Command::Audit(a) => audit_cmd::run(&a),
@@ -33,6 +37,9 @@ fn main() -> ExitCode {
         Ok(()) => ExitCode::SUCCESS,
         Err(e) => {
             eprintln!("patternproof: error: {e}");
+            if let fail::Failure::Interrupted { signal, .. } = e {
+                interrupt::end_by(signal);
+            }
             ExitCode::from(e.exit_code())
         }
     }

@@ -147,10 +147,29 @@ fn write_new(path: &Path, text: &str) -> Result<(), Failure> {
             path.display()
         ))
     };
-    let mut tmp = tempfile::NamedTempFile::new_in(&dir).map_err(io_err)?;
-    std::io::Write::write_all(&mut tmp, text.as_bytes()).map_err(io_err)?;
-    tmp.persist_noclobber(path).map_err(|e| io_err(e.error))?;
-    Ok(())
+    // A signal while the temporary file exists waits until it is renamed
+    // or removed, so no temporary file is left beside the protocol.
+    let (written, signal) = crate::interrupt::hold(|_| {
+        let mut tmp = tempfile::NamedTempFile::new_in(&dir).map_err(io_err)?;
+        std::io::Write::write_all(&mut tmp, text.as_bytes()).map_err(io_err)?;
+        tmp.persist_noclobber(path).map_err(|e| io_err(e.error))?;
+        Ok(())
+    });
+    match signal {
+        Some(signal) => Err(Failure::Interrupted {
+            signal,
+            message: format!(
+                "stopped by {}; {}",
+                crate::interrupt::name(signal),
+                if written.is_ok() {
+                    format!("{} was already complete and is kept", path.display())
+                } else {
+                    "no protocol file was written".to_string()
+                }
+            ),
+        }),
+        None => written,
+    }
 }
 
 /// Read and verify a protocol file; a changed one is an input error.

@@ -7,6 +7,7 @@
 
 use crate::args::{InputArgs, OutArgs, count};
 use crate::audit_cmd::{check_alpha, load, named_shapes};
+use crate::budget;
 use crate::fail::Failure;
 use crate::progress::Progress;
 use crate::window_args::WindowArgs;
@@ -20,7 +21,7 @@ use patternproof_core::nearest::{mean, nearest_distances};
 use patternproof_io::Dataset;
 use patternproof_report::OutputFolder;
 use patternproof_scales::summary;
-use patternproof_scales::{Correction, ScalesOptions, ScalesRun, run_scales};
+use patternproof_scales::{Correction, ScalesOptions, ScalesRun, memory, plan};
 
 /// Largest accepted `--steps`.
 const MAX_STEPS: usize = 10_000;
@@ -131,7 +132,9 @@ pub fn run(a: &ScalesArgs) -> Result<(), Failure> {
         seed: a.seed,
         alpha: a.alpha,
     };
-    let (run, notes) = compute(&data, buffers, concavity, &options, a.quiet)?;
+    let windows = budget::outlined_windows(buffers.len(), data.boundaries.len());
+    check_memory("--sims", &options, data.points.len(), windows, 0)?;
+    let (run, notes) = compute(&data, buffers, concavity, &options, a.quiet, "--sims")?;
     let mut folder = OutputFolder::default();
     add_files(&mut folder, &run)?;
     a.output.write(&folder)?;
@@ -148,9 +151,33 @@ pub fn run(a: &ScalesArgs) -> Result<(), Failure> {
     Ok(())
 }
 
+/// Stop before anything runs when the K audit with `options` needs more
+/// memory than the machine has free ([`budget`]); `flag` is the option
+/// that sets `options.sims` and `held` what the caller keeps meanwhile.
+pub fn check_memory(
+    flag: &str,
+    options: &ScalesOptions,
+    n: usize,
+    windows: usize,
+    held: u64,
+) -> Result<(), Failure> {
+    let threads = rayon::current_num_threads();
+    let (steps, tested) = (options.steps, options.tested.len());
+    let need = |sims: usize| {
+        held.saturating_add(memory::run_bytes(n, windows, threads, sims, steps, tested))
+    };
+    let basis = format!(
+        "{} bytes per simulation for the L(r) − r curves both global tests need ({steps} distances × {tested} tested correction(s), one window at a time), {} bytes per point",
+        memory::bytes_per_simulation(steps, tested),
+        memory::bytes_per_point(windows, threads)
+    );
+    budget::check_memory(flag, options.sims, need, &basis, budget::available_memory())
+}
+
 /// The K audit of `data` in every window of the sweep, in coordinates
-/// centred on the data (as the nearest-neighbour audit), with a progress
-/// bar unless `quiet`. Also returns the window notes of the sweep.
+/// centred on the data (as the nearest-neighbour audit), with a forecast
+/// of its time and a progress bar unless `quiet`; `flag` is the option
+/// that set `options.sims`. Also returns the window notes of the sweep.
 /// Shared by `scales` and `audit --scales`.
 pub fn compute(
     data: &Dataset,
@@ -158,6 +185,7 @@ pub fn compute(
     concavity: f64,
     options: &ScalesOptions,
     quiet: bool,
+    flag: &str,
 ) -> Result<(ScalesRun, Vec<String>), Failure> {
     let points_file = data.points_file.display().to_string();
     let origin = centre(&data.points);
@@ -191,12 +219,18 @@ pub fn compute(
             concavity,
         },
     );
-    let progress = Progress::new(
-        (options.sims * windows.len()) as u64,
-        quiet,
-        "simulating CSR for K",
-    );
-    let run = run_scales(&points, &windows, &data.unit, options, &|| progress.tick());
+    let plan = plan(&points, &windows, options);
+    let patterns = plan.simulated_patterns(options);
+    if patterns > 0 {
+        // One trial pattern per window, on one thread; the simulations
+        // share the threads.
+        let trial = plan.trial_seconds(options);
+        let threads = rayon::current_num_threads();
+        let seconds = |sims: usize| trial * sims as f64 / threads as f64;
+        budget::check_time(flag, options.sims, seconds, threads, quiet)?;
+    }
+    let progress = Progress::new(patterns as u64, quiet, "simulating CSR for K");
+    let run = plan.run(&data.unit, options, &|| progress.tick());
     progress.finish();
     if run.windows.is_empty() {
         let mut why: Vec<String> = notes.clone();

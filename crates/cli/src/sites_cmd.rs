@@ -2,9 +2,12 @@
 
 use crate::args::{CoordArgs, OutArgs, count};
 use crate::audit_cmd::{RenderChoices, input_summary, render};
+use crate::budget;
 use crate::fail::Failure;
+use crate::progress::Progress;
 use crate::protocol_cmd::read_verified;
 use clap::Args;
+use patternproof_audit::simulation;
 use patternproof_audit::window::NamedShape;
 use patternproof_io::boundary::read_named_boundaries;
 use patternproof_io::geopackage::{self, is_geopackage};
@@ -12,6 +15,7 @@ use patternproof_io::{CoordChoice, CoordSystem, Dataset, LoadOptions};
 use patternproof_protocol::Protocol;
 use patternproof_report::document::{FileDigest, ReportProvenance};
 use patternproof_report::{AuditReport, OutputFolder};
+use patternproof_sites::folder_name::site_folders;
 use patternproof_sites::{RunOptions, SiteInput, SiteRun, forest, page, render as site_render};
 use rayon::prelude::*;
 use sha2::Digest;
@@ -60,6 +64,9 @@ pub struct SitesArgs {
     /// Leave the point maps out of the per-site reports.
     #[arg(long)]
     pub no_map: bool,
+    /// No progress bar and no forecast of the run's time.
+    #[arg(long, short)]
+    pub quiet: bool,
     #[command(flatten)]
     pub output: OutArgs,
 }
@@ -103,13 +110,17 @@ pub fn run(a: &SitesArgs) -> Result<(), Failure> {
     }
     print_readings(&datasets);
     let inputs: Vec<SiteInput> = sites.iter().map(|s| s.input.clone()).collect();
-    let runs = patternproof_sites::run_sites(
-        &inputs,
-        &protocol,
-        RunOptions {
-            sweep_sims: a.sweep_sims,
-        },
+    let opts = RunOptions {
+        sweep_sims: a.sweep_sims,
+    };
+    check_budget(&inputs, &protocol, opts, a.quiet)?;
+    let progress = Progress::new(
+        patternproof_sites::simulated_patterns(&inputs, &protocol, opts),
+        a.quiet,
+        "simulating CSR at every site",
     );
+    let runs = patternproof_sites::run_sites_with(&inputs, &protocol, opts, &|| progress.tick());
+    progress.finish();
     let folder = outputs(a, &protocol, &sites, &datasets, &runs)?;
     a.output.write(&folder)?;
 
@@ -168,6 +179,53 @@ fn print_readings(datasets: &[Dataset]) {
             crate::audit_cmd::reading_line(&first.points_file, &first.reading, others)
         );
     }
+}
+
+/// Stop before any site runs when the sweeps' simulations need more
+/// memory than is free, or would take absurdly long; say how long a long
+/// run will take ([`budget`]). The time comes from a trial on the largest
+/// site.
+fn check_budget(
+    inputs: &[SiteInput],
+    protocol: &Protocol,
+    opts: RunOptions,
+    quiet: bool,
+) -> Result<(), Failure> {
+    let threads = rayon::current_num_threads();
+    let need = |sweep_sims: usize| {
+        patternproof_sites::run_bytes(inputs, protocol, RunOptions { sweep_sims }, threads)
+    };
+    let basis = format!(
+        "the simulated means of every site's sweep are kept until the folders are written: 8 bytes per simulation and window, for {} site(s)",
+        inputs.len()
+    );
+    budget::check_memory(
+        "--sweep-sims",
+        opts.sweep_sims,
+        need,
+        &basis,
+        budget::available_memory(),
+    )?;
+    let Some(largest) = inputs.iter().max_by_key(|s| s.points.len()) else {
+        return Ok(());
+    };
+    if patternproof_sites::simulated_patterns(inputs, protocol, opts) == 0 {
+        return Ok(());
+    }
+    let Some(trial) = simulation::trial_seconds(&largest.points, 0.2, 64) else {
+        return Ok(());
+    };
+    let seconds = |sweep_sims: usize| {
+        patternproof_sites::forecast_seconds(
+            inputs,
+            protocol,
+            RunOptions { sweep_sims },
+            trial,
+            largest.points.len(),
+            threads,
+        )
+    };
+    budget::check_time("--sweep-sims", opts.sweep_sims, seconds, threads, quiet)
 }
 
 fn load_sites(a: &SitesArgs) -> Result<(Vec<Loaded>, Vec<Dataset>), Failure> {
@@ -309,31 +367,6 @@ fn load_sites(a: &SitesArgs) -> Result<(Vec<Loaded>, Vec<Dataset>), Failure> {
     Ok((sites, datasets))
 }
 
-/// A folder name for a site: letters, digits, `.`, `_`, `-` kept, the rest
-/// replaced, made unique.
-fn folder_name(name: &str, taken: &[String]) -> String {
-    let mut base: String = name
-        .chars()
-        .map(|c| {
-            if c.is_ascii_alphanumeric() || "._-".contains(c) {
-                c
-            } else {
-                '_'
-            }
-        })
-        .collect();
-    if base.is_empty() || base.starts_with('.') {
-        base = format!("site{base}");
-    }
-    let mut candidate = base.clone();
-    let mut k = 2;
-    while taken.contains(&candidate) {
-        candidate = format!("{base}-{k}");
-        k += 1;
-    }
-    candidate
-}
-
 fn digest(path: &Path) -> Result<FileDigest, Failure> {
     let bytes = std::fs::read(path).map_err(|e| {
         Failure::Input(format!(
@@ -350,6 +383,15 @@ fn digest(path: &Path) -> Result<FileDigest, Failure> {
     })
 }
 
+/// One site's report folder, before it joins the run's folder.
+struct SiteFolder {
+    /// `site/FOLDER`.
+    dir: String,
+    /// Which site and input, for error messages.
+    what: String,
+    folder: OutputFolder,
+}
+
 fn outputs(
     a: &SitesArgs,
     protocol: &Protocol,
@@ -361,19 +403,18 @@ fn outputs(
         Failure::Internal(format!("could not render the outputs in memory: {e}"))
     };
     let hash = protocol.sha256();
-    let mut folders: Vec<(String, String)> = Vec::new();
-    for (s, run) in sites.iter().zip(runs) {
-        if run.audit.is_some() {
-            let taken: Vec<String> = folders
-                .iter()
-                .map(|f| f.1.trim_start_matches("site/").to_string())
-                .collect();
-            folders.push((
-                s.input.name.clone(),
-                format!("site/{}", folder_name(&s.input.name, &taken)),
-            ));
-        }
-    }
+    let with_report: Vec<&Loaded> = sites
+        .iter()
+        .zip(runs)
+        .filter(|(_, run)| run.audit.is_some())
+        .map(|(s, _)| s)
+        .collect();
+    let names: Vec<&str> = with_report.iter().map(|s| s.input.name.as_str()).collect();
+    let folders: Vec<(String, String)> = names
+        .iter()
+        .zip(site_folders(&names))
+        .map(|(name, folder)| (name.to_string(), format!("site/{folder}")))
+        .collect();
     let choices = RenderChoices {
         picture_window: None,
         no_map: a.no_map,
@@ -381,7 +422,7 @@ fn outputs(
         protocol: Some(format!("{} (SHA-256 {hash})", a.protocol.display())),
         scales: None,
     };
-    let per_site: Vec<Result<Option<(String, OutputFolder)>, Failure>> = sites
+    let per_site: Vec<Result<Option<SiteFolder>, Failure>> = sites
         .par_iter()
         .zip(runs.par_iter())
         .map(|(s, run)| {
@@ -422,7 +463,16 @@ fn outputs(
                 .find(|f| f.0 == s.input.name)
                 .map(|f| f.1.clone())
                 .unwrap_or_default();
-            Ok(Some((dir, folder)))
+            let what = format!(
+                "the report of site `{}`, read from {}",
+                s.input.name,
+                s.files
+                    .iter()
+                    .map(|f| f.display().to_string())
+                    .collect::<Vec<_>>()
+                    .join(" and ")
+            );
+            Ok(Some(SiteFolder { dir, what, folder }))
         })
         .collect();
     let mut out = OutputFolder::default();
@@ -446,22 +496,10 @@ fn outputs(
     );
     out.add("protocol.json", protocol.to_file_text().into_bytes());
     for r in per_site {
-        if let Some((dir, folder)) = r? {
-            out.nest(&dir, folder);
+        if let Some(site) = r? {
+            out.nest(&site.dir, site.folder);
+            out.describe(&site.dir, &site.what);
         }
     }
     Ok(out)
-}
-
-#[cfg(test)]
-mod tests {
-    use super::folder_name;
-
-    #[test]
-    fn folder_names_are_safe_and_unique() {
-        assert_eq!(folder_name("plot 3/b", &[]), "plot_3_b");
-        assert_eq!(folder_name("..", &[]), "site..");
-        assert_eq!(folder_name("a", &["a".into()]), "a-2");
-        assert_eq!(folder_name("<script>", &[]), "_script_");
-    }
 }

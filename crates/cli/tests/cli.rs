@@ -829,3 +829,33 @@ fn every_command_says_how_it_read_the_points() {
         .unwrap();
     assert!(o.status.success() && o.stderr.is_empty() && o.stdout.is_empty());
 }
+
+/// Issue 20: `--sims 1000000000` used to run for ever, its kept results
+/// growing. Now the memory it needs is estimated before anything runs, and
+/// a run beyond the machine stops with exit 2, the estimate, the memory
+/// available and the largest `--sims` that fits (no timing involved).
+#[test]
+fn a_billion_simulations_are_refused_up_front() {
+    let dir = tempfile::tempdir().unwrap();
+    let points = repo().join("demo-data/meadow-burrows.csv");
+    let args = [points.to_str().unwrap(), "--sims", "1000000000"];
+    assert_refused(
+        &args,
+        dir.path(),
+        &[
+            "--sims 1000000000: the run needs about",
+            "of memory",
+            "bytes per simulation",
+            "available",
+            "use at most --sims ",
+        ],
+    );
+    let e = stderr(&audit(&args, &dir.path().join("report")));
+    let fits: u64 = e
+        .split("use at most --sims ")
+        .nth(1)
+        .and_then(|t| t.split_whitespace().next())
+        .and_then(|v| v.parse().ok())
+        .unwrap();
+    assert!(fits < 1_000_000_000, "{e}");
+}

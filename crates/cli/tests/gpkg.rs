@@ -286,11 +286,16 @@ fn projected_input_keeps_its_own_system_and_csv_gets_the_undefined_one() {
 
 /// shapely (GEOS) reads the WKB after our headers and measures the
 /// polygons; pyproj (PROJ) parses every definition. Both come from the
-/// pinned reference venv; without it the test says SKIPPED.
+/// pinned reference venv; without it the test says SKIPPED, and fails
+/// under CI (`CI=true`), where `.ci/run` builds the venv first.
 #[test]
 fn windows_gpkg_reads_back_with_shapely_and_pyproj() {
     let python = repo().join("reference/.venv/bin/python");
     if !python.is_file() {
+        assert!(
+            !std::env::var("CI").is_ok_and(|v| v == "true"),
+            "no reference/.venv under CI: reference/regenerate.sh should have built it"
+        );
         eprintln!(
             "SKIPPED windows_gpkg_reads_back_with_shapely_and_pyproj: no reference/.venv (run reference/regenerate.sh; .ci/run does)"
         );

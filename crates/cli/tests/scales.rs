@@ -158,6 +158,56 @@ fn bad_input_exits_2_with_advice() {
     assert!(String::from_utf8_lossy(&o.stderr).contains("no-such-file.csv"));
 }
 
+/// Issue 20: `scales --sims 1000000000` used to abort on a 24 GB
+/// allocation. Both global tests need every simulated curve, so the run's
+/// memory is estimated first, and one beyond the machine stops with exit
+/// 2, the estimate and the largest `--sims` that fits.
+#[test]
+fn a_billion_simulations_are_refused_up_front() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = dir.path().join("never");
+    let o = scales(&["--sims", "1000000000"], &out, "2");
+    let e = String::from_utf8_lossy(&o.stderr);
+    assert_eq!(o.status.code(), Some(2), "{e}");
+    for words in [
+        "--sims 1000000000: the run needs about",
+        "TiB of memory",
+        "1240 bytes per simulation for the L(r) − r curves",
+        "available",
+        "use at most --sims ",
+        "what to do",
+    ] {
+        assert!(e.contains(words), "`{words}` missing: {e}");
+    }
+    assert!(!e.contains("panicked"), "{e}");
+    assert!(!out.exists(), "a folder was written");
+}
+
+/// Too few simulations for α cannot show a departure; the run says so
+/// and names the fewest that can (⌊α(N + 1)⌋ ≥ 1: 19 at α = 0.05, 99 at
+/// α = 0.01), instead of a bare "no departure".
+#[test]
+fn too_few_simulations_for_alpha_are_named() {
+    let dir = tempfile::tempdir().unwrap();
+    let mut args = SMALL.to_vec();
+    args[1] = "5";
+    let o = scales(&args, &dir.path().join("five"), "1");
+    let stdout = String::from_utf8_lossy(&o.stdout);
+    assert!(o.status.success());
+    assert!(
+        stdout.contains("5 simulations are too few for a test at α = 0.05")
+            && stdout.contains("1/6 = 0.167")
+            && stdout.contains("Use at least 19 (--sims 19)"),
+        "{stdout}"
+    );
+    let o = scales(&SMALL, &dir.path().join("enough"), "1");
+    assert!(!String::from_utf8_lossy(&o.stdout).contains("too few"));
+    args.extend(["--alpha", "0.01"]);
+    args[1] = "98";
+    let o = scales(&args, &dir.path().join("strict"), "1");
+    assert!(String::from_utf8_lossy(&o.stdout).contains("Use at least 99 (--sims 99)"));
+}
+
 /// `audit --scales` runs the same K audit as `scales` with the audit's
 /// seed and α: identical scales.json bytes, its files in the audit folder,
 /// and a section of index.html with the verdict sentence and the picture.
@@ -281,4 +331,33 @@ fn audit_with_scales_adds_the_same_k_audit() {
     for f in ["scales.csv", "scales.md", "scales.svg", "corrections.svg"] {
         assert!(joint.join(f).is_file(), "{f}");
     }
+}
+
+/// A boundary whose name holds a comma and a quote keeps `scales.csv` a
+/// table: the window id is quoted as RFC 4180 says, and every row has as
+/// many fields as the header (read back with the `csv` crate).
+#[test]
+fn window_ids_with_commas_are_quoted_in_the_csv() {
+    let dir = tempfile::tempdir().unwrap();
+    let odd = dir.path().join("north, \"upper\" field.wkt");
+    std::fs::write(&odd, "POLYGON((0 0,160 0,160 160,0 160,0 0))").unwrap();
+    let out = dir.path().join("out");
+    let mut args: Vec<&str> = SMALL.to_vec();
+    args.extend(["--boundary", odd.to_str().unwrap()]);
+    let o = scales(&args, &out, "2");
+    assert_eq!(
+        o.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&o.stderr)
+    );
+    let mut reader = csv::Reader::from_path(out.join("scales.csv")).unwrap();
+    let width = reader.headers().unwrap().len();
+    let mut ids = std::collections::BTreeSet::new();
+    for record in reader.records() {
+        let record = record.unwrap();
+        assert_eq!(record.len(), width);
+        ids.insert(record[0].to_string());
+    }
+    assert!(ids.contains("boundary:north, \"upper\" field"), "{ids:?}");
 }

@@ -305,7 +305,82 @@ fn hostile_site_name_is_escaped() {
     let html = std::fs::read_to_string(out.join("index.html")).unwrap();
     assert!(!html.contains("<script"));
     assert!(html.contains("&lt;script&gt;x&lt;/script&gt;"));
-    assert!(out.join("site/_script_x__script_/report.json").exists());
+    // Safe folder name, with a hash of the full name (docs/sites-schema.md).
+    assert!(
+        out.join("site/_script_x_script_~4cd698ac54/report.json")
+            .exists()
+    );
+    // Issue 20: the Markdown files escape it too.
+    let md = std::fs::read_to_string(out.join("sites.md")).unwrap();
+    assert!(!md.contains("<script"), "{md}");
+    assert!(md.contains("| &lt;script&gt;x&lt;/script&gt; |"), "{md}");
+    let verdict =
+        std::fs::read_to_string(out.join("site/_script_x_script_~4cd698ac54/verdict.md")).unwrap();
+    assert!(!verdict.contains("<script"), "{verdict}");
+    assert!(
+        verdict.contains("(site &lt;script&gt;x&lt;/script&gt;)"),
+        "{verdict}"
+    );
+}
+
+/// Issue 20: a 300-character site name runs through: the folder name is
+/// cut and hashed, the full name stays in the outputs.
+#[test]
+fn a_very_long_site_name_gets_a_short_folder() {
+    let dir = tempfile::tempdir().unwrap();
+    let p = new_protocol(
+        dir.path(),
+        &["--window", "hull", "--edge", "none", "--sims", "9"],
+    );
+    let long = format!("{}-plot", "north meadow ".repeat(23));
+    assert!(long.len() >= 300);
+    let mut text = String::from("site,x,y\n");
+    for (k, f) in plots().iter().enumerate().take(2) {
+        let name = if k == 0 { long.as_str() } else { "plot-b" };
+        for line in std::fs::read_to_string(f).unwrap().lines().skip(1) {
+            let parts: Vec<&str> = line.split(',').collect();
+            text.push_str(&format!("{name},{},{}\n", parts[1], parts[2]));
+        }
+    }
+    let file = dir.path().join("all.csv");
+    std::fs::write(&file, text).unwrap();
+    let out = dir.path().join("run");
+    let o = sites(
+        &p,
+        &out,
+        &[
+            file.to_str().unwrap(),
+            "--site-field",
+            "site",
+            "--sweep-sims",
+            "0",
+        ],
+    );
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let mut folders: Vec<String> = std::fs::read_dir(out.join("site"))
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .collect();
+    folders.sort();
+    assert_eq!(folders.len(), 2);
+    assert_eq!(folders[1], "plot-b");
+    assert!(
+        folders[0].starts_with("north_meadow_north_meadow_") && folders[0].len() == 71,
+        "{folders:?}"
+    );
+    let doc: Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("sites.json")).unwrap()).unwrap();
+    assert_eq!(doc["sites"][0]["site"], long.as_str());
+    let report: Value = serde_json::from_str(
+        &std::fs::read_to_string(out.join("site").join(&folders[0]).join("report.json")).unwrap(),
+    )
+    .unwrap();
+    assert!(
+        report["input"]["points_file"]
+            .as_str()
+            .unwrap()
+            .ends_with(&format!("(site {long})"))
+    );
 }
 
 /// A boundary protocol with no `--boundaries`, or with boundaries whose
@@ -420,4 +495,37 @@ fn degree_like_plots_ask_how_to_read_them() {
         assert!(e.contains(want), "expected `{want}` in {e}");
     }
     assert!(!out.exists());
+}
+
+/// Issue 20: `sites --sweep-sims 1000000000` used to run silently for
+/// ever. Every site's sweep keeps its simulated means until the folders
+/// are written, so the memory is estimated first, and a run beyond the
+/// machine stops with exit 2, the estimate and the largest value that
+/// fits, before any site runs.
+#[test]
+fn a_billion_sweep_simulations_are_refused_up_front() {
+    let dir = tempfile::tempdir().unwrap();
+    let p = new_protocol(dir.path(), &["--window", "boundary", "--sims", "99"]);
+    let out = dir.path().join("run");
+    let mut args = plots();
+    args.extend([
+        "--boundaries".into(),
+        boundaries(),
+        "--sweep-sims".into(),
+        "1000000000".into(),
+    ]);
+    let refs: Vec<&str> = args.iter().map(String::as_str).collect();
+    let o = sites(&p, &out, &refs);
+    let e = String::from_utf8_lossy(&o.stderr);
+    assert_eq!(o.status.code(), Some(2), "{e}");
+    for words in [
+        "--sweep-sims 1000000000: the run needs about",
+        "for 6 site(s)",
+        "available",
+        "use at most --sweep-sims ",
+        "what to do",
+    ] {
+        assert!(e.contains(words), "`{words}` missing: {e}");
+    }
+    assert!(!out.exists(), "a folder was written");
 }

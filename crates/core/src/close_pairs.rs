@@ -27,11 +27,16 @@ pub type Neighbours = Vec<(usize, f64)>;
 /// For every centre i, the points j > i with `hypot(x_i − x_j) ≤ rmax`
 /// (each unordered pair once), sorted by j. `parallel` spreads the centres
 /// over rayon's threads; the answer is the same for any thread count.
+///
+/// This holds every pair at once (16 bytes each); callers that only sum
+/// over the pairs should ask [`PairSearch`] centre by centre instead.
 pub fn close_pairs(points: &[Xy], rmax: f64, parallel: bool) -> Vec<Neighbours> {
-    let Some(cells) = Cells::new(points, rmax) else {
-        return brute_force(points, rmax);
+    let search = PairSearch::new(points, rmax);
+    let one = |i: usize| {
+        let mut near = Vec::new();
+        search.neighbours_into(i, &mut near);
+        near
     };
-    let one = |i: usize| cells.neighbours(points, i, rmax);
     if parallel {
         (0..points.len()).into_par_iter().map(one).collect()
     } else {
@@ -39,16 +44,62 @@ pub fn close_pairs(points: &[Xy], rmax: f64, parallel: bool) -> Vec<Neighbours> 
     }
 }
 
-/// The definition, pair by pair: for inputs the grid does not take (a
-/// non-finite coordinate or radius, or fewer than two points).
+/// The range search of one pattern, built once and asked centre by centre.
+///
+/// Why not hand out every pair: 1 M points with a few hundred neighbours
+/// each are hundreds of millions of pairs, gigabytes as a list, while a
+/// caller that sums over them needs only the pairs of the centres it is
+/// working on. The index itself holds the points once, sorted by cell
+/// (about 32 bytes a point), so its memory grows with n, not with the
+/// number of pairs.
+pub struct PairSearch<'a> {
+    points: &'a [Xy],
+    rmax: f64,
+    /// `None` for the inputs the grid does not take (then the definition
+    /// answers, pair by pair).
+    cells: Option<Cells>,
+}
+
+impl<'a> PairSearch<'a> {
+    /// Index `points` for neighbours within `rmax`.
+    pub fn new(points: &'a [Xy], rmax: f64) -> Self {
+        Self {
+            points,
+            rmax,
+            cells: Cells::new(points, rmax),
+        }
+    }
+
+    /// The points j > i within r_max of point i, sorted by j, into `out`
+    /// (cleared first, so one buffer serves every centre).
+    pub fn neighbours_into(&self, i: usize, out: &mut Neighbours) {
+        out.clear();
+        match &self.cells {
+            Some(cells) => cells.neighbours_into(self.points, i, self.rmax, out),
+            None => brute_force_into(self.points, i, self.rmax, out),
+        }
+    }
+}
+
+/// The definition for one centre, pair by pair: for inputs the grid does
+/// not take (a non-finite coordinate or radius, or fewer than two points).
+fn brute_force_into(points: &[Xy], i: usize, rmax: f64, out: &mut Neighbours) {
+    let p = points[i];
+    out.extend(
+        (i + 1..points.len())
+            .map(|j| (j, distance(p, points[j])))
+            .filter(|&(_, d)| d <= rmax),
+    );
+}
+
+/// The definition for every centre (the tests' oracle).
+#[cfg(test)]
 fn brute_force(points: &[Xy], rmax: f64) -> Vec<Neighbours> {
     (0..points.len())
         .map(|i| {
-            let p = points[i];
-            (i + 1..points.len())
-                .map(|j| (j, distance(p, points[j])))
-                .filter(|&(_, d)| d <= rmax)
-                .collect()
+            let mut near = Vec::new();
+            brute_force_into(points, i, rmax, &mut near);
+            near
         })
         .collect()
 }
@@ -155,13 +206,13 @@ impl Cells {
         self.row(p[1]) * self.count[0] + self.column(p[0])
     }
 
-    /// The points j > i within `rmax` of point i, sorted by j.
-    fn neighbours(&self, points: &[Xy], i: usize, rmax: f64) -> Neighbours {
+    /// The points j > i within `rmax` of point i, sorted by j, appended
+    /// to `out`.
+    fn neighbours_into(&self, points: &[Xy], i: usize, rmax: f64, out: &mut Neighbours) {
         let p = points[i];
         let reach = rmax + self.guard;
         let (c0, c1) = (self.column(p[0] - reach), self.column(p[0] + reach));
         let (r0, r1) = (self.row(p[1] - reach), self.row(p[1] + reach));
-        let mut out = Vec::new();
         for row in r0..=r1 {
             let base = row * self.count[0];
             let run = self.start[base + c0]..self.start[base + c1 + 1];
@@ -175,7 +226,6 @@ impl Cells {
             }
         }
         out.sort_unstable_by_key(|&(j, _)| j);
-        out
     }
 }
 
@@ -243,6 +293,14 @@ mod tests {
                 let want = brute_force(pts, rmax);
                 assert_eq!(close_pairs(pts, rmax, false), want, "pattern {k} r {rmax}");
                 assert_eq!(close_pairs(pts, rmax, true), want, "pattern {k} r {rmax}");
+                // Centre by centre through one reused buffer, in a
+                // scrambled order: the same lists.
+                let search = PairSearch::new(pts, rmax);
+                let mut near = vec![(usize::MAX, f64::NAN)];
+                for i in (0..pts.len()).rev() {
+                    search.neighbours_into(i, &mut near);
+                    assert_eq!(near, want[i], "pattern {k} r {rmax} centre {i}");
+                }
             }
         }
         // The lattice at radius 1 has its 12·8 + 11·9 unit pairs.

@@ -7,6 +7,7 @@
 //! | [`numbers`] | rounding for human readers (JSON keeps full precision) |
 //! | [`table`] | `verdict.csv` and the terminal table |
 //! | [`markdown`] | `verdict.md` |
+//! | [`markdown_escape`] | escaping of user strings in every Markdown file |
 //! | [`methods`] | the methods paragraph for a manuscript |
 //! | [`outlines`] | `windows.geojson` |
 //! | [`windows_gpkg`] | `windows.gpkg`, the outlines as a GeoPackage layer in the measured plane |
@@ -16,7 +17,7 @@
 //! | [`palette`] | the one colour-and-dash palette of every picture |
 //! | [`canvas`] | the white SVG frame, the inked line and the legend box the pictures share |
 //! | [`html`] | `index.html`, the one self-contained file to attach |
-//! | [`folder`] | the output folder, written aside and renamed into place |
+//! | [`folder`] | the output folder, written aside and renamed into place, with the list of its files |
 //!
 //! Every writer takes any `io::Write`, so tests render into a `Vec<u8>`.
 
@@ -25,6 +26,7 @@ pub mod document;
 pub mod folder;
 pub mod html;
 pub mod markdown;
+pub mod markdown_escape;
 pub mod methods;
 pub mod numbers;
 pub mod outlines;
@@ -36,4 +38,6 @@ pub mod window_map;
 pub mod windows_gpkg;
 
 pub use document::{AuditReport, InputSummary, SCHEMA};
-pub use folder::{OutputFolder, write_folder, write_folder_with};
+pub use folder::{
+    FolderError, OutputFolder, Written, write_folder, write_folder_interruptible, write_folder_with,
+};

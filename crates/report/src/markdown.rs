@@ -1,17 +1,24 @@
 //! `verdict.md`: the table, the flip thresholds and the verdict in a form
-//! that pastes into a manuscript's supplement or a review.
+//! that pastes into a manuscript's supplement or a review. Every string
+//! that comes from the user (file names, `--unit`, boundary names inside
+//! window ids, warnings) goes through [`crate::markdown_escape`].
 
 use crate::document::AuditReport;
+use crate::markdown_escape::{code, prose, text};
 use crate::numbers::{opt, p_value, percent, sig};
 use crate::table::{call_word, flip_lines};
 use std::io;
 
 /// Write `verdict.md`.
 pub fn write_markdown<W: io::Write>(report: &AuditReport, mut out: W) -> io::Result<()> {
-    let u = &report.input.unit;
+    let u = &text(&report.input.unit);
     let i = &report.input;
-    writeln!(out, "# Nearest-neighbour audit of `{}`\n", i.points_file)?;
-    writeln!(out, "**Verdict:** {}.\n", report.summary.verdict)?;
+    writeln!(
+        out,
+        "# Nearest-neighbour audit of {}\n",
+        code(&i.points_file)
+    )?;
+    writeln!(out, "**Verdict:** {}.\n", prose(&report.summary.verdict))?;
     writeln!(
         out,
         "{} points analysed ({} read, {} duplicate(s){}); coordinates {}; distances in {u}, areas in {u}²; α = {} (two-sided, critical |z| = {:.4}); observed mean nearest-neighbour distance {} {u}.\n",
@@ -23,13 +30,13 @@ pub fn write_markdown<W: io::Write>(report: &AuditReport, mut out: W) -> io::Res
         } else {
             " kept"
         },
-        i.coords,
+        text(&i.coords),
         report.alpha,
         report.settings.z_crit,
         sig(report.mean_nn, 5),
     )?;
     if let Some(p) = &i.projection {
-        writeln!(out, "Projection: {p}.\n")?;
+        writeln!(out, "Projection: {}.\n", text(p))?;
     }
     writeln!(out, "## Windows\n")?;
     writeln!(
@@ -40,8 +47,8 @@ pub fn write_markdown<W: io::Write>(report: &AuditReport, mut out: W) -> io::Res
     for w in &report.windows {
         writeln!(
             out,
-            "| `{}` | {} | {} | {} | {} | {} |",
-            w.id,
+            "| {} | {} | {} | {} | {} | {} |",
+            code(&w.id),
             serde_json::to_value(w.kind)
                 .ok()
                 .and_then(|v| v.as_str().map(String::from))
@@ -53,7 +60,7 @@ pub fn write_markdown<W: io::Write>(report: &AuditReport, mut out: W) -> io::Res
         )?;
     }
     for n in &report.window_notes {
-        writeln!(out, "\n- {n}")?;
+        writeln!(out, "\n- {}", prose(n))?;
     }
     writeln!(out, "\n## Verdict table\n")?;
     writeln!(
@@ -68,8 +75,8 @@ pub fn write_markdown<W: io::Write>(report: &AuditReport, mut out: W) -> io::Res
         };
         writeln!(
             out,
-            "| `{}` | {} | {} | {} | {} | {} | {} | {} | {} | {} | {} |",
-            r.window,
+            "| {} | {} | {} | {} | {} | {} | {} | {} | {} | {} | {} |",
+            code(&r.window),
             r.edge,
             n,
             opt(r.mean_nn, 4),
@@ -79,13 +86,19 @@ pub fn write_markdown<W: io::Write>(report: &AuditReport, mut out: W) -> io::Res
             r.p.map_or("—".into(), p_value),
             call_word(r.call),
             r.size_under_csr.map_or("—".into(), percent),
-            r.note.clone().unwrap_or_default().replace('|', "/"),
+            prose(r.note.as_deref().unwrap_or_default()),
         )?;
     }
     if !report.skipped.is_empty() {
         writeln!(out, "\nNot computed:\n")?;
         for s in &report.skipped {
-            writeln!(out, "- `{}` with `{}`: {}", s.window, s.edge, s.reason)?;
+            writeln!(
+                out,
+                "- {} with `{}`: {}",
+                code(&s.window),
+                s.edge,
+                prose(&s.reason)
+            )?;
         }
     }
     writeln!(
@@ -108,8 +121,8 @@ pub fn write_markdown<W: io::Write>(report: &AuditReport, mut out: W) -> io::Res
     for w in &sm.per_window {
         writeln!(
             out,
-            "| `{}` | {} | {} | {} | {} |",
-            w.window,
+            "| {} | {} | {} | {} | {} |",
+            code(&w.window),
             w.calls.clustered,
             w.calls.dispersed,
             w.calls.not_significant,
@@ -119,18 +132,18 @@ pub fn write_markdown<W: io::Write>(report: &AuditReport, mut out: W) -> io::Res
     writeln!(out)?;
     writeln!(out, "## Where the call flips\n")?;
     for line in flip_lines(report) {
-        writeln!(out, "- {line}")?;
+        writeln!(out, "- {}", prose(&line))?;
     }
     writeln!(out, "\n## Methods paragraph\n")?;
-    writeln!(out, "{}", crate::methods::methods_paragraph(report))?;
+    writeln!(out, "{}", prose(&crate::methods::methods_paragraph(report)))?;
     writeln!(out, "\n## Cautions\n")?;
     for c in &report.cautions {
-        writeln!(out, "- {c}")?;
+        writeln!(out, "- {}", prose(c))?;
     }
     if !i.warnings.is_empty() {
         writeln!(out, "\n## Input warnings\n")?;
         for wn in &i.warnings {
-            writeln!(out, "- {wn}")?;
+            writeln!(out, "- {}", prose(wn))?;
         }
     }
     writeln!(

@@ -41,8 +41,12 @@ pub fn stream_label(window_id: &str) -> String {
     format!("scales:{window_id}")
 }
 
-/// The simulated L̂ − r curves: `[simulation][correction][grid index]`,
-/// in the order of `corrections`.
+/// The simulated L̂ − r curves: `[correction][simulation][grid index]`,
+/// corrections in the order of `corrections`. Only the L̂ − r curve of each
+/// pattern is kept (its K̂ and L̂ are dropped as soon as it is measured):
+/// both global tests need every simulated curve across the distances, so
+/// this is the part of a run that grows with `sims`
+/// ([`crate::memory::bytes_per_simulation`]).
 // Every argument is a distinct, plain input of the simulation; bundling
 // them would only move the list into a struct literal at the one caller.
 #[allow(clippy::too_many_arguments)]
@@ -57,7 +61,7 @@ pub fn simulate(
     label: &str,
     tick: &(dyn Fn() + Sync),
 ) -> Vec<Vec<Vec<Option<f64>>>> {
-    (0..sims)
+    let by_simulation: Vec<Vec<Vec<Option<f64>>>> = (0..sims)
         .into_par_iter()
         .map(|k| {
             let mut rng = stream(seed, label, k as u64);
@@ -66,7 +70,18 @@ pub fn simulate(
             tick();
             curves.into_iter().map(|c| c.l_minus_r).collect()
         })
-        .collect()
+        .collect();
+    // Regroup by correction, moving the curves (no copy).
+    let mut by_correction: Vec<Vec<Vec<Option<f64>>>> = corrections
+        .iter()
+        .map(|_| Vec::with_capacity(sims))
+        .collect();
+    for curves in by_simulation {
+        for (into, curve) in by_correction.iter_mut().zip(curves) {
+            into.push(curve);
+        }
+    }
+    by_correction
 }
 
 /// The test of one window and one correction.

@@ -7,18 +7,21 @@
 //! average under complete spatial randomness (CSR) and positive for
 //! clustering at distance r.
 //!
-//! Every pair closer than r_max is visited once ([`patternproof_core::close_pairs`]); its
-//! isotropic weights (both directions: the weight is not symmetric) and
-//! its translation weight are computed once and cached for all distances of
-//! the grid. Work is parallel over centres; sums are taken in centre order,
-//! so the numbers do not depend on the thread count.
+//! Every pair closer than r_max is visited once
+//! ([`patternproof_core::close_pairs::PairSearch`], centre by centre); its
+//! isotropic weights (both directions: the weight is not symmetric) and its
+//! translation weight are computed once and added to the bin of its
+//! distance, and a cumulative sum over the bins gives every distance of the
+//! grid. No list of pairs is kept, so memory grows with n, not with the
+//! number of pairs. Work is parallel over centres; sums are taken in centre
+//! order, so the numbers do not depend on the thread count.
 
 use crate::border;
 use crate::isotropic;
 use crate::region::Region;
 use crate::translation;
 use patternproof_core::Xy;
-use patternproof_core::close_pairs::close_pairs;
+use patternproof_core::close_pairs::{Neighbours, PairSearch};
 use rayon::prelude::*;
 use serde::Serialize;
 use std::f64::consts::PI;
@@ -98,17 +101,67 @@ pub struct PairNotes {
 
 /// One pair's contribution, binned.
 struct Contribution {
-    bin: usize,
+    bin: u32,
+    /// Border: the bins' end (exclusive) for the centre i and for j.
+    border_end: [u32; 2],
     iso: f64,
     trans: f64,
-    /// Border: the bins end (exclusive) for the centre i and for j.
-    border_end: [usize; 2],
+}
+
+/// Pairs weighed between two merges of the parallel path: a bound on the
+/// contributions held at once (32 bytes each, so about 8 MiB), whatever
+/// the number of pairs in the pattern.
+const WAVE_PAIRS: usize = 1 << 18;
+
+/// The per-bin sums of the pair weights, before the cumulative sum over
+/// the grid, with the pair notes.
+struct Sums {
+    iso: Vec<f64>,
+    trans: Vec<f64>,
+    border: Vec<f64>,
+    notes: PairNotes,
+}
+
+impl Sums {
+    fn new(steps: usize) -> Self {
+        Self {
+            iso: vec![0.0; steps + 1],
+            trans: vec![0.0; steps + 1],
+            border: vec![0.0; steps + 1],
+            notes: PairNotes::default(),
+        }
+    }
+
+    /// Add contributions in the order given. Every caller adds them in
+    /// centre order and, within a centre, in neighbour order, so the sums
+    /// take the same floating-point path for any thread count and any
+    /// split into waves.
+    fn add(&mut self, contributions: &[Contribution]) {
+        self.notes.pairs += contributions.len();
+        for c in contributions {
+            let bin = c.bin as usize;
+            self.iso[bin] += c.iso;
+            self.trans[bin] += c.trans;
+            for end in c.border_end {
+                let end = end as usize;
+                if end > bin {
+                    self.border[bin] += 1.0;
+                    self.border[end] -= 1.0;
+                }
+            }
+        }
+    }
 }
 
 /// K̂, L̂ and L̂ − r of `points` (all inside `region`) on `grid` for each
 /// correction in `corrections`. `parallel` spreads centres over threads
 /// (the observed pattern); simulations call it with `false` and run in
 /// parallel themselves.
+///
+/// Memory grows with n, not with the number of pairs: the pairs of each
+/// centre are weighed as the range search finds them and added to the
+/// distance bins, and the parallel path holds at most about
+/// [`WAVE_PAIRS`] weighed pairs between two merges.
 pub fn k_curves(
     points: &[Xy],
     region: &Region,
@@ -125,7 +178,7 @@ pub fn k_curves(
         want(Correction::Translation),
         want(Correction::Border),
     );
-    let pairs = close_pairs(points, rmax, parallel);
+    let search = PairSearch::new(points, rmax);
     // Distance of every point to the outline: the border estimator's
     // rule, and the isotropic shortcut (a circle shorter than it lies
     // wholly inside, weight exactly 1, no edge search).
@@ -134,8 +187,11 @@ pub fn k_curves(
     } else {
         Vec::new()
     };
-    let border_end: Vec<usize> = if do_border {
-        b.iter().map(|&d| border::counted_up_to(grid, d)).collect()
+    // At most `steps` (≤ the CLI's 10 000), so it fits a u32.
+    let border_end: Vec<u32> = if do_border {
+        b.iter()
+            .map(|&d| border::counted_up_to(grid, d) as u32)
+            .collect()
     } else {
         Vec::new()
     };
@@ -147,73 +203,106 @@ pub fn k_curves(
         }
     };
 
-    let per_centre = |i: usize| -> (Vec<Contribution>, usize, usize) {
-        let mut out = Vec::with_capacity(pairs[i].len());
+    // Weigh the pairs (i, j > i) of centres `from..to`, appending to `out`;
+    // returns the capped and dropped counts.
+    let weigh = |from: usize,
+                 to: usize,
+                 near: &mut Neighbours,
+                 out: &mut Vec<Contribution>|
+     -> (usize, usize) {
         let (mut capped, mut dropped) = (0, 0);
-        for &(j, d) in &pairs[i] {
-            let bin = grid.partition_point(|&r| r < d);
-            if bin >= steps {
-                continue;
-            }
-            let iso = if do_iso {
-                let (a, ca) = iso_weight(i, d);
-                let (c, cc) = iso_weight(j, d);
-                capped += usize::from(ca) + usize::from(cc);
-                a + c
-            } else {
-                0.0
-            };
-            let trans = if do_trans {
-                let v = [points[i][0] - points[j][0], points[i][1] - points[j][1]];
-                match translation::weight(region, v) {
-                    Some(w) => 2.0 * w,
-                    None => {
-                        dropped += 1;
-                        0.0
-                    }
+        for i in from..to {
+            search.neighbours_into(i, near);
+            for &(j, d) in near.iter() {
+                let bin = grid.partition_point(|&r| r < d);
+                if bin >= steps {
+                    continue;
                 }
-            } else {
-                0.0
-            };
-            let ends = if do_border {
-                [border_end[i], border_end[j]]
-            } else {
-                [0, 0]
-            };
-            out.push(Contribution {
-                bin,
-                iso,
-                trans,
-                border_end: ends,
-            });
+                let iso = if do_iso {
+                    let (a, ca) = iso_weight(i, d);
+                    let (c, cc) = iso_weight(j, d);
+                    capped += usize::from(ca) + usize::from(cc);
+                    a + c
+                } else {
+                    0.0
+                };
+                let trans = if do_trans {
+                    let v = [points[i][0] - points[j][0], points[i][1] - points[j][1]];
+                    match translation::weight(region, v) {
+                        Some(w) => 2.0 * w,
+                        None => {
+                            dropped += 1;
+                            0.0
+                        }
+                    }
+                } else {
+                    0.0
+                };
+                let ends = if do_border {
+                    [border_end[i], border_end[j]]
+                } else {
+                    [0, 0]
+                };
+                out.push(Contribution {
+                    bin: bin as u32,
+                    border_end: ends,
+                    iso,
+                    trans,
+                });
+            }
         }
-        (out, capped, dropped)
-    };
-    let contributions: Vec<(Vec<Contribution>, usize, usize)> = if parallel {
-        (0..n).into_par_iter().map(per_centre).collect()
-    } else {
-        (0..n).map(per_centre).collect()
+        (capped, dropped)
     };
 
-    let mut iso = vec![0.0; steps + 1];
-    let mut trans = vec![0.0; steps + 1];
-    let mut bord = vec![0.0; steps + 1];
-    let mut notes = PairNotes::default();
-    for (list, capped, dropped) in &contributions {
-        notes.isotropic_capped += capped;
-        notes.translation_dropped += dropped;
-        notes.pairs += list.len();
-        for c in list {
-            iso[c.bin] += c.iso;
-            trans[c.bin] += c.trans;
-            for end in c.border_end {
-                if end > c.bin {
-                    bord[c.bin] += 1.0;
-                    bord[end] -= 1.0;
-                }
+    let mut sums = Sums::new(steps);
+    let mut near = Neighbours::new();
+    let mut out = Vec::new();
+    if parallel {
+        // Waves of centres: each wave is weighed in parallel, chunk by
+        // chunk, and merged in chunk order before the next starts. A wave
+        // is sized from the pairs per centre seen so far, to hold about
+        // WAVE_PAIRS pairs; the size changes only the memory held, not
+        // the sums (see `Sums::add`).
+        let threads = rayon::current_num_threads().max(1);
+        // Small at first, since a centre may have any number of pairs.
+        let mut wave = 16 * threads;
+        let mut next = 0;
+        while next < n {
+            let end = (next + wave).min(n);
+            let chunk = (end - next).div_ceil(8 * threads).max(1);
+            let starts: Vec<usize> = (next..end).step_by(chunk).collect();
+            let parts: Vec<(Vec<Contribution>, usize, usize)> = starts
+                .into_par_iter()
+                .map_init(Neighbours::new, |near, from| {
+                    let mut part = Vec::new();
+                    let (capped, dropped) = weigh(from, (from + chunk).min(end), near, &mut part);
+                    (part, capped, dropped)
+                })
+                .collect();
+            let mut seen = 0;
+            for (part, capped, dropped) in &parts {
+                sums.add(part);
+                sums.notes.isotropic_capped += capped;
+                sums.notes.translation_dropped += dropped;
+                seen += part.len();
             }
+            let per_centre = seen as f64 / (end - next) as f64;
+            // At most four times the last wave: the next centres may lie in
+            // a denser part of the pattern.
+            let fits = (WAVE_PAIRS as f64 / per_centre.max(1.0)) as usize;
+            wave = fits.clamp(1, 4 * (end - next));
+            next = end;
+        }
+    } else {
+        for i in 0..n {
+            out.clear();
+            let (capped, dropped) = weigh(i, i + 1, &mut near, &mut out);
+            sums.add(&out);
+            sums.notes.isotropic_capped += capped;
+            sums.notes.translation_dropped += dropped;
         }
     }
+
     let cumulative = |v: &[f64]| -> Vec<f64> {
         v[..steps]
             .iter()
@@ -231,25 +320,25 @@ pub fn k_curves(
     let mut curves = Vec::new();
     for &c in corrections {
         let k: Vec<Option<f64>> = match c {
-            Correction::Isotropic => cumulative(&iso)
+            Correction::Isotropic => cumulative(&sums.iso)
                 .into_iter()
                 .map(|s| (n > 1).then_some(s * scale))
                 .collect(),
-            Correction::Translation => cumulative(&trans)
+            Correction::Translation => cumulative(&sums.trans)
                 .into_iter()
                 .map(|s| (n > 1).then_some(s * scale))
                 .collect(),
             Correction::Border => {
-                let counts = cumulative(&bord);
+                let counts = cumulative(&sums.border);
                 let centres: Vec<usize> = (0..steps)
-                    .map(|k| border_end.iter().filter(|&&e| e > k).count())
+                    .map(|k| border_end.iter().filter(|&&e| e as usize > k).count())
                     .collect();
                 border::estimate(region.area, n, &counts, &centres)
             }
         };
         curves.push(curve(c, k, grid));
     }
-    (curves, notes)
+    (curves, sums.notes)
 }
 
 /// L̂ and L̂ − r from K̂.

@@ -12,18 +12,20 @@
 //! | [`isotropic`] | Ripley's (1977) isotropic weight from the exact arc length of a circle inside the window |
 //! | [`translation`] | the Ohser–Stoyan translation weight from an exact polygon intersection area |
 //! | [`border`] | the reduced-sample (border) estimator |
-//! | [`k_function`] | K̂, L̂ and L̂ − r on a distance grid for any correction |
+//! | [`k_function`] | K̂, L̂ and L̂ − r on a distance grid for any correction, summed per distance bin |
+//! | [`memory`] | what a run holds in memory, estimated before it starts |
 //! | [`envelope`] | CSR simulations, the maximum absolute deviation test and its global band |
 //! | [`rank_envelope`] | the global rank envelope test with extreme-rank-length ordering (ERL), its p-value and band |
 //! | [`verdict`] | distance bands of clustering / regularity and the sentence across windows |
 //! | [`plot`] | the SVG pictures |
-//! | [`scales`] | the whole run over windows × corrections |
+//! | [`scales`] | the whole run over windows × corrections, planned before it runs |
 //! | [`summary`] | the Markdown summary, the CSV table and the terminal lines |
 
 pub mod border;
 pub mod envelope;
 pub mod isotropic;
 pub mod k_function;
+pub mod memory;
 pub mod plot;
 pub mod rank_envelope;
 pub mod region;
@@ -36,4 +38,4 @@ pub mod verdict;
 
 pub use k_function::{Correction, KCurve, distance_grid};
 pub use region::Region;
-pub use scales::{ScalesOptions, ScalesRun, WindowScales, run_scales};
+pub use scales::{Plan, ScalesOptions, ScalesRun, WindowScales, plan, run_scales};

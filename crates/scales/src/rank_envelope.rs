@@ -71,8 +71,13 @@ pub fn rank_envelope(
         .filter(|&k| curves.iter().all(|c| c[k].is_some()))
         .collect();
     let value = |i: usize, k: usize| curves[i][k].unwrap_or(f64::NAN);
-    // Pointwise ranks, curve by curve, over the defined distances.
-    let mut ranks: Vec<Vec<usize>> = vec![Vec::with_capacity(defined.len()); s];
+    // Pointwise ranks, curve by curve, over the defined distances; held as
+    // u32 (half the memory of usize: this table grows with the
+    // simulations), saturating only beyond 4·10⁹ curves, far more than
+    // any machine holds.
+    // (Each list allocated at its final length: `vec![v; s]` would clone
+    // empty lists and let them grow by doubling.)
+    let mut ranks: Vec<Vec<u32>> = (0..s).map(|_| Vec::with_capacity(defined.len())).collect();
     let mut column: Vec<f64> = Vec::with_capacity(s);
     for &k in &defined {
         column.clear();
@@ -83,12 +88,12 @@ pub fn rank_envelope(
             // #{≤ v} and #{≥ v} from the sorted column.
             let at_most = sorted.partition_point(|&x| x <= v);
             let at_least = s - sorted.partition_point(|&x| x < v);
-            ranks[i].push(at_most.min(at_least));
+            ranks[i].push(u32::try_from(at_most.min(at_least)).unwrap_or(u32::MAX));
         }
     }
     let extreme: Vec<usize> = ranks
         .iter()
-        .map(|r| r.iter().copied().min().unwrap_or(s))
+        .map(|r| r.iter().copied().min().map_or(s, |v| v as usize))
         .collect();
     for r in &mut ranks {
         r.sort_unstable();

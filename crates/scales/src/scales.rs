@@ -153,6 +153,27 @@ pub fn cautions() -> Vec<String> {
     ]
 }
 
+/// The fewest simulations that can give a global band at `alpha`:
+/// ⌊α(N + 1)⌋ ≥ 1 (the rule of [`crate::envelope`]).
+pub fn fewest_simulations(alpha: f64) -> usize {
+    ((1.0 - 1e-9) / alpha).ceil().max(1.0) as usize - 1
+}
+
+/// A caution when the run simulated too few patterns for any departure
+/// to show at its α: the verdict "no departure" then says nothing.
+fn too_few_simulations(options: &ScalesOptions) -> Option<String> {
+    let fewest = fewest_simulations(options.alpha);
+    (options.sims > 0 && options.sims < fewest && !options.tested.is_empty()).then(|| {
+        format!(
+            "{} simulations are too few for a test at α = {}: the smallest possible p is 1/{} = {:.3}, so no departure can show. Use at least {fewest} (--sims {fewest}).",
+            options.sims,
+            options.alpha,
+            options.sims + 1,
+            1.0 / (options.sims + 1) as f64
+        )
+    })
+}
+
 /// Decide how the translation overlaps of one window are found, and
 /// tabulate them when the run weighs many pairs
 /// ([`translation::worth_a_table`]).
@@ -181,14 +202,23 @@ fn translation_weights(
     }
 }
 
-/// Run every window. `tick` is called once per simulated pattern.
-pub fn run_scales(
-    points: &[Xy],
-    windows: &[Window],
-    unit: &str,
-    options: &ScalesOptions,
-    tick: &(dyn Fn() + Sync),
-) -> ScalesRun {
+/// The windows of a run, prepared and checked, before any estimate or
+/// simulation: what the command needs to forecast the run's memory and
+/// time before starting it.
+pub struct Plan<'a> {
+    points: &'a [Xy],
+    /// The analysable windows with their prepared outlines (translation
+    /// overlap tables included).
+    usable: Vec<(&'a Window, Region, Option<&'static str>)>,
+    skipped: Vec<Skipped>,
+    rmax: f64,
+    rmax_rule: String,
+    grid: Vec<f64>,
+}
+
+/// Prepare every window of `windows` for `options`: outlines, the shared
+/// distance grid, translation tables where worth it.
+pub fn plan<'a>(points: &'a [Xy], windows: &'a [Window], options: &ScalesOptions) -> Plan<'a> {
     let mut skipped = Vec::new();
     let mut usable: Vec<(&Window, Region)> = Vec::new();
     for w in windows {
@@ -224,14 +254,71 @@ pub fn run_scales(
             "default: a quarter of the shorter side of the bounding rectangle of the window where that side is smallest".to_string(),
         ),
     };
-    let grid = distance_grid(rmax, options.steps);
-    let mut results = Vec::new();
-    for (w, region) in &usable {
-        let pts: Vec<Xy> = w.inside.iter().map(|&i| points[i]).collect();
-        let mut region = region.clone();
-        let translation_weights = translation_weights(&mut region, pts.len(), rmax, options);
-        let region = &region;
-        let (curves, pair_notes) = k_curves(&pts, region, &grid, &options.corrections, true);
+    let usable = usable
+        .into_iter()
+        .map(|(w, mut region)| {
+            let how = translation_weights(&mut region, w.inside.len(), rmax, options);
+            (w, region, how)
+        })
+        .collect();
+    Plan {
+        points,
+        usable,
+        skipped,
+        rmax,
+        rmax_rule,
+        grid: distance_grid(rmax, options.steps),
+    }
+}
+
+impl Plan<'_> {
+    /// Windows that will be analysed.
+    pub fn windows(&self) -> usize {
+        self.usable.len()
+    }
+
+    /// Simulated patterns the run will draw (each one `tick`).
+    pub fn simulated_patterns(&self, options: &ScalesOptions) -> usize {
+        if options.tested.is_empty() {
+            return 0;
+        }
+        options.sims.saturating_mul(self.usable.len())
+    }
+
+    /// Seconds one thread takes for one simulated pattern of every window
+    /// together, from one trial pattern per window (own random stream, so
+    /// no result changes). For the forecast only.
+    pub fn trial_seconds(&self, options: &ScalesOptions) -> f64 {
+        let mut seconds = 0.0;
+        for (w, region, _) in &self.usable {
+            let Some(sampler) = Sampler::new(&region.shape) else {
+                continue;
+            };
+            let started = std::time::Instant::now();
+            let mut rng = patternproof_audit::streams::stream(
+                options.seed,
+                &format!("trial:{}", stream_label(&w.id)),
+                0,
+            );
+            let pts = sampler.sample(w.inside.len(), &mut rng);
+            let _ = k_curves(&pts, region, &self.grid, &options.tested, false);
+            seconds += started.elapsed().as_secs_f64();
+        }
+        seconds
+    }
+
+    /// The curves, tests and bands of one window.
+    fn window(
+        &self,
+        w: &Window,
+        region: &Region,
+        translation_weights: Option<&'static str>,
+        options: &ScalesOptions,
+        tick: &(dyn Fn() + Sync),
+    ) -> WindowScales {
+        let grid = &self.grid;
+        let pts: Vec<Xy> = w.inside.iter().map(|&i| self.points[i]).collect();
+        let (curves, pair_notes) = k_curves(&pts, region, grid, &options.corrections, true);
         let mut tests = Vec::new();
         if options.sims > 0 && !options.tested.is_empty() {
             if let Some(sampler) = Sampler::new(&region.shape) {
@@ -239,7 +326,7 @@ pub fn run_scales(
                     region,
                     &sampler,
                     pts.len(),
-                    &grid,
+                    grid,
                     &options.tested,
                     options.sims,
                     options.seed,
@@ -252,14 +339,12 @@ pub fn run_scales(
                         .find(|k| k.correction == c)
                         .map(|k| k.l_minus_r.clone())
                         .unwrap_or_else(|| vec![None; grid.len()]);
-                    let simulated: Vec<Vec<Option<f64>>> =
-                        sims.iter().map(|s| s[t].clone()).collect();
-                    tests.push(global_tests(c, &observed, &simulated, options.alpha));
+                    tests.push(global_tests(c, &observed, &sims[t], options.alpha));
                 }
             }
         }
-        let window_bands = tests.iter().map(|t| bands(&t.departure, &grid)).collect();
-        results.push(WindowScales {
+        let window_bands = tests.iter().map(|t| bands(&t.departure, grid)).collect();
+        WindowScales {
             id: w.id.clone(),
             kind: w.kind,
             area: region.area,
@@ -270,43 +355,74 @@ pub fn run_scales(
             bands: window_bands,
             pairs: pair_notes,
             translation_weights,
-        });
+        }
     }
-    let verdicts = options
-        .tested
-        .iter()
-        .filter(|_| options.sims > 0)
-        .map(|&c| {
-            let tested: Vec<(&str, &[i8])> = results
-                .iter()
-                .filter_map(|w| {
-                    w.tests
-                        .iter()
-                        .find(|t| t.correction == c)
-                        .map(|t| (w.id.as_str(), t.departure.as_slice()))
-                })
-                .collect();
-            Verdict {
-                correction: c,
-                sentence: sentence(&tested, &grid, unit),
-            }
-        })
-        .collect();
-    ScalesRun {
-        schema: SCHEMA,
-        n_points: points.len(),
-        unit: unit.to_string(),
-        rmax,
-        rmax_rule,
-        r: grid,
-        corrections: options.corrections.clone(),
-        tested: options.tested.clone(),
-        sims: options.sims,
-        seed: options.seed,
-        alpha: options.alpha,
-        windows: results,
-        skipped,
-        verdicts,
-        cautions: cautions(),
+
+    /// Run every window. `tick` is called once per simulated pattern.
+    pub fn run(self, unit: &str, options: &ScalesOptions, tick: &(dyn Fn() + Sync)) -> ScalesRun {
+        let results: Vec<WindowScales> = self
+            .usable
+            .iter()
+            .map(|(w, region, how)| self.window(w, region, *how, options, tick))
+            .collect();
+        let Plan {
+            points,
+            skipped,
+            rmax,
+            rmax_rule,
+            grid,
+            ..
+        } = self;
+        let verdicts = options
+            .tested
+            .iter()
+            .filter(|_| options.sims > 0)
+            .map(|&c| {
+                let tested: Vec<(&str, &[i8])> = results
+                    .iter()
+                    .filter_map(|w| {
+                        w.tests
+                            .iter()
+                            .find(|t| t.correction == c)
+                            .map(|t| (w.id.as_str(), t.departure.as_slice()))
+                    })
+                    .collect();
+                Verdict {
+                    correction: c,
+                    sentence: sentence(&tested, &grid, unit),
+                }
+            })
+            .collect();
+        ScalesRun {
+            schema: SCHEMA,
+            n_points: points.len(),
+            unit: unit.to_string(),
+            rmax,
+            rmax_rule,
+            r: grid,
+            corrections: options.corrections.clone(),
+            tested: options.tested.clone(),
+            sims: options.sims,
+            seed: options.seed,
+            alpha: options.alpha,
+            windows: results,
+            skipped,
+            verdicts,
+            cautions: cautions()
+                .into_iter()
+                .chain(too_few_simulations(options))
+                .collect(),
+        }
     }
+}
+
+/// Run every window. `tick` is called once per simulated pattern.
+pub fn run_scales(
+    points: &[Xy],
+    windows: &[Window],
+    unit: &str,
+    options: &ScalesOptions,
+    tick: &(dyn Fn() + Sync),
+) -> ScalesRun {
+    plan(points, windows, options).run(unit, options, tick)
 }

@@ -12,23 +12,39 @@ fn opt(v: Option<f64>) -> String {
 
 /// `scales.csv`: one row per window × correction × distance, with the
 /// envelope columns filled for the tested corrections. Full precision.
+/// Written by the `csv` crate, so a window id with a comma or a quote (a
+/// boundary's name) is quoted as RFC 4180 says.
 pub fn csv(run: &ScalesRun) -> String {
-    let mut s = String::from(
-        "window,correction,r,k,l,l_minus_r,centre,global_lo,global_hi,pointwise_lo,pointwise_hi,departure,erl_lo,erl_hi,erl_departure\n",
-    );
-    for w in &run.windows {
-        for c in &w.curves {
-            let test = w.tests.iter().find(|t| t.correction == c.correction);
+    let mut w = csv::Writer::from_writer(Vec::new());
+    let _ = w.write_record([
+        "window",
+        "correction",
+        "r",
+        "k",
+        "l",
+        "l_minus_r",
+        "centre",
+        "global_lo",
+        "global_hi",
+        "pointwise_lo",
+        "pointwise_hi",
+        "departure",
+        "erl_lo",
+        "erl_hi",
+        "erl_departure",
+    ]);
+    for win in &run.windows {
+        for c in &win.curves {
+            let test = win.tests.iter().find(|t| t.correction == c.correction);
             for (k, r) in run.r.iter().enumerate() {
                 let t = |f: fn(&crate::envelope::EnvelopeTest) -> &Vec<Option<f64>>| {
                     test.map_or(String::new(), |t| opt(f(t)[k]))
                 };
                 let rank = test.and_then(|t| t.rank.as_ref());
-                let _ = writeln!(
-                    s,
-                    "{},{},{r},{},{},{},{},{},{},{},{},{},{},{},{}",
-                    w.id,
-                    c.correction.as_str(),
+                let _ = w.write_record([
+                    win.id.clone(),
+                    c.correction.as_str().to_string(),
+                    format!("{r}"),
                     opt(c.k[k]),
                     opt(c.l[k]),
                     opt(c.l_minus_r[k]),
@@ -41,11 +57,14 @@ pub fn csv(run: &ScalesRun) -> String {
                     rank.map_or(String::new(), |e| opt(e.lo[k])),
                     rank.map_or(String::new(), |e| opt(e.hi[k])),
                     rank.map_or(String::new(), |e| e.departure[k].to_string()),
-                );
+                ]);
             }
         }
     }
-    s
+    // Writing into memory cannot fail; the text is ASCII digits, names
+    // and UTF-8 window ids.
+    let bytes = w.into_inner().unwrap_or_default();
+    String::from_utf8(bytes).unwrap_or_default()
 }
 
 /// The per-window table lines (terminal and Markdown share them).
@@ -97,14 +116,15 @@ pub fn table_rows(run: &ScalesRun) -> Vec<[String; 7]> {
 
 /// `scales.md`.
 pub fn markdown(run: &ScalesRun) -> String {
+    use patternproof_report::markdown_escape::{code, prose, text};
     let mut s = String::from("# Multi-scale audit: L(r) − r across windows\n\n");
     let _ = writeln!(
         s,
         "{} points; distances up to {} {} ({}), {} grid steps; {} CSR simulations per window, seed {}, α = {}.\n",
         run.n_points,
         distance(run.rmax),
-        run.unit,
-        run.rmax_rule,
+        text(&run.unit),
+        prose(&run.rmax_rule),
         run.r.len(),
         run.sims,
         run.seed,
@@ -112,7 +132,12 @@ pub fn markdown(run: &ScalesRun) -> String {
     );
     s.push_str("## Verdict\n\n");
     for v in &run.verdicts {
-        let _ = writeln!(s, "- {} correction: {}.", v.correction.as_str(), v.sentence);
+        let _ = writeln!(
+            s,
+            "- {} correction: {}.",
+            v.correction.as_str(),
+            prose(&v.sentence)
+        );
     }
     if run.verdicts.is_empty() {
         s.push_str("- no envelope test was run (`--sims 0`).\n");
@@ -122,16 +147,22 @@ pub fn markdown(run: &ScalesRun) -> String {
     for r in table_rows(run) {
         let _ = writeln!(
             s,
-            "| `{}` | {} | {} | {} | {} | {} | {} |",
-            r[0], r[1], r[2], r[3], r[4], r[5], r[6]
+            "| {} | {} | {} | {} | {} | {} | {} |",
+            code(&r[0]),
+            text(&r[1]),
+            text(&r[2]),
+            text(&r[3]),
+            text(&r[4]),
+            text(&r[5]),
+            prose(&r[6])
         );
     }
     for k in &run.skipped {
-        let _ = writeln!(s, "\nSkipped `{}`: {}.", k.window, k.reason);
+        let _ = writeln!(s, "\nSkipped {}: {}.", code(&k.window), prose(&k.reason));
     }
     s.push_str("\n## What this does and does not show\n\n");
     for c in &run.cautions {
-        let _ = writeln!(s, "- {c}");
+        let _ = writeln!(s, "- {}", prose(c));
     }
     s
 }

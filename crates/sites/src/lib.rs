@@ -13,16 +13,19 @@
 //!
 //! | module | job |
 //! |---|---|
+//! | [`folder_name`] | a safe, unique folder name for each site's report |
 //! | [`pick`] | finds the protocol's window among a site's windows |
 //! | [`render`] | `sites.csv`, `sites.md`, `sites.json` |
 //! | [`forest`] | the site-by-site picture of R and its interval |
 //! | [`page`] | `index.html` of the run |
 
+pub mod folder_name;
 pub mod forest;
 pub mod page;
 pub mod pick;
 pub mod render;
 
+use patternproof_audit::simulation;
 use patternproof_audit::streams::label_hash;
 use patternproof_audit::sweep::window_rows;
 use patternproof_audit::window::{BufferRule, NamedShape, WindowOptions};
@@ -123,12 +126,118 @@ pub fn site_seed(seed: u64, name: &str) -> u64 {
 /// Run every site (in parallel; the order of `inputs` is kept) and adjust
 /// the p-values across the tested sites.
 pub fn run_sites(inputs: &[SiteInput], protocol: &Protocol, opts: RunOptions) -> Vec<SiteRun> {
+    run_sites_with(inputs, protocol, opts, &|| {})
+}
+
+/// [`run_sites`], calling `tick` once per simulated pattern (progress
+/// bars; [`simulated_patterns`] gives the total).
+pub fn run_sites_with(
+    inputs: &[SiteInput],
+    protocol: &Protocol,
+    opts: RunOptions,
+    tick: &(dyn Fn() + Sync),
+) -> Vec<SiteRun> {
     let mut runs: Vec<SiteRun> = inputs
         .par_iter()
-        .map(|s| run_site(s, protocol, opts))
+        .map(|s| run_site_with(s, protocol, opts, tick))
         .collect();
     adjust(&mut runs, protocol);
     runs
+}
+
+/// The windows with an outline a site's sweep builds (and simulates in):
+/// bounding box, hull, concave hull, the default buffers plus the
+/// protocol's own, and the site's boundary. An upper bound, since a
+/// window that cannot be drawn is left out.
+pub fn outlined_windows(protocol: &Protocol, has_boundary: bool) -> usize {
+    let extra = match protocol.window {
+        WindowRule::HullPlus { .. } | WindowRule::HullPlusKnn { .. } => 1,
+        _ => 0,
+    };
+    3 + BufferRule::defaults().len() + extra + usize::from(has_boundary)
+}
+
+/// Simulated patterns of a run at most (the progress bar's total): every
+/// site's sweep, and the protocol window again when the protocol asks for
+/// another number of simulations than the sweep.
+pub fn simulated_patterns(inputs: &[SiteInput], protocol: &Protocol, opts: RunOptions) -> u64 {
+    let again = if protocol.sims == opts.sweep_sims {
+        0
+    } else {
+        protocol.sims as u64
+    };
+    inputs
+        .iter()
+        .filter(|s| s.points.len() >= protocol.min_n)
+        .map(|s| {
+            let windows = outlined_windows(protocol, s.boundary.is_some()) as u64;
+            (opts.sweep_sims as u64)
+                .saturating_mul(windows)
+                .saturating_add(again)
+        })
+        .fold(0u64, u64::saturating_add)
+}
+
+/// The memory a run needs beyond its input, with `threads` threads.
+///
+/// Kept until the folders are written: each site's sweep with its
+/// simulated means (8 bytes per simulation and window). Per thread, for
+/// the site in flight: the statistics of the window being simulated
+/// ([`simulation::BYTES_WHILE_SIMULATING`] per simulation, the protocol's
+/// number when larger), the copies of its means the report takes while
+/// its folder is rendered (16 bytes per simulation and window), and its
+/// points' share of the sweep ([`simulation::bytes_per_point`]).
+pub fn run_bytes(
+    inputs: &[SiteInput],
+    protocol: &Protocol,
+    opts: RunOptions,
+    threads: usize,
+) -> u64 {
+    let sweep = opts.sweep_sims as u64;
+    let mut kept = 0u64;
+    let (mut widest, mut largest) = (0u64, 0u64);
+    for s in inputs {
+        let windows = outlined_windows(protocol, s.boundary.is_some()) as u64;
+        kept = kept.saturating_add((8 * windows).saturating_mul(sweep));
+        widest = widest.max(windows);
+        let points = (s.points.len() as u64)
+            .saturating_mul(simulation::bytes_per_point(windows as usize, 1));
+        largest = largest.max(points);
+    }
+    let simulating =
+        simulation::BYTES_WHILE_SIMULATING.saturating_mul(sweep.max(protocol.sims as u64));
+    let rendering = (16 * widest).saturating_mul(sweep);
+    let per_thread = simulating.saturating_add(rendering).saturating_add(largest);
+    kept.saturating_add(per_thread.saturating_mul(threads as u64))
+}
+
+/// Seconds the whole run would take on `threads` threads, forecast from
+/// `trial`, the seconds one thread takes for one simulated pattern of
+/// `trial_n` points (the cost of a pattern grows about linearly with its
+/// points).
+pub fn forecast_seconds(
+    inputs: &[SiteInput],
+    protocol: &Protocol,
+    opts: RunOptions,
+    trial: f64,
+    trial_n: usize,
+    threads: usize,
+) -> f64 {
+    let per_point = trial / trial_n.max(1) as f64;
+    let again = if protocol.sims == opts.sweep_sims {
+        0.0
+    } else {
+        protocol.sims as f64
+    };
+    let work: f64 = inputs
+        .iter()
+        .filter(|s| s.points.len() >= protocol.min_n)
+        .map(|s| {
+            let windows = outlined_windows(protocol, s.boundary.is_some()) as f64;
+            (opts.sweep_sims as f64 * windows + again) * s.points.len() as f64
+        })
+        .sum();
+    work * per_point / threads.max(1) as f64
 }
 
 /// Fill `p_adjusted` and `call` across the tested sites.
@@ -174,6 +283,16 @@ fn not_tested(input: &SiteInput, seed: u64, reason: String) -> SiteRun {
 
 /// One site: its sweep, its protocol row, its sensitivity flag.
 pub fn run_site(input: &SiteInput, protocol: &Protocol, opts: RunOptions) -> SiteRun {
+    run_site_with(input, protocol, opts, &|| {})
+}
+
+/// [`run_site`], calling `tick` once per simulated pattern.
+pub fn run_site_with(
+    input: &SiteInput,
+    protocol: &Protocol,
+    opts: RunOptions,
+    tick: &(dyn Fn() + Sync),
+) -> SiteRun {
     let seed = site_seed(protocol.seed, &input.name);
     let n = input.points.len();
     if n < protocol.min_n {
@@ -217,7 +336,7 @@ pub fn run_site(input: &SiteInput, protocol: &Protocol, opts: RunOptions) -> Sit
         seed,
     };
     let shapes: Vec<NamedShape> = input.boundary.iter().cloned().collect();
-    let Some(audit) = run_audit(&input.points, &shapes, &options, &|| {}) else {
+    let Some(audit) = run_audit(&input.points, &shapes, &options, tick) else {
         return not_tested(input, seed, "no sweep could run on these points".into());
     };
     let Some(w) = pick::protocol_window(&audit, &protocol.window) else {
@@ -258,7 +377,7 @@ pub fn run_site(input: &SiteInput, protocol: &Protocol, opts: RunOptions) -> Sit
             sims: protocol.sims,
             ..options.clone()
         };
-        let (rows, _, _) = window_rows(&input.points, w, audit.guard, &one, &|| {});
+        let (rows, _, _) = window_rows(&input.points, w, audit.guard, &one, tick);
         rows.into_iter().find(|r| r.edge == protocol.edge)
     };
     let Some(row) = row.filter(|r| r.p.is_some()) else {

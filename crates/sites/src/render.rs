@@ -3,6 +3,7 @@
 
 use crate::{SiteRun, Status};
 use patternproof_protocol::Protocol;
+use patternproof_report::markdown_escape::{code, prose, text};
 use patternproof_report::numbers::{p_value, sig};
 use patternproof_report::table::call_word;
 use serde::Serialize;
@@ -162,16 +163,17 @@ pub fn summary_line(doc: &SitesDocument<'_>) -> String {
     )
 }
 
-/// Write `sites.md`.
+/// Write `sites.md`; site names, window ids, reasons and the protocol's
+/// note are escaped ([`patternproof_report::markdown_escape`]).
 pub fn write_markdown<W: io::Write>(doc: &SitesDocument<'_>, mut out: W) -> io::Result<()> {
     writeln!(out, "# Multi-site run under one protocol\n")?;
     writeln!(out, "**{}.**\n", summary_line(doc))?;
     writeln!(out, "Protocol SHA-256: `{}`\n", doc.protocol_sha256)?;
     for n in &doc.notes {
-        writeln!(out, "**Caution:** {n}.\n")?;
+        writeln!(out, "**Caution:** {}.\n", prose(n))?;
     }
     for l in doc.protocol.describe() {
-        writeln!(out, "- {l}")?;
+        writeln!(out, "- {}", prose(&l))?;
     }
     writeln!(
         out,
@@ -197,9 +199,9 @@ pub fn write_markdown<W: io::Write>(doc: &SitesDocument<'_>, mut out: W) -> io::
         writeln!(
             out,
             "| {} | {} | {} | {} | {interval} | {} | {} | {} | {} | {} | {} |",
-            md(&r.site),
+            text(&r.site),
             r.n,
-            r.window.as_deref().map_or("—".into(), |w| format!("`{w}`")),
+            r.window.as_deref().map_or("—".into(), code),
             r.window_area.map_or("—".into(), |a| sig(a, 5)),
             r.z.map_or("—".into(), |z| format!("{z:.2}")),
             r.p.map_or("—".into(), p_value),
@@ -210,7 +212,7 @@ pub fn write_markdown<W: io::Write>(doc: &SitesDocument<'_>, mut out: W) -> io::
                 Some(false) => "no",
                 None => "—",
             },
-            md(&note)
+            prose(&note)
         )?;
     }
     writeln!(
@@ -227,9 +229,4 @@ pub fn write_markdown<W: io::Write>(doc: &SitesDocument<'_>, mut out: W) -> io::
         doc.tool_version, doc.schema
     )?;
     Ok(())
-}
-
-/// Markdown table cells must not break the table.
-fn md(s: &str) -> String {
-    s.replace('|', "/").replace('\n', " ")
 }

@@ -77,3 +77,36 @@ fn same_row_alone_or_among_ten() {
         assert_eq!(single["p"], b["p"]);
     }
 }
+
+/// The progress total and the memory estimate count what a run does: a
+/// boundary protocol's sweep builds bounding box, hull, concave hull, three
+/// buffered hulls and the boundary (7 windows); sites below the minimum
+/// are not simulated; the protocol window runs again when its number of
+/// simulations differs from the sweep's.
+#[test]
+fn budget_counts_windows_and_simulations() {
+    let p = protocol(Adjust::None);
+    let opts = RunOptions { sweep_sims: 9 };
+    let sites = vec![site("one", 1), site("two", 2)];
+    assert_eq!(patternproof_sites::outlined_windows(&p, true), 7);
+    assert_eq!(patternproof_sites::outlined_windows(&p, false), 6);
+    // Both sites have 30 points and a boundary; the protocol asks for 39.
+    assert_eq!(
+        patternproof_sites::simulated_patterns(&sites, &p, opts),
+        2 * (9 * 7 + 39)
+    );
+    let small = patternproof_sites::run_bytes(&sites, &p, opts, 2);
+    let large = patternproof_sites::run_bytes(&sites, &p, RunOptions { sweep_sims: 90 }, 2);
+    assert!(large > small, "{small} {large}");
+    assert_eq!(
+        patternproof_sites::run_bytes(
+            &sites,
+            &p,
+            RunOptions {
+                sweep_sims: usize::MAX
+            },
+            2
+        ),
+        u64::MAX
+    );
+}
