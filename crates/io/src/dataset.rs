@@ -103,6 +103,7 @@ impl Dataset {
         boundary_files: &[PathBuf],
         options: &LoadOptions,
     ) -> Result<Self, InputError> {
+        check_unit_name(&options.unit)?;
         let mut warnings = Vec::new();
         let gpkg_points = is_geopackage(points_file);
         let (mut raw, file_unit, srs, layer) = if gpkg_points {
@@ -145,6 +146,9 @@ impl Dataset {
                 points_file.display(),
                 raw.skipped_empty
             ));
+        }
+        if let Some((place, text)) = &raw.decimal_comma {
+            warnings.push(decimal_comma_note(points_file, place, text));
         }
         let n_read = raw.coords.len();
         if n_read == 0 {
@@ -351,6 +355,45 @@ impl Dataset {
             &mut self.warnings,
         )
     }
+}
+
+/// `--unit` is printed beside every distance, in the terminal, Markdown,
+/// CSV and SVG: it must be visible text on one line.
+fn check_unit_name(unit: &str) -> Result<(), InputError> {
+    if unit.trim().is_empty() || unit.chars().any(char::is_control) || unit.chars().count() > 40 {
+        return Err(InputError::new(
+            Path::new("--unit"),
+            format!(
+                "`{}` is not a unit name (it is printed beside every distance and area)",
+                unit.escape_debug()
+            ),
+            "give the unit as a short word on one line, e.g. --unit m, --unit ft or --unit km",
+        ));
+    }
+    Ok(())
+}
+
+/// The reading of decimal commas, in words: which value first, what it was
+/// read as, and (when three digits follow the comma, as in `512,045`) that
+/// the comma might instead group thousands.
+fn decimal_comma_note(file: &Path, place: &crate::points::Place, text: &str) -> String {
+    let read_as = text.replace(',', ".");
+    let digits_after = text
+        .rsplit(',')
+        .next()
+        .map_or(0, |d| d.chars().take_while(char::is_ascii_digit).count());
+    let thousands = if digits_after == 3 {
+        format!(
+            "; if the comma groups thousands ({} rather than {read_as}), remove the grouping and run again",
+            text.replace(',', "")
+        )
+    } else {
+        String::new()
+    };
+    format!(
+        "{}: decimal commas read as decimal points ({place}: '{text}' read as {read_as}){thousands}",
+        file.display()
+    )
 }
 
 /// For each point, whether an earlier point has exactly the same
@@ -710,6 +753,59 @@ mod reading_tests {
         assert_eq!(
             d.reading,
             "projected coordinates in m (the GeoJSON crs member names `local survey grid, metres`)"
+        );
+    }
+
+    /// A unit that is empty, spans lines or runs on is refused before the
+    /// file is read.
+    #[test]
+    fn unit_names_are_one_short_visible_word() {
+        let f = file(
+            ".csv",
+            "x,y\n512000,5600000\n512010,5600003\n512004,5600009\n",
+        );
+        for bad in ["", "  ", "m\nfake", &"u".repeat(41)] {
+            let e = load(&f, CoordChoice::Auto, bad).unwrap_err();
+            assert_eq!(e.file, Path::new("--unit"));
+            assert!(e.what.contains("is not a unit name"), "{}", e.what);
+        }
+        assert_eq!(load(&f, CoordChoice::Auto, "ft").unwrap().unit, "ft");
+    }
+
+    /// Decimal commas are read, and the reading says so with the first
+    /// value; three digits after the comma also name the thousands reading.
+    #[test]
+    fn decimal_commas_are_read_and_said() {
+        let f = file(".csv", "x;y\n10;20\n1,5;2,5\n512,045;7\n");
+        let d = load(&f, CoordChoice::Projected, "m").unwrap();
+        assert_eq!(
+            d.warnings
+                .iter()
+                .filter(|w| w.contains("decimal commas"))
+                .count(),
+            1
+        );
+        assert!(
+            d.warnings.iter().any(|w| w
+                .ends_with("decimal commas read as decimal points (line 3: '1,5' read as 1.5)")),
+            "{:?}",
+            d.warnings
+        );
+        let f = file(".csv", "x;y\n512,045;20\n3;4\n5;9\n");
+        let d = load(&f, CoordChoice::Projected, "m").unwrap();
+        assert!(
+            d.warnings.iter().any(|w| w.contains(
+                "(line 2: '512,045' read as 512.045); if the comma groups thousands (512045 rather than 512.045)"
+            )),
+            "{:?}",
+            d.warnings
+        );
+        let plain = file(".csv", "x;y\n1.5;2\n3;4\n5;9\n");
+        assert!(
+            load(&plain, CoordChoice::Projected, "m")
+                .unwrap()
+                .warnings
+                .is_empty()
         );
     }
 

@@ -396,6 +396,7 @@ pub fn read_points(
             basis: decision.basis,
             field_values: field.map(|_| values),
             skipped_empty: skipped,
+            decimal_comma: None,
         },
         layer: layer.name.clone(),
         unit: decision.unit,

@@ -9,6 +9,7 @@
 //! | [`boundary`] | GeoJSON and WKT polygon readers, with validity checks |
 //! | [`validity`] | geo's polygon validity rules, with the pairwise searches pruned so that dense outlines check fast |
 //! | [`coords`] | the projected / lon-lat decision, why it was made, and the Lambert azimuthal equal-area projection centred on the points' mean direction |
+//! | [`json_keys`] | finds a key repeated in one JSON object, which readers would resolve silently |
 //! | [`geopackage`] | GeoPackage point and polygon layers, their coordinate system, `--where` |
 //! | [`magnitude`] | refuses coordinates too large, or spread too little, for floating point to measure |
 //! | [`dataset`] | loads points and boundaries together into one planar data set |
@@ -21,6 +22,7 @@ pub mod coords;
 pub mod dataset;
 pub mod error;
 pub mod geopackage;
+pub mod json_keys;
 pub mod magnitude;
 pub mod points;
 #[cfg(test)]

@@ -21,9 +21,11 @@ use std::path::Path;
 pub const MAX_COORDINATE: f64 = 1e13;
 
 /// Smallest accepted spread (the larger of the x and y ranges) in the
-/// file's unit. Intensities, kernel heights and their squares grow like
-/// the inverse square and fourth power of lengths; below this they leave
-/// the range that the reports (and the 32-bit GeoTIFF surface) can hold.
+/// file's unit. No pattern measured in a sensible unit spreads over less
+/// (a picometre, in metres). Above it, areas (≥ 10⁻²⁴), intensities n/A
+/// and the densities of the 32-bit GeoTIFF surface (≤ 3·10³⁸) stay well
+/// inside floating point; a few orders of magnitude below, the densities
+/// overflow and areas of thin windows underflow.
 pub const MIN_SPREAD: f64 = 1e-12;
 
 /// Fewest representable steps across the spread. Coordinates are rounded
@@ -32,6 +34,14 @@ pub const MIN_SPREAD: f64 = 1e-12;
 /// the printed digits. Fewer means the coordinates carry a large common
 /// offset that swallows their differences.
 pub const MIN_STEPS: f64 = 1e6;
+
+/// Largest accepted area (unit²) given as a number (`audit --area`): the
+/// square of [`MAX_COORDINATE`]. The Earth's surface is 5.1·10¹⁴ m².
+pub const MAX_AREA: f64 = MAX_COORDINATE * MAX_COORDINATE;
+
+/// Smallest accepted area (unit²) given as a number: the square of
+/// [`MIN_SPREAD`].
+pub const MIN_AREA: f64 = MIN_SPREAD * MIN_SPREAD;
 
 /// The spacing of `f64` values at `v`'s magnitude (one ulp).
 fn ulp(v: f64) -> f64 {
@@ -57,9 +67,9 @@ impl Bounds {
         let mut any = false;
         for c in coords {
             any = true;
-            for k in 0..2 {
-                b.lo[k] = b.lo[k].min(c[k]);
-                b.hi[k] = b.hi[k].max(c[k]);
+            for (k, v) in c.iter().enumerate() {
+                b.lo[k] = b.lo[k].min(*v);
+                b.hi[k] = b.hi[k].max(*v);
             }
         }
         any.then_some(b)

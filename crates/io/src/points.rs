@@ -94,6 +94,9 @@ pub struct RawPoints {
     pub field_values: Option<Vec<String>>,
     /// Features without geometry, skipped.
     pub skipped_empty: usize,
+    /// The first coordinate written with a decimal comma (`10,5` in a
+    /// `;`- or tab-separated CSV) and where, so the reading can say so.
+    pub decimal_comma: Option<(Place, String)>,
 }
 
 const PROJECTED_PAIRS: [(&str, &str); 2] = [("x", "y"), ("easting", "northing")];
@@ -164,7 +167,28 @@ pub(crate) fn is_geojson(path: &Path, start: &str) -> bool {
         .and_then(|e| e.to_str())
         .unwrap_or("")
         .to_ascii_lowercase();
-    ext == "geojson" || ext == "json" || start.trim_start().starts_with('{')
+    ext == "geojson"
+        || ext == "json"
+        || start
+            .trim_start_matches('\u{feff}')
+            .trim_start()
+            .starts_with('{')
+}
+
+/// Refuse a key repeated within one JSON object (see [`crate::json_keys`]):
+/// a property map would keep the last value without a word.
+pub(crate) fn refuse_repeated_keys(path: &Path, text: &str) -> Result<(), InputError> {
+    match crate::json_keys::first_repeated_key(text) {
+        None => Ok(()),
+        Some((key, line, column)) => Err(InputError::new(
+            path,
+            format!(
+                "the key `{key}` appears twice in one object, so which value holds cannot be told"
+            ),
+            "remove or rename one of the two (each key of a GeoJSON object is written once)",
+        )
+        .at(format!("line {line}, column {column}"))),
+    }
 }
 
 fn sniff_delimiter(text: &str) -> u8 {
@@ -226,7 +250,13 @@ fn read_csv_points<R: std::io::Read>(
         .iter()
         .find_map(|(a, b)| Some((find(&headers, &[a])?, find(&headers, &[b])?)));
     let lonlat = find(&headers, &LON_NAMES).zip(find(&headers, &LAT_NAMES));
-    let shown = headers.join(", ");
+    // Invisible characters (a zero-width space, a stray control byte)
+    // are shown escaped, so the message explains why a name did not match.
+    let shown = headers
+        .iter()
+        .map(|h| h.escape_debug().to_string())
+        .collect::<Vec<_>>()
+        .join(", ");
     let (cols, system) = match (choice, projected, lonlat) {
         (CoordChoice::Auto, Some(p), None) => (p, CoordSystem::Projected),
         (CoordChoice::Auto, None, Some(l)) => (l, CoordSystem::LonLat),
@@ -315,6 +345,7 @@ fn read_csv_points<R: std::io::Read>(
     let mut places = Vec::new();
     let mut values = Vec::new();
     let mut record = csv::StringRecord::new();
+    let mut decimal_comma = None;
     loop {
         match reader.read_record(&mut record) {
             Ok(true) => {}
@@ -334,20 +365,16 @@ fn read_csv_points<R: std::io::Read>(
         }
         let line = record.position().map(|p| p.line()).unwrap_or(0);
         let place = Place::Line(line);
-        let x = parse_number(
-            path,
-            place,
-            &headers[cols.0],
-            record.get(cols.0).unwrap_or(""),
-            lenient_decimal_comma,
-        )?;
-        let y = parse_number(
-            path,
-            place,
-            &headers[cols.1],
-            record.get(cols.1).unwrap_or(""),
-            lenient_decimal_comma,
-        )?;
+        let mut number = |col: usize| {
+            let raw = record.get(col).unwrap_or("");
+            let (v, comma) = parse_number(path, place, &headers[col], raw, lenient_decimal_comma)?;
+            if comma && decimal_comma.is_none() {
+                decimal_comma = Some((place, raw.to_string()));
+            }
+            Ok::<f64, InputError>(v)
+        };
+        let x = number(cols.0)?;
+        let y = number(cols.1)?;
         if let Some(c) = field_col {
             values.push(record.get(c).unwrap_or("").to_string());
         }
@@ -369,6 +396,7 @@ fn read_csv_points<R: std::io::Read>(
         basis,
         field_values: field_col.map(|_| values),
         skipped_empty: 0,
+        decimal_comma,
     })
 }
 
@@ -406,23 +434,26 @@ fn csv_error(path: &Path, e: csv::Error, line: u64) -> InputError {
 }
 
 /// `place` is formatted only when the value is refused, so the common
-/// case allocates nothing per row.
+/// case allocates nothing per row. The flag says whether the value was
+/// read with a decimal comma.
 fn parse_number(
     path: &Path,
     place: Place,
     column: &str,
     raw: &str,
     decimal_comma: bool,
-) -> Result<f64, InputError> {
+) -> Result<(f64, bool), InputError> {
+    let mut comma = false;
     let parsed = raw.parse::<f64>().ok().or_else(|| {
         if decimal_comma && raw.matches(',').count() == 1 && !raw.contains('.') {
+            comma = true;
             raw.replace(',', ".").parse::<f64>().ok()
         } else {
             None
         }
     });
     match parsed {
-        Some(v) if v.is_finite() => Ok(v),
+        Some(v) if v.is_finite() => Ok((v, comma)),
         Some(_) => Err(InputError::new(
             path,
             format!("column '{column}' holds '{raw}', which is not a finite number"),
@@ -467,7 +498,12 @@ fn crs_is_lonlat(crs: &serde_json::Value) -> Option<bool> {
         .get("properties")?
         .get("name")?
         .as_str()?
+        .trim()
         .to_ascii_uppercase();
+    // An empty name states nothing: ask rather than read it as planar.
+    if name.is_empty() {
+        return None;
+    }
     if name.contains("CRS84") {
         return Some(true);
     }
@@ -506,12 +542,23 @@ pub(crate) fn epsg_is_lonlat(code: u32) -> Option<bool> {
     }
 }
 
+/// The crs member's name, or the member itself (shortened) when it has no
+/// name string, so the message shows what the file holds.
 fn crs_name(crs: &serde_json::Value) -> String {
-    crs.get("properties")
+    match crs
+        .get("properties")
         .and_then(|p| p.get("name"))
         .and_then(|n| n.as_str())
-        .unwrap_or("?")
-        .to_string()
+    {
+        Some(name) => name.to_string(),
+        None => {
+            let text = crs.to_string();
+            match text.char_indices().nth(80) {
+                Some((cut, _)) => format!("{}…", &text[..cut]),
+                None => text,
+            }
+        }
+    }
 }
 
 fn read_geojson_points(
@@ -528,6 +575,7 @@ fn read_geojson_points(
             "check the file against RFC 7946 (a FeatureCollection of Point or MultiPoint features)",
         )
     })?;
+    refuse_repeated_keys(path, text)?;
     let crs = legacy_crs(&gj);
     let basis = match (Basis::forced(choice), crs) {
         (Some(forced), _) => forced,
@@ -616,6 +664,11 @@ fn read_geojson_points(
         };
         let positions: Vec<&geojson::Position> = match &geometry.value {
             GeometryValue::Point { coordinates } => vec![coordinates],
+            // An empty MultiPoint places nothing, like a null geometry.
+            GeometryValue::MultiPoint { coordinates } if coordinates.is_empty() => {
+                skipped += 1;
+                continue;
+            }
             GeometryValue::MultiPoint { coordinates } => coordinates.iter().collect(),
             other => {
                 return Err(InputError::new(
@@ -656,6 +709,7 @@ fn read_geojson_points(
         basis,
         field_values: field.map(|_| values),
         skipped_empty: skipped,
+        decimal_comma: None,
     })
 }
 
