@@ -529,3 +529,28 @@ fn a_billion_sweep_simulations_are_refused_up_front() {
     }
     assert!(!out.exists(), "a folder was written");
 }
+
+/// Issue 20: a protocol saved with a byte-order mark still reads intact;
+/// one with a key written twice is refused with the line, even when the
+/// last value (the one a JSON reader keeps) leaves the hash unchanged.
+#[test]
+fn protocol_with_a_bom_reads_and_a_repeated_key_is_refused() {
+    let dir = tempfile::tempdir().unwrap();
+    let p = new_protocol(dir.path(), &["--window", "hull", "--sims", "19"]);
+    let text = std::fs::read_to_string(&p).unwrap();
+    std::fs::write(&p, format!("\u{feff}{text}")).unwrap();
+    let o = bin(&["protocol", "show", p.to_str().unwrap()]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    assert!(String::from_utf8_lossy(&o.stdout).contains("intact"));
+
+    let twice = text.replacen("\"alpha\": 0.05", "\"alpha\": 0.5,\n  \"alpha\": 0.05", 1);
+    assert_ne!(twice, text);
+    std::fs::write(&p, twice).unwrap();
+    let o = bin(&["protocol", "show", p.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(2));
+    let e = String::from_utf8_lossy(&o.stderr);
+    assert!(
+        e.contains("line 5, column 9: the key `alpha` appears twice") && e.contains("what to do"),
+        "{e}"
+    );
+}
