@@ -118,6 +118,16 @@ fn first_too_large<'a>(coords: impl Iterator<Item = &'a [f64; 2]>) -> Option<(us
 }
 
 fn too_large(file: &Path, what: &str, axis: usize, value: f64) -> InputError {
+    if !value.is_finite() {
+        return InputError::new(
+            file,
+            format!(
+                "{what} {} is {value}, not a finite number",
+                ["x", "y"][axis]
+            ),
+            "fix or remove it: a missing or infinite coordinate cannot be placed",
+        );
+    }
     InputError::new(
         file,
         format!(
@@ -240,6 +250,12 @@ mod tests {
         let e = check_points(file, &far, &places(2), true).unwrap_err();
         assert!(e.what.contains("y = -2e13"), "{}", e.what);
         assert!(check_points(file, &[[1.0, 1e13], [3.0, 4.0]], &places(2), true).is_ok());
+        let e = check_points(file, &[[1.0, 2.0], [f64::NAN, 4.0]], &places(2), true).unwrap_err();
+        assert!(
+            e.what.contains("x is NaN, not a finite number"),
+            "{}",
+            e.what
+        );
     }
 
     /// Spreads of 10⁻³⁰⁸ (subnormal) and 10⁻¹³ are refused, 10⁻¹¹ passes;
