@@ -554,3 +554,39 @@ fn protocol_with_a_bom_reads_and_a_repeated_key_is_refused() {
         "{e}"
     );
 }
+
+/// Issue 20: `sites` prints each input's warnings in the terminal, naming
+/// the file, as `audit` does (they went only into each site's
+/// `verdict.md`): here the demo plot-c written twice, so each of its
+/// points repeats an earlier one.
+#[test]
+fn sites_prints_the_warnings_of_each_input() {
+    let dir = tempfile::tempdir().unwrap();
+    let p = new_protocol(dir.path(), &["--window", "hull", "--sims", "19"]);
+    let text = std::fs::read_to_string(&plots()[2]).unwrap();
+    let mut lines = text.lines();
+    let header = lines.next().unwrap();
+    let rows: Vec<&str> = lines.filter(|l| !l.trim().is_empty()).collect();
+    let twice = dir.path().join("plot-c-twice.csv");
+    std::fs::write(
+        &twice,
+        format!("{header}\n{}\n{}\n", rows.join("\n"), rows.join("\n")),
+    )
+    .unwrap();
+    let a = plots()[0].clone();
+    let out = dir.path().join("run");
+    let o = sites(
+        &p,
+        &out,
+        &[a.as_str(), twice.to_str().unwrap(), "--sweep-sims", "0"],
+    );
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let e = String::from_utf8_lossy(&o.stderr);
+    let want = format!(
+        "patternproof: warning: {}: {} point(s) repeat an earlier point exactly",
+        twice.display(),
+        rows.len()
+    );
+    assert!(e.contains(&want), "{e}");
+    assert_eq!(e.matches("patternproof: warning:").count(), 1, "{e}");
+}
