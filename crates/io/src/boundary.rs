@@ -380,7 +380,7 @@ pub fn read_named_boundaries(path: &Path, field: &str) -> Result<Vec<RawBoundary
     for (i, f) in fc.features.into_iter().enumerate() {
         let place = format!("feature {}", i + 1);
         let name = match f.property(field) {
-            Some(serde_json::Value::String(s)) => s.clone(),
+            Some(serde_json::Value::String(s)) if !s.trim().is_empty() => s.clone(),
             Some(serde_json::Value::Number(n)) => n.to_string(),
             _ => {
                 return Err(InputError::new(

@@ -353,8 +353,8 @@ pub fn read_points(
         };
         let value = match (field, &f.value) {
             (None, _) => None,
-            (Some(_), Some(v)) => Some(v.clone()),
-            (Some(name), None) => {
+            (Some(_), Some(v)) if !v.trim().is_empty() => Some(v.clone()),
+            (Some(name), _) => {
                 return Err(InputError::new(
                     path,
                     format!("the feature has no value in column `{name}`"),

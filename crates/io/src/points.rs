@@ -376,7 +376,18 @@ fn read_csv_points<R: std::io::Read>(
         let x = number(cols.0)?;
         let y = number(cols.1)?;
         if let Some(c) = field_col {
-            values.push(record.get(c).unwrap_or("").to_string());
+            let v = record.get(c).unwrap_or("");
+            // An empty cell names no site: grouping such rows into a site
+            // called "" would analyse them together without a word.
+            if v.trim().is_empty() {
+                return Err(InputError::new(
+                    path,
+                    format!("column '{}' is empty: the row names no site", headers[c]),
+                    "give every row the name of its site, or leave the row out with --where",
+                )
+                .at(place.to_string()));
+            }
+            values.push(v.to_string());
         }
         coords.push([x, y]);
         places.push(place);
@@ -647,16 +658,20 @@ fn read_geojson_points(
         };
         let value = match field {
             None => None,
+            // null and "" name no site: they are missing, not a site
+            // called "null" or "".
             Some(name) => Some(
                 f.properties
                     .as_ref()
                     .and_then(|p| p.get(name))
+                    .filter(|v| !v.is_null())
                     .map(text_of)
+                    .filter(|t| !t.trim().is_empty())
                     .ok_or_else(|| {
                         InputError::new(
                             path,
-                            format!("the feature has no property '{name}'"),
-                            "give every feature that property",
+                            format!("the feature has no value in property '{name}'"),
+                            "give every feature that property, with the name of its site",
                         )
                         .at(place.clone())
                     })?,
@@ -751,6 +766,36 @@ mod tests {
         .unwrap_err();
         assert!(e.what.contains("'year' appears twice (columns 3 and 4)"));
         assert!(read_points(year.path(), CoordChoice::Auto, None, None).is_ok());
+    }
+
+    /// Issue 20: a row or feature without a site name (an empty cell, an
+    /// empty string, JSON null) is refused with its place, rather than
+    /// grouped into a site called "" or "null".
+    #[test]
+    fn a_missing_site_name_is_refused() {
+        let csv = file(".csv", "x,y,site\n1,2,north\n3,4, \n5,6,south\n");
+        let e = read_points(csv.path(), CoordChoice::Projected, Some("site"), None).unwrap_err();
+        assert_eq!(e.location.as_deref(), Some("line 3"));
+        assert!(e.what.contains("column 'site' is empty"), "{}", e.what);
+        for missing in ["null", "\"\""] {
+            let gj = file(
+                ".geojson",
+                &format!(
+                    r#"{{"type":"FeatureCollection","features":[
+                  {{"type":"Feature","properties":{{"site":"north"}},"geometry":{{"type":"Point","coordinates":[1,2]}}}},
+                  {{"type":"Feature","properties":{{"site":{missing}}},"geometry":{{"type":"Point","coordinates":[3,4]}}}}]}}"#
+                ),
+            );
+            let e = read_points(gj.path(), CoordChoice::Projected, Some("site"), None).unwrap_err();
+            assert_eq!(e.location.as_deref(), Some("feature 2"), "{missing}");
+            assert!(e.what.contains("no value in property 'site'"), "{}", e.what);
+        }
+        let ok = file(".csv", "x,y,site\n1,2,north\n3,4,7\n");
+        let p = read_points(ok.path(), CoordChoice::Projected, Some("site"), None).unwrap();
+        assert_eq!(
+            p.field_values,
+            Some(vec!["north".to_string(), "7".to_string()])
+        );
     }
 
     fn keep(field: &str, value: &str) -> Filter {
