@@ -302,11 +302,9 @@ fn load_sites(a: &SitesArgs) -> Result<(Vec<Loaded>, Vec<Dataset>), Failure> {
         datasets.push(all);
     } else {
         for file in &a.inputs {
-            let name = file
-                .file_stem()
-                .and_then(|s| s.to_str())
-                .unwrap_or("site")
-                .to_string();
+            let name = patternproof_io::points::one_line(
+                file.file_stem().and_then(|s| s.to_str()).unwrap_or("site"),
+            );
             if sites.iter().any(|s| s.input.name == name) {
                 return Err(Failure::Input(format!(
                     "{}: a second file for site `{name}` (site names are file stems)\n  what to do: rename one of the files so every site has its own name",

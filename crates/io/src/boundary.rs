@@ -39,11 +39,11 @@ pub fn read_boundary(path: &Path) -> Result<RawBoundary, InputError> {
             "give a GeoJSON Polygon/MultiPolygon or WKT POLYGON text",
         ));
     }
-    let stem = path
-        .file_stem()
-        .and_then(|s| s.to_str())
-        .unwrap_or("boundary")
-        .to_string();
+    let stem = crate::points::one_line(
+        path.file_stem()
+            .and_then(|s| s.to_str())
+            .unwrap_or("boundary"),
+    );
     if is_geojson(path, &text) {
         read_geojson(path, &text, stem)
     } else {
@@ -116,6 +116,7 @@ pub(crate) fn add_part(
     declared: Option<CoordSystem>,
     stated: bool,
 ) {
+    let name = crate::points::one_line(&name);
     match out.iter_mut().find(|b| b.name == name) {
         Some(b) => b.shape.0.extend(polygons),
         None => out.push(RawBoundary {
@@ -278,7 +279,7 @@ fn read_geojson(path: &Path, text: &str, stem: String) -> Result<RawBoundary, In
         ));
     }
     let name = if names.len() == 1 {
-        names.remove(0)
+        crate::points::one_line(&names.remove(0))
     } else {
         stem
     };

@@ -353,7 +353,7 @@ pub fn read_points(
         };
         let value = match (field, &f.value) {
             (None, _) => None,
-            (Some(_), Some(v)) if !v.trim().is_empty() => Some(v.clone()),
+            (Some(_), Some(v)) if !v.trim().is_empty() => Some(crate::points::one_line(v)),
             (Some(name), _) => {
                 return Err(InputError::new(
                     path,
@@ -507,11 +507,11 @@ pub fn read_boundary(
     if polygons.is_empty() {
         return Err(b.no_polygon(path, features.len()));
     }
-    let name = if names.len() == 1 && features.len() == 1 {
+    let name = crate::points::one_line(&if names.len() == 1 && features.len() == 1 {
         names.remove(0)
     } else {
         b.layer.name.clone()
-    };
+    });
     Ok(GpkgBoundary {
         raw: RawBoundary {
             name,

@@ -147,6 +147,24 @@ pub fn read_points(
     }
 }
 
+/// A name from a file (a site, a boundary) on one visible line: control
+/// characters (a line break inside a quoted CSV cell), bidirectional
+/// overrides and zero-width characters are written as escapes (`\n`,
+/// `\u{202e}`). A name ends up in table rows, file names and ids; a line
+/// break would start a new row, an override would reverse what follows.
+pub fn one_line(name: &str) -> String {
+    let mut out = String::with_capacity(name.len());
+    for c in name.chars() {
+        let escaped = c.escape_debug().to_string();
+        if escaped.chars().count() == 1 || matches!(c, '\'' | '"' | '\\') {
+            out.push(c);
+        } else {
+            out.push_str(&escaped);
+        }
+    }
+    out
+}
+
 /// The error of a `--where` that kept nothing.
 fn nothing_kept(path: &Path, f: &Filter, rows: usize, what: &str) -> InputError {
     InputError::new(
@@ -387,7 +405,7 @@ fn read_csv_points<R: std::io::Read>(
                 )
                 .at(place.to_string()));
             }
-            values.push(v.to_string());
+            values.push(one_line(v));
         }
         coords.push([x, y]);
         places.push(place);
@@ -665,7 +683,7 @@ fn read_geojson_points(
                     .as_ref()
                     .and_then(|p| p.get(name))
                     .filter(|v| !v.is_null())
-                    .map(text_of)
+                    .map(|v| one_line(&text_of(v)))
                     .filter(|t| !t.trim().is_empty())
                     .ok_or_else(|| {
                         InputError::new(
@@ -796,6 +814,19 @@ mod tests {
             p.field_values,
             Some(vec!["north".to_string(), "7".to_string()])
         );
+    }
+
+    /// Names keep their letters (accents, quotes, slashes included) and
+    /// lose only what would break a line or reverse the text.
+    #[test]
+    fn names_are_kept_on_one_visible_line() {
+        assert_eq!(one_line("Wiese Süd / 2"), "Wiese Süd / 2");
+        assert_eq!(one_line("a\"b'c\\d"), "a\"b'c\\d");
+        assert_eq!(one_line("north\nplot"), "north\\nplot");
+        assert_eq!(one_line("a\u{202e}b\tc"), "a\\u{202e}b\\tc");
+        let csv = file(".csv", "x,y,site\n1,2,\"north\nplot\"\n");
+        let p = read_points(csv.path(), CoordChoice::Projected, Some("site"), None).unwrap();
+        assert_eq!(p.field_values, Some(vec!["north\\nplot".to_string()]));
     }
 
     fn keep(field: &str, value: &str) -> Filter {
