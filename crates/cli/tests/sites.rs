@@ -550,7 +550,7 @@ fn protocol_with_a_bom_reads_and_a_repeated_key_is_refused() {
     assert_eq!(o.status.code(), Some(2));
     let e = String::from_utf8_lossy(&o.stderr);
     assert!(
-        e.contains("line 5, column 9: the key `alpha` appears twice") && e.contains("what to do"),
+        e.contains("line 8, column 9: the key `alpha` appears twice") && e.contains("what to do"),
         "{e}"
     );
 }
