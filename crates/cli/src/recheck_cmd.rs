@@ -9,6 +9,7 @@ use crate::audit_cmd::named_shapes;
 use crate::fail::Failure;
 use clap::Args;
 use patternproof_audit::run_audit;
+use patternproof_core::clark_evans::MIN_N_ANALYTIC;
 use patternproof_io::{CoordChoice, Dataset, LoadOptions};
 use patternproof_recheck::attribution::sweep_options;
 use patternproof_recheck::reported::{Bound, Problem, Quantity, parse, parse_count};
@@ -132,6 +133,15 @@ pub fn run(a: &RecheckArgs) -> Result<(), Failure> {
                         d.points_file.display()
                     ))
                 })?;
+            let n = d.points.len();
+            if n < MIN_N_ANALYTIC && !audit.results.iter().any(|r| r.p.is_some()) {
+                // A boundary would not help here (and recheck runs no
+                // simulation row): say what does.
+                return Err(Failure::Input(format!(
+                    "{}: only {n} point(s): the sweep gives no closed-form row below {MIN_N_ANALYTIC} points (the normal approximation is not trusted there), so the points cannot show which window reproduces the figures\n  what to do: leave out --points to check the figures alone",
+                    d.points_file.display()
+                )));
+            }
             if !audit.results.iter().any(|r| r.p.is_some()) {
                 return Err(Failure::Input(format!(
                     "{}: no window could be tested ({})\n  what to do: give the surveyed outline with --boundary, or leave out --points to check the figures alone",

@@ -514,3 +514,37 @@ fn a_free_edge_correction_does_not_make_figures_consistent() {
             .ends_with("of the 400 points focal (implausible)")
     );
 }
+
+/// Issue 20: with fewer than 10 points the sweep has no closed-form row,
+/// and a boundary would not change that: the message says so and points to
+/// the figures alone, instead of asking for `--boundary` (and for "the
+/// simulation row", which recheck does not run).
+#[test]
+fn too_few_points_say_what_helps() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let pts = dir.path().join("six.csv");
+    std::fs::write(
+        &pts,
+        "x,y\n512001,5600001\n512004,5600002\n512002,5600007\n512008,5600003\n512005,5600005\n512009,5600009\n",
+    )
+    .expect("write");
+    let o = recheck(&[
+        "--n",
+        "6",
+        "--ratio",
+        "0.9",
+        "--points",
+        pts.to_str().expect("path"),
+    ]);
+    assert_eq!(o.status.code(), Some(2));
+    let e = stderr(&o);
+    assert!(
+        e.contains("only 6 point(s): the sweep gives no closed-form row below 10 points"),
+        "{e}"
+    );
+    assert!(e.contains("what to do: leave out --points"), "{e}");
+    assert!(
+        !e.contains("--boundary") && !e.contains("simulation row"),
+        "{e}"
+    );
+}
