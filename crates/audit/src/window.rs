@@ -39,6 +39,16 @@ pub enum WindowKind {
     Area,
 }
 
+/// Largest buffer distance (in the data's unit) accepted for `hull+D`:
+/// farther than any map position in any unit (the Earth's circumference
+/// is 4·10⁷ m, 4·10¹⁰ mm), the same bound as for coordinates.
+pub const MAX_BUFFER: f64 = 1e13;
+
+/// Largest multiple of the mean nearest-neighbour distance accepted for a
+/// buffer: a pattern of n points spans about √n such distances, so even
+/// 10¹² points span 10⁶ of them; a larger buffer is a typing slip.
+pub const MAX_BUFFER_MULTIPLE: f64 = 1e6;
+
 /// One buffer distance of the `hull+D` family.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub enum BufferRule {
@@ -63,6 +73,30 @@ impl BufferRule {
         match self {
             BufferRule::MeanNnMultiple(k) => k * mean_nn,
             BufferRule::Distance(d) => d,
+        }
+    }
+
+    /// Why the rule is out of range, if it is: not positive and finite,
+    /// or beyond [`MAX_BUFFER`] / [`MAX_BUFFER_MULTIPLE`].
+    pub fn problem(self) -> Option<String> {
+        let (v, max, what) = match self {
+            BufferRule::MeanNnMultiple(k) => (
+                k,
+                MAX_BUFFER_MULTIPLE,
+                "times the mean nearest-neighbour distance (a pattern spans far fewer)",
+            ),
+            BufferRule::Distance(d) => (
+                d,
+                MAX_BUFFER,
+                "units (farther than any map position in any unit)",
+            ),
+        };
+        if !(v > 0.0 && v.is_finite()) {
+            Some("not a positive distance".into())
+        } else if v > max {
+            Some(format!("more than {max:e} {what}"))
+        } else {
+            None
         }
     }
 
@@ -207,21 +241,40 @@ pub fn build_windows(
             points,
             Coverage::All,
         ));
-        let distances: Vec<f64> = options
-            .buffers
-            .iter()
-            .map(|b| b.distance(mean_nn))
-            .collect();
+        let mut distances: Vec<f64> = Vec::new();
+        for d in options.buffers.iter().map(|b| b.distance(mean_nn)) {
+            // `2x` and the distance it comes to are one window, not two.
+            if !distances.contains(&d) {
+                distances.push(d);
+            }
+        }
         for d in distances {
             if !(d > 0.0 && d.is_finite()) {
                 notes.push(format!(
-                    "hull+{d} skipped: a buffer must be a positive distance"
+                    "hull+{} skipped: a buffer must be a positive distance",
+                    short_number(d)
                 ));
                 continue;
             }
             let buffered = hull.buffer(d);
+            // A buffer far beyond the data (1e100) overflows the outline's
+            // arithmetic; such a window has no area to test, and saying so
+            // beats a row with area 0.
+            let area = buffered.unsigned_area();
+            if !(area.is_finite() && area > 0.0) {
+                notes.push(format!(
+                    "hull+{} skipped: buffering the hull by {d:e} gives no finite area (give a buffer the size of the study area)",
+                    short_number(d)
+                ));
+                continue;
+            }
+            // Two buffers that round to one label keep their full digits.
+            let mut id = format!("hull+{}", short_number(d));
+            if windows.iter().any(|w: &Window| w.id == id) {
+                id = format!("hull+{d}");
+            }
             let mut window = from_shape(
-                &format!("hull+{}", short_number(d)),
+                &id,
                 WindowKind::BufferedHull,
                 Some(d),
                 None,
@@ -395,21 +448,31 @@ pub fn distance_to_outline(shape: &MultiPolygon<f64>, p: Xy) -> f64 {
         .fold(f64::INFINITY, f64::min)
 }
 
-/// A buffer distance written compactly for an id: up to 3 significant
-/// decimals, no trailing zeros.
+/// A buffer distance written compactly for an id: three significant
+/// digits, no trailing zeros, scientific below 10⁻⁴ and from 10⁶ on (so
+/// a buffer of 0.0044 km is `hull+0.0044`, not `hull+0`).
 pub fn short_number(x: f64) -> String {
-    let s = if x.abs() >= 100.0 {
-        format!("{x:.0}")
-    } else if x.abs() >= 10.0 {
-        format!("{x:.1}")
-    } else {
-        format!("{x:.2}")
+    let trim = |s: String| {
+        if s.contains('.') {
+            s.trim_end_matches('0').trim_end_matches('.').to_string()
+        } else {
+            s
+        }
     };
-    if s.contains('.') {
-        s.trim_end_matches('0').trim_end_matches('.').to_string()
-    } else {
-        s
+    let a = x.abs();
+    if x == 0.0 || !x.is_finite() {
+        return format!("{x}");
     }
+    if !(1e-4..1e6).contains(&a) {
+        // Scientific, three significant digits: 1e100, 2.5e-7.
+        let s = format!("{x:.2e}");
+        let (mantissa, exponent) = s.split_once('e').unwrap_or((&s, "0"));
+        return format!("{}e{exponent}", trim(mantissa.to_string()));
+    }
+    // Three significant digits, at least as many decimals as before for
+    // numbers of 1 and more (12.5, 4.41), more below 1 (0.00441, not 0).
+    let decimals = (2 - a.log10().floor() as i32).clamp(0, 6) as usize;
+    trim(format!("{x:.decimals$}"))
 }
 
 #[cfg(test)]
@@ -424,6 +487,53 @@ mod tests {
             }
         }
         v
+    }
+
+    /// Ids keep three significant digits at any size; two buffers that
+    /// round alike keep their full digits; a buffer too large for the
+    /// outline's arithmetic is skipped with a note, not given area 0.
+    #[test]
+    fn buffer_ids_stay_distinct_and_huge_buffers_are_skipped() {
+        assert_eq!(short_number(4.4135), "4.41");
+        assert_eq!(short_number(17.66), "17.7");
+        assert_eq!(short_number(176.6), "177");
+        assert_eq!(short_number(0.5), "0.5");
+        assert_eq!(short_number(0.0044135), "0.00441");
+        assert_eq!(short_number(1e100), "1e100");
+        assert_eq!(short_number(2.5e-7), "2.5e-7");
+        assert_eq!(short_number(1234567.0), "1.23e6");
+        let pts = grid(4, 1.0);
+        let options = WindowOptions {
+            buffers: vec![
+                BufferRule::Distance(0.001),
+                BufferRule::Distance(0.0010001),
+                BufferRule::Distance(1e200),
+                BufferRule::MeanNnMultiple(1.0),
+                BufferRule::Distance(1.0),
+            ],
+            ..WindowOptions::default()
+        };
+        let (windows, notes) = build_windows(&pts, 1.0, &[], &options);
+        let ids: Vec<&str> = windows.iter().map(|w| w.id.as_str()).collect();
+        assert_eq!(
+            ids,
+            [
+                "bbox",
+                "hull",
+                "hull+0.001",
+                "hull+0.0010001",
+                "hull+1",
+                "concave"
+            ]
+        );
+        assert_eq!(notes.len(), 1, "{notes:?}");
+        assert!(
+            notes[0].starts_with(
+                "hull+1e200 skipped: buffering the hull by 1e200 gives no finite area"
+            ),
+            "{}",
+            notes[0]
+        );
     }
 
     /// A 5 × 5 grid with step 2 spans 8 × 8: bbox and hull are the same

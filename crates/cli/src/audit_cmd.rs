@@ -8,6 +8,7 @@ use crate::scales_cmd;
 use patternproof_audit::simulation;
 use patternproof_audit::window::{NamedShape, WindowOptions};
 use patternproof_audit::{AuditOptions, BufferRule, Edge, run_audit};
+use patternproof_io::magnitude::{MAX_AREA, MIN_AREA};
 use patternproof_io::{Dataset, LoadOptions};
 use patternproof_report::document::BoundarySource;
 use patternproof_report::document::{FileDigest, ReportProvenance};
@@ -29,6 +30,13 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
     {
         return Err(Failure::Input(format!(
             "--area {area}: the area must be a positive number (in the unit squared)\n  what to do: give the study area the analysis used, e.g. --area 12500"
+        )));
+    }
+    if let Some(area) = a.area
+        && !(MIN_AREA..=MAX_AREA).contains(&area)
+    {
+        return Err(Failure::Input(format!(
+            "--area {area:e}: the area must lie between {MIN_AREA:e} and {MAX_AREA:e} (in the unit squared); beyond that no map in any unit reaches (the Earth's surface is 5.1·10¹⁴ m²), and floating point cannot measure the intensities\n  what to do: check the number and its unit, and give the study area the analysis used, e.g. --area 12500"
         )));
     }
     if let Some(g) = a.guard
@@ -435,9 +443,19 @@ pub fn parse_buffers(words: &[String]) -> Result<Vec<BufferRule>, Failure> {
                 Some(n) => (n, true),
                 None => (w, false),
             };
-            match num.parse::<f64>() {
-                Ok(v) if v > 0.0 && v.is_finite() => Ok(if multiple { BufferRule::MeanNnMultiple(v) } else { BufferRule::Distance(v) }),
-                _ => Err(Failure::Input(format!(
+            let rule = num.parse::<f64>().ok().map(|v| {
+                if multiple {
+                    BufferRule::MeanNnMultiple(v)
+                } else {
+                    BufferRule::Distance(v)
+                }
+            });
+            match rule.map(|r| (r, r.problem())) {
+                Some((r, None)) => Ok(r),
+                Some((_, Some(problem))) => Err(Failure::Input(format!(
+                    "--buffers: `{w}` is {problem}\n  what to do: give distances in the unit (e.g. 5,10) or multiples of the mean nearest-neighbour distance (e.g. 0.5x,1x)"
+                ))),
+                None => Err(Failure::Input(format!(
                     "--buffers: `{w}` is not a positive distance\n  what to do: give distances in the unit (e.g. 5,10) or multiples of the mean nearest-neighbour distance (e.g. 0.5x,1x)"
                 ))),
             }

@@ -5,7 +5,7 @@
 use crate::fail::Failure;
 use clap::Args;
 use geo::{Area, ConvexHull, MultiPoint, MultiPolygon, Point};
-use patternproof_density::bandwidth::BandwidthSpec;
+use patternproof_density::bandwidth::{BandwidthSpec, FIXED_RANGE, MULTIPLE_RANGE};
 use patternproof_density::edge::Edge;
 use patternproof_density::kernels::{self, Kernel};
 use patternproof_density::render::RunInfo;
@@ -90,7 +90,14 @@ fn parse_config(a: &DensityArgs, unit: &str) -> Result<Config, Failure> {
     let mut bs = Vec::new();
     for b in &a.bandwidths {
         let spec = BandwidthSpec::parse(b).ok_or_else(|| {
-            bad("--bandwidths", format!("{b:?} is not a bandwidth"), "use scott, lcv, a multiple of Scott's value such as 0.5x, or a positive number in the unit")
+            bad(
+                "--bandwidths",
+                format!("{b:?} is not a bandwidth"),
+                &format!(
+                    "use scott, lcv, a multiple of Scott's value such as 0.5x (from {:e}x to {:e}x), or a number in the unit (from {:e} to {:e})",
+                    MULTIPLE_RANGE.0, MULTIPLE_RANGE.1, FIXED_RANGE.0, FIXED_RANGE.1
+                ),
+            )
         })?;
         if !bs.contains(&spec) {
             bs.push(spec);
@@ -224,6 +231,9 @@ pub fn run(a: &DensityArgs) -> Result<(), Failure> {
             }
             patternproof_density::DensityError::LcvFailed(_) => {
                 "drop lcv from --bandwidths for this kernel, or use the gaussian kernel"
+            }
+            patternproof_density::DensityError::NoMass { .. } => {
+                "pass a --cell of at most half the bandwidth, or drop that bandwidth"
             }
             _ => "check the point file and the window",
         };

@@ -188,7 +188,18 @@ fn read(path: &Path) -> Result<(Protocol, Check), Failure> {
             path.display()
         ))
     })?;
-    Protocol::from_file_text(&text).map_err(|e| Failure::Input(format!("{}: {e}", path.display())))
+    // A byte-order mark from an editor is not part of the JSON.
+    let text = text.strip_prefix('\u{feff}').unwrap_or(&text);
+    // A JSON object keeps the last of two equal keys, so a protocol that
+    // says `"alpha": 0.5` and then `"alpha": 0.05` would read (and hash)
+    // as 0.05 while a person reading it sees 0.5 first.
+    if let Some((key, line, column)) = patternproof_io::json_keys::first_repeated_key(text) {
+        return Err(Failure::Input(format!(
+            "{}, line {line}, column {column}: the key `{key}` appears twice, so the protocol cannot be read unambiguously\n  what to do: use the protocol file as `patternproof protocol new` wrote it",
+            path.display()
+        )));
+    }
+    Protocol::from_file_text(text).map_err(|e| Failure::Input(format!("{}: {e}", path.display())))
 }
 
 fn changed(path: &Path, stored: &str, actual: &str) -> Failure {

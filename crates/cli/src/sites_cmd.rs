@@ -179,6 +179,31 @@ fn print_readings(datasets: &[Dataset]) {
             crate::audit_cmd::reading_line(&first.points_file, &first.reading, others)
         );
     }
+    for line in warning_lines(datasets) {
+        eprintln!("{line}");
+    }
+}
+
+/// Every input's warnings (duplicates, decimal commas, distortion of the
+/// lon/lat plane…), as `audit` prints them, each naming its file: before,
+/// `sites` put them only into each site's `verdict.md`, and the terminal
+/// said nothing about how a file was read beyond its reading line.
+fn warning_lines(datasets: &[Dataset]) -> Vec<String> {
+    let mut lines = Vec::new();
+    for d in datasets {
+        let file = d.points_file.display().to_string();
+        for w in &d.warnings {
+            let line = if w.starts_with(&file) {
+                format!("patternproof: warning: {w}")
+            } else {
+                format!("patternproof: warning: {file}: {w}")
+            };
+            if !lines.contains(&line) {
+                lines.push(line);
+            }
+        }
+    }
+    lines
 }
 
 /// Stop before any site runs when the sweeps' simulations need more
@@ -277,11 +302,9 @@ fn load_sites(a: &SitesArgs) -> Result<(Vec<Loaded>, Vec<Dataset>), Failure> {
         datasets.push(all);
     } else {
         for file in &a.inputs {
-            let name = file
-                .file_stem()
-                .and_then(|s| s.to_str())
-                .unwrap_or("site")
-                .to_string();
+            let name = patternproof_io::points::one_line(
+                file.file_stem().and_then(|s| s.to_str()).unwrap_or("site"),
+            );
             if sites.iter().any(|s| s.input.name == name) {
                 return Err(Failure::Input(format!(
                     "{}: a second file for site `{name}` (site names are file stems)\n  what to do: rename one of the files so every site has its own name",

@@ -127,3 +127,85 @@ fn bad_density_input_exits_2() {
     assert_eq!(r.status.code(), Some(2));
     assert!(!out.exists(), "nothing written on failure");
 }
+
+/// Issue 20: the demo track in kilometres gives the isopleths of the track
+/// in metres divided by 1000 (to a thousandth of a cell), not outlines
+/// rounded onto 1 m steps; `isopleths.geojson` names its plane in a crs
+/// member, so a GIS does not read planar numbers as lon/lat.
+#[test]
+fn isopleths_in_small_units_keep_their_shape() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let text = std::fs::read_to_string(track()).expect("track");
+    let mut km = String::from("x,y\n");
+    for line in text.lines().skip(1) {
+        // fix,x,y
+        let v: Vec<f64> = line
+            .split(',')
+            .skip(1)
+            .take(2)
+            .map(|f| f.trim().parse().expect("number"))
+            .collect();
+        km.push_str(&format!("{},{}\n", v[0] / 1000.0, v[1] / 1000.0));
+    }
+    let km_file = dir.path().join("track-km.csv");
+    std::fs::write(&km_file, km).expect("write");
+    let run = |file: &str, unit: &str, cell: &str, out: &std::path::Path| {
+        let o = bin(&[
+            "density",
+            file,
+            "--coords",
+            "projected",
+            "--unit",
+            unit,
+            "--cell",
+            cell,
+            "--kernels",
+            "gaussian",
+            "--bandwidths",
+            "scott",
+            "--edge",
+            "none",
+            "--quiet",
+            "--out",
+            out.to_str().expect("path"),
+        ]);
+        assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+        let gj: serde_json::Value = serde_json::from_str(
+            &std::fs::read_to_string(out.join("isopleths.geojson")).expect("gj"),
+        )
+        .expect("parse");
+        gj
+    };
+    let m = run(&track(), "m", "25", &dir.path().join("m"));
+    let k = run(
+        km_file.to_str().expect("path"),
+        "km",
+        "0.025",
+        &dir.path().join("km"),
+    );
+    assert_eq!(
+        k["crs"]["properties"]["name"].as_str().expect("crs name"),
+        format!("planar coordinates of {}, unit km", km_file.display())
+    );
+    let coords = |gj: &serde_json::Value| -> Vec<f64> {
+        let mut v = Vec::new();
+        for f in gj["features"].as_array().expect("features") {
+            for p in f["geometry"]["coordinates"].as_array().expect("polygons") {
+                for r in p.as_array().expect("rings") {
+                    for c in r.as_array().expect("positions") {
+                        v.push(c[0].as_f64().expect("x"));
+                        v.push(c[1].as_f64().expect("y"));
+                    }
+                }
+            }
+        }
+        v
+    };
+    let (cm, ck) = (coords(&m), coords(&k));
+    assert!(cm.len() > 100, "{}", cm.len());
+    assert_eq!(cm.len(), ck.len());
+    for (a, b) in cm.iter().zip(&ck) {
+        // A thousandth of the 25 m cell, in km.
+        assert!((a / 1000.0 - b).abs() < 0.025e-3 + 1e-9, "{a} m vs {b} km");
+    }
+}

@@ -477,3 +477,60 @@ fn browser_renders_the_page() {
         colours.len()
     );
 }
+
+/// RFC 7946 §3.1.9 (issue 20): `windows.geojson` of points across ±180°
+/// and around the north pole. No ring may jump more than 180° of
+/// longitude between neighbouring vertices (a GIS would draw it across the
+/// globe), except along the pole; the outlines that cross are cut, so some part ends on +180° and
+/// another on −180°; the pole's outlines reach 90° N.
+#[test]
+fn window_outlines_are_cut_at_the_antimeridian() {
+    let dir = tempfile::tempdir().expect("temp dir");
+    for (file, pole) in [("antimeridian.csv", false), ("around-the-pole.csv", true)] {
+        let out = dir.path().join(file);
+        let points = repo().join("tests/bad-inputs").join(file);
+        audit(
+            &[points.to_str().expect("utf-8 path"), "--sims", "19"],
+            &out,
+        );
+        let gj: Value =
+            serde_json::from_str(&read(&out.join("windows.geojson"))).expect("geojson parses");
+        let (mut west, mut east, mut north) = (false, false, f64::MIN);
+        for f in gj["features"].as_array().expect("features") {
+            assert_eq!(f["geometry"]["type"], "MultiPolygon");
+            for polygon in f["geometry"]["coordinates"].as_array().expect("polygons") {
+                for ring in polygon.as_array().expect("rings") {
+                    let ring: Vec<(f64, f64)> = ring
+                        .as_array()
+                        .expect("positions")
+                        .iter()
+                        .map(|p| (p[0].as_f64().expect("lon"), p[1].as_f64().expect("lat")))
+                        .collect();
+                    for w in ring.windows(2) {
+                        // Along the pole itself every longitude is one point.
+                        let at_pole = w[0].1.abs() == 90.0 && w[1].1 == w[0].1;
+                        assert!(
+                            at_pole || (w[1].0 - w[0].0).abs() <= 180.0,
+                            "{file}: {} jumps from {:?} to {:?}",
+                            f["properties"]["id"],
+                            w[0],
+                            w[1]
+                        );
+                    }
+                    for &(lon, lat) in &ring {
+                        assert!((-180.0..=180.0).contains(&lon), "{lon}");
+                        west |= lon == -180.0;
+                        east |= lon == 180.0;
+                        north = north.max(lat);
+                    }
+                }
+            }
+        }
+        assert!(west && east, "{file}: no part ends on ±180°");
+        if pole {
+            assert_eq!(north, 90.0, "{file}");
+        } else {
+            assert!(north < -15.0, "{file}: {north}");
+        }
+    }
+}

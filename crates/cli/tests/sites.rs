@@ -529,3 +529,64 @@ fn a_billion_sweep_simulations_are_refused_up_front() {
     }
     assert!(!out.exists(), "a folder was written");
 }
+
+/// Issue 20: a protocol saved with a byte-order mark still reads intact;
+/// one with a key written twice is refused with the line, even when the
+/// last value (the one a JSON reader keeps) leaves the hash unchanged.
+#[test]
+fn protocol_with_a_bom_reads_and_a_repeated_key_is_refused() {
+    let dir = tempfile::tempdir().unwrap();
+    let p = new_protocol(dir.path(), &["--window", "hull", "--sims", "19"]);
+    let text = std::fs::read_to_string(&p).unwrap();
+    std::fs::write(&p, format!("\u{feff}{text}")).unwrap();
+    let o = bin(&["protocol", "show", p.to_str().unwrap()]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    assert!(String::from_utf8_lossy(&o.stdout).contains("intact"));
+
+    let twice = text.replacen("\"alpha\": 0.05", "\"alpha\": 0.5,\n  \"alpha\": 0.05", 1);
+    assert_ne!(twice, text);
+    std::fs::write(&p, twice).unwrap();
+    let o = bin(&["protocol", "show", p.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(2));
+    let e = String::from_utf8_lossy(&o.stderr);
+    assert!(
+        e.contains("line 8, column 9: the key `alpha` appears twice") && e.contains("what to do"),
+        "{e}"
+    );
+}
+
+/// Issue 20: `sites` prints each input's warnings in the terminal, naming
+/// the file, as `audit` does (they went only into each site's
+/// `verdict.md`): here the demo plot-c written twice, so each of its
+/// points repeats an earlier one.
+#[test]
+fn sites_prints_the_warnings_of_each_input() {
+    let dir = tempfile::tempdir().unwrap();
+    let p = new_protocol(dir.path(), &["--window", "hull", "--sims", "19"]);
+    let text = std::fs::read_to_string(&plots()[2]).unwrap();
+    let mut lines = text.lines();
+    let header = lines.next().unwrap();
+    let rows: Vec<&str> = lines.filter(|l| !l.trim().is_empty()).collect();
+    let twice = dir.path().join("plot-c-twice.csv");
+    std::fs::write(
+        &twice,
+        format!("{header}\n{}\n{}\n", rows.join("\n"), rows.join("\n")),
+    )
+    .unwrap();
+    let a = plots()[0].clone();
+    let out = dir.path().join("run");
+    let o = sites(
+        &p,
+        &out,
+        &[a.as_str(), twice.to_str().unwrap(), "--sweep-sims", "0"],
+    );
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let e = String::from_utf8_lossy(&o.stderr);
+    let want = format!(
+        "patternproof: warning: {}: {} point(s) repeat an earlier point exactly",
+        twice.display(),
+        rows.len()
+    );
+    assert!(e.contains(&want), "{e}");
+    assert_eq!(e.matches("patternproof: warning:").count(), 1, "{e}");
+}

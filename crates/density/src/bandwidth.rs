@@ -32,6 +32,16 @@ pub const EXACT_MAX: usize = 2000;
 /// Steps of the cross-validation grid.
 pub const LCV_STEPS: usize = 41;
 
+/// Fixed bandwidths accepted, in the unit: the smallest spread and the
+/// largest coordinate the readers accept. Beyond them the kernel's height
+/// (1/h²) under- or overflows and the surface comes out empty.
+pub const FIXED_RANGE: (f64, f64) = (1e-12, 1e13);
+
+/// Multiples of Scott's value accepted: a millionth to a million times
+/// the rule's bandwidth already spans every surface from a spike per point
+/// to a flat plane.
+pub const MULTIPLE_RANGE: (f64, f64) = (1e-6, 1e6);
+
 /// A bandwidth as asked for on the command line.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub enum BandwidthSpec {
@@ -46,10 +56,11 @@ pub enum BandwidthSpec {
 }
 
 impl BandwidthSpec {
-    /// Parse `scott`, `lcv`, `Fx` or a positive number.
+    /// Parse `scott`, `lcv`, `Fx` (F within [`MULTIPLE_RANGE`]) or a number
+    /// within [`FIXED_RANGE`].
     pub fn parse(s: &str) -> Option<BandwidthSpec> {
         let t = s.trim().to_ascii_lowercase();
-        let positive = |v: f64| v.is_finite() && v > 0.0;
+        let within = |v: f64, (lo, hi): (f64, f64)| v.is_finite() && v >= lo && v <= hi;
         match t.as_str() {
             "scott" => Some(BandwidthSpec::Scott),
             "lcv" | "cv" => Some(BandwidthSpec::Lcv),
@@ -57,12 +68,12 @@ impl BandwidthSpec {
                 if let Some(m) = t.strip_suffix('x') {
                     m.parse::<f64>()
                         .ok()
-                        .filter(|v| positive(*v))
+                        .filter(|v| within(*v, MULTIPLE_RANGE))
                         .map(BandwidthSpec::ScottTimes)
                 } else {
                     t.parse::<f64>()
                         .ok()
-                        .filter(|v| positive(*v))
+                        .filter(|v| within(*v, FIXED_RANGE))
                         .map(BandwidthSpec::Fixed)
                 }
             }

@@ -27,6 +27,7 @@ use geo::{Contains, Intersects, MultiPolygon, Point};
 use grid::Grid;
 use kernels::Kernel;
 use patternproof_core::Xy;
+use patternproof_report::numbers::sig;
 use rayon::prelude::*;
 
 /// Jaccard overlap at or above which the main hotspot counts as staying in place.
@@ -64,6 +65,16 @@ pub enum DensityError {
     Degenerate,
     /// Cross-validation found no bandwidth with a finite likelihood.
     LcvFailed(Kernel),
+    /// A surface puts no mass on any cell: its kernel falls between the
+    /// cell centres, so it has no isopleths.
+    NoMass {
+        /// `kernel bandwidth-spec`, as the warnings name it.
+        surface: String,
+        /// The bandwidth used.
+        bandwidth: f64,
+        /// The cell side.
+        cell: f64,
+    },
 }
 
 impl std::fmt::Display for DensityError {
@@ -90,6 +101,16 @@ impl std::fmt::Display for DensityError {
                 f,
                 "likelihood cross-validation with the {} kernel found no bandwidth on its grid at which every point has a neighbour",
                 k.name()
+            ),
+            DensityError::NoMass {
+                surface,
+                bandwidth,
+                cell,
+            } => write!(
+                f,
+                "the {surface} surface (bandwidth {}) puts no mass on any cell of {}: the kernel falls between the cell centres, so it has no isopleths and its areas would read 0",
+                sig(*bandwidth, 4),
+                sig(*cell, 4)
             ),
         }
     }
@@ -327,11 +348,11 @@ pub fn analyse(
     for (k, s, _, h, _) in &jobs {
         if *h < 2.0 * grid.cell {
             let w = format!(
-                "bandwidth {:.4} ({} {}) is less than two cells of {:.4}; the raster cannot resolve it: pass a smaller --cell",
-                h,
+                "bandwidth {} ({} {}) is less than two cells of {}; the raster cannot resolve it: pass a smaller --cell",
+                sig(*h, 4),
                 k.name(),
                 s.label(),
-                grid.cell
+                sig(grid.cell, 4)
             );
             if !warnings.contains(&w) {
                 warnings.push(w);
@@ -357,6 +378,18 @@ pub fn analyse(
             )
         })
         .collect();
+    // An empty surface has no isopleths: its areas would read 0 and drag
+    // every range down, so it stops the run instead.
+    if let Some(s) = surfaces
+        .iter()
+        .find(|s| !(s.estimate.mass_inside > 0.0 && s.estimate.mass_inside.is_finite()))
+    {
+        return Err(DensityError::NoMass {
+            surface: format!("{} {}", s.kernel.name(), s.spec.label()),
+            bandwidth: s.bandwidth,
+            cell: grid.cell,
+        });
+    }
     let mut reference = surfaces.pop().ok_or(DensityError::EmptyWindow)?;
     let compare = |s: &mut Surface, r: &Surface| {
         for (l, rl) in s.levels.iter_mut().zip(&r.levels) {
@@ -387,4 +420,72 @@ pub fn analyse(
         warnings,
         config: config.clone(),
     })
+}
+
+#[cfg(test)]
+#[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
+mod tests {
+    use super::*;
+
+    /// Issue 20: a kernel whose height 1/h² overflows (h = 10⁻³⁰⁰) or
+    /// underflows (h = 10³⁰⁰) leaves no finite mass on the raster; the run
+    /// stops naming the surface instead of reporting isopleth areas of 0.
+    /// A narrow kernel that the raster merely coarsens (h = 0.1 on 1-unit
+    /// cells: the binned points keep their mass) still gives a surface.
+    #[test]
+    fn a_surface_without_mass_stops_the_run() {
+        let pts: Vec<Xy> = (0..40)
+            .map(|k| [(k % 8) as f64 * 3.0 + 2.2, (k / 8) as f64 * 3.0 + 2.7])
+            .collect();
+        let square = MultiPolygon::new(vec![geo::Polygon::new(
+            geo::LineString::from(vec![
+                (0.0, 0.0),
+                (30.0, 0.0),
+                (30.0, 30.0),
+                (0.0, 30.0),
+                (0.0, 0.0),
+            ]),
+            vec![],
+        )]);
+        let config = |h: f64| Config {
+            kernels: vec![Kernel::Gaussian],
+            bandwidths: vec![BandwidthSpec::Fixed(h)],
+            edges: vec![Edge::None],
+            levels: vec![0.5],
+            cell: Some(1.0),
+            reference: (Kernel::Gaussian, BandwidthSpec::Fixed(h), Edge::None),
+            unit: "m".into(),
+        };
+        for h in [1e-300, 1e300] {
+            let e = analyse(&pts, &square, &config(h)).unwrap_err();
+            assert!(
+                matches!(&e, DensityError::NoMass { bandwidth, .. } if *bandwidth == h),
+                "{e:?}"
+            );
+            assert!(
+                e.to_string().contains("puts no mass on any cell of 1.000"),
+                "{e}"
+            );
+        }
+        let a = analyse(&pts, &square, &config(0.1)).unwrap();
+        assert!(a.reference.estimate.mass_inside > 0.5);
+        assert!(a.warnings.iter().any(|w| w.contains("less than two cells")));
+    }
+
+    /// Bandwidths beyond what floating point can hold are refused when
+    /// parsed: the kernel's height 1/h² would under- or overflow.
+    #[test]
+    fn absurd_bandwidths_are_not_parsed() {
+        assert_eq!(BandwidthSpec::parse("1e300"), None);
+        assert_eq!(BandwidthSpec::parse("1e-300"), None);
+        assert_eq!(BandwidthSpec::parse("1e300x"), None);
+        assert_eq!(
+            BandwidthSpec::parse("1e13"),
+            Some(BandwidthSpec::Fixed(1e13))
+        );
+        assert_eq!(
+            BandwidthSpec::parse("1e-6x"),
+            Some(BandwidthSpec::ScottTimes(1e-6))
+        );
+    }
 }

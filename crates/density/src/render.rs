@@ -141,13 +141,19 @@ pub fn document(a: &Analysis, info: &RunInfo) -> Value {
     })
 }
 
-fn round3(x: f64) -> f64 {
-    (x * 1000.0).round() / 1000.0
-}
-
 /// Isopleth polygons of every surface (and the reference), one feature per
-/// surface and level.
-pub fn isopleths_geojson(a: &Analysis) -> Value {
+/// surface and level. The coordinates are planar (the input's grid, or the
+/// equal-area plane of lon/lat input), so a legacy `crs` member names that
+/// plane: without one, RFC 7946 tells a GIS to read them as lon/lat.
+pub fn isopleths_geojson(a: &Analysis, info: &RunInfo) -> Value {
+    let decimals = coordinate_decimals(a.grid.cell);
+    let round = |x: f64| match decimals {
+        Some(k) => {
+            let scale = 10f64.powi(k);
+            (x * scale).round() / scale
+        }
+        None => x,
+    };
     let mut features = Vec::new();
     let all = a
         .surfaces
@@ -165,7 +171,7 @@ pub fn isopleths_geojson(a: &Analysis) -> Value {
                             .map(|r| {
                                 Value::Array(
                                     r.coords()
-                                        .map(|c| json!([round3(c.x), round3(c.y)]))
+                                        .map(|c| json!([round(c.x), round(c.y)]))
                                         .collect(),
                                 )
                             })
@@ -189,7 +195,28 @@ pub fn isopleths_geojson(a: &Analysis) -> Value {
             }));
         }
     }
-    json!({ "type": "FeatureCollection", "features": features })
+    let plane = match &info.projection {
+        Some(p) => format!("{p}, unit {}", info.unit),
+        None => format!(
+            "planar coordinates of {}, unit {}",
+            info.points_file, info.unit
+        ),
+    };
+    json!({
+        "type": "FeatureCollection",
+        "crs": { "type": "name", "properties": { "name": plane } },
+        "features": features,
+    })
+}
+
+/// Decimals kept in isopleth coordinates: a thousandth of the unit (as
+/// always), or a thousandth of a cell when cells are smaller than one unit
+/// (data in km, a microscope field in m), so that outlines never collapse
+/// onto a coarse rounding grid. `None`: cells too small for a fixed count
+/// of decimals; keep every digit.
+fn coordinate_decimals(cell: f64) -> Option<i32> {
+    let k = (3 - cell.log10().floor() as i32).max(3);
+    (k <= 15).then_some(k)
 }
 
 fn strip_prolog(svg: &str) -> &str {
@@ -329,7 +356,7 @@ pub fn folder(a: &Analysis, info: &RunInfo) -> Result<OutputFolder, String> {
     let mut doc = serde_json::to_string_pretty(&document(a, info)).map_err(|e| e.to_string())?;
     doc.push('\n');
     f.add("density.json", doc.into_bytes());
-    let mut gj = serde_json::to_string(&isopleths_geojson(a)).map_err(|e| e.to_string())?;
+    let mut gj = serde_json::to_string(&isopleths_geojson(a, info)).map_err(|e| e.to_string())?;
     gj.push('\n');
     f.add("isopleths.geojson", gj.into_bytes());
     let citation = format!(
@@ -373,4 +400,22 @@ pub fn folder(a: &Analysis, info: &RunInfo) -> Result<OutputFolder, String> {
     }
     f.add("index.html", html.into_bytes());
     Ok(f)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::coordinate_decimals;
+
+    /// Cells of a metre or more keep three decimals (the outputs of metre
+    /// grids do not change); a 0.004 km cell keeps six, so an outline
+    /// drawn in km is not rounded onto 1 m steps; 10⁻¹⁴ cells keep all.
+    #[test]
+    fn isopleth_coordinates_keep_a_thousandth_of_a_cell() {
+        assert_eq!(coordinate_decimals(5.0), Some(3));
+        assert_eq!(coordinate_decimals(250.0), Some(3));
+        assert_eq!(coordinate_decimals(1.0), Some(3));
+        assert_eq!(coordinate_decimals(0.004), Some(6));
+        assert_eq!(coordinate_decimals(0.01), Some(5));
+        assert_eq!(coordinate_decimals(1e-14), None);
+    }
 }

@@ -199,7 +199,20 @@ pub fn decode(bytes: &[u8]) -> Result<Decoded, BlobError> {
         return Err(BlobError::Trailing(body.len() - used));
     }
     match wkb.as_type() {
-        GeometryType::MultiPoint(mp) => check_members(mp)?,
+        GeometryType::Point(p) => {
+            if let Some(c) = p.coord() {
+                check_not_half_empty(&c, None)?;
+            }
+        }
+        GeometryType::MultiPoint(mp) => {
+            check_members(mp)?;
+            let n = mp.num_points();
+            for (i, p) in mp.points().enumerate() {
+                if let Some(c) = p.coord() {
+                    check_not_half_empty(&c, Some((i + 1, n)))?;
+                }
+            }
+        }
         GeometryType::Polygon(p) => check_rings(0, p)?,
         GeometryType::MultiPolygon(mp) => {
             for (k, p) in mp.polygons().enumerate() {
@@ -281,6 +294,25 @@ fn check_rings(polygon: usize, p: &impl PolygonTrait<T = f64>) -> Result<(), Blo
         }
     }
     Ok(())
+}
+
+/// An empty point is written with both coordinates NaN; one NaN beside a
+/// number is a broken point, not an empty one, and is refused rather than
+/// skipped (a MultiPoint would otherwise lose that member without a word).
+fn check_not_half_empty(
+    c: &impl CoordTrait<T = f64>,
+    member: Option<(usize, usize)>,
+) -> Result<(), BlobError> {
+    let (x, y) = (c.x(), c.y());
+    if x.is_nan() == y.is_nan() {
+        return Ok(());
+    }
+    let at = member.map_or(String::new(), |(i, n)| {
+        format!("MultiPoint member {i} of {n}: ")
+    });
+    Err(BlobError::Wkb(format!(
+        "{at}the point has x = {x} and y = {y}; only an empty point (both NaN) may hold NaN"
+    )))
 }
 
 fn xy(c: &impl CoordTrait<T = f64>) -> Option<Coord<f64>> {
@@ -426,6 +458,40 @@ mod tests {
         assert_eq!(header(&b).unwrap().srs_id, 4326);
         b[3] |= 0b0001_0000;
         assert_eq!(decode(&b).unwrap().shape, None);
+    }
+
+    /// Issue 20: one NaN beside a number is a broken point, refused with
+    /// its member, not skipped as empty (a MultiPoint lost such a member
+    /// without a word).
+    #[test]
+    fn half_nan_point_is_refused() {
+        let mut b = vec![b'G', b'P', 0, 1, 0, 0, 0, 0, 1];
+        b.extend_from_slice(&1u32.to_le_bytes());
+        b.extend_from_slice(&f64::NAN.to_le_bytes());
+        b.extend_from_slice(&5.0f64.to_le_bytes());
+        let e = decode(&b).unwrap_err();
+        assert_eq!(
+            e,
+            BlobError::Wkb(
+                "the point has x = NaN and y = 5; only an empty point (both NaN) may hold NaN"
+                    .into()
+            )
+        );
+        // MULTIPOINT ((1 2), (3 NaN)).
+        let mut m = vec![b'G', b'P', 0, 1, 0, 0, 0, 0, 1];
+        m.extend_from_slice(&4u32.to_le_bytes());
+        m.extend_from_slice(&2u32.to_le_bytes());
+        for (x, y) in [(1.0, 2.0), (3.0, f64::NAN)] {
+            m.push(1);
+            m.extend_from_slice(&1u32.to_le_bytes());
+            m.extend_from_slice(&f64::to_le_bytes(x));
+            m.extend_from_slice(&f64::to_le_bytes(y));
+        }
+        let e = decode(&m).unwrap_err().to_string();
+        assert!(
+            e.contains("MultiPoint member 2 of 2: the point has x = 3 and y = NaN"),
+            "{e}"
+        );
     }
 
     #[test]

@@ -39,11 +39,11 @@ pub fn read_boundary(path: &Path) -> Result<RawBoundary, InputError> {
             "give a GeoJSON Polygon/MultiPolygon or WKT POLYGON text",
         ));
     }
-    let stem = path
-        .file_stem()
-        .and_then(|s| s.to_str())
-        .unwrap_or("boundary")
-        .to_string();
+    let stem = crate::points::one_line(
+        path.file_stem()
+            .and_then(|s| s.to_str())
+            .unwrap_or("boundary"),
+    );
     if is_geojson(path, &text) {
         read_geojson(path, &text, stem)
     } else {
@@ -116,6 +116,7 @@ pub(crate) fn add_part(
     declared: Option<CoordSystem>,
     stated: bool,
 ) {
+    let name = crate::points::one_line(&name);
     match out.iter_mut().find(|b| b.name == name) {
         Some(b) => b.shape.0.extend(polygons),
         None => out.push(RawBoundary {
@@ -161,6 +162,10 @@ fn first_unclosed<'a, P: PartialEq + 'a>(
 ) -> Option<(usize, usize, usize)> {
     for (p, rings) in polygons.into_iter().enumerate() {
         for (r, ring) in rings.into_iter().enumerate() {
+            // An EMPTY ring covers nothing and is left out later.
+            if ring.is_empty() {
+                continue;
+            }
             let closed = ring.len() >= 4 && ring.first() == ring.last();
             if !closed {
                 return Some((p, r, ring.len()));
@@ -233,6 +238,7 @@ fn read_geojson(path: &Path, text: &str, stem: String) -> Result<RawBoundary, In
     let gj: GeoJson = text.parse().map_err(|e| {
         InputError::new(path, format!("not valid GeoJSON ({e})"), "check the file against RFC 7946; polygon rings need at least four positions, first = last")
     })?;
+    crate::points::refuse_repeated_keys(path, text)?;
     let declared = declared_system(legacy_crs(&gj));
     let stated = legacy_crs(&gj).is_some();
     let features: Vec<(String, Option<geojson::Geometry>, Option<String>)> = match gj {
@@ -273,7 +279,7 @@ fn read_geojson(path: &Path, text: &str, stem: String) -> Result<RawBoundary, In
         ));
     }
     let name = if names.len() == 1 {
-        names.remove(0)
+        crate::points::one_line(&names.remove(0))
     } else {
         stem
     };
@@ -294,6 +300,20 @@ fn read_wkt(path: &Path, text: &str, stem: String) -> Result<RawBoundary, InputE
         )
     };
     let w = wkt::Wkt::<f64>::from_str(text.trim()).map_err(|e| unreadable(&e))?;
+    // The WKT reader stops after the first geometry and ignores the rest,
+    // so a second polygon (or a note) after it would vanish unread.
+    if let Some(end) = end_of_first_geometry(text) {
+        let rest = text[end..].trim();
+        if !rest.is_empty() {
+            let line = text[..end].matches('\n').count() + 1;
+            let shown: String = rest.chars().take(40).collect();
+            return Err(InputError::new(
+                path,
+                format!("text follows the first geometry, which ends on line {line}: `{shown}`"),
+                "a WKT boundary file holds one geometry: put several polygons into one MULTIPOLYGON (or give each its own --boundary file), and remove anything else",
+            ));
+        }
+    }
     check_wkt_rings(path, &w)?;
     let g = Geometry::<f64>::try_from(w).map_err(|e| unreadable(&e))?;
     let mut polys = Vec::new();
@@ -304,6 +324,35 @@ fn read_wkt(path: &Path, text: &str, stem: String) -> Result<RawBoundary, InputE
         declared: None,
         stated: false,
     })
+}
+
+/// The byte offset just past the first WKT geometry in `text`: after the
+/// parenthesis that closes its first opening one, or after the word
+/// `EMPTY` when that comes first. `None` when neither is found (the WKT
+/// reader has refused such text already).
+fn end_of_first_geometry(text: &str) -> Option<usize> {
+    let open = text.find('(');
+    let empty = text.to_ascii_uppercase().find("EMPTY");
+    match (open, empty) {
+        (_, Some(e)) if open.is_none_or(|o| e < o) => Some(e + "EMPTY".len()),
+        (Some(o), _) => {
+            let mut depth = 0usize;
+            for (i, c) in text[o..].char_indices() {
+                match c {
+                    '(' => depth += 1,
+                    ')' => {
+                        depth = depth.saturating_sub(1);
+                        if depth == 0 {
+                            return Some(o + i + 1);
+                        }
+                    }
+                    _ => {}
+                }
+            }
+            None
+        }
+        _ => None,
+    }
 }
 
 /// The boundaries of many sites in one GeoJSON FeatureCollection, one
@@ -318,6 +367,7 @@ pub fn read_named_boundaries(path: &Path, field: &str) -> Result<Vec<RawBoundary
             "give a FeatureCollection of Polygon/MultiPolygon features, each with the site's name in a property",
         )
     })?;
+    crate::points::refuse_repeated_keys(path, &text)?;
     let GeoJson::FeatureCollection(fc) = gj else {
         return Err(InputError::new(
             path,
@@ -331,7 +381,7 @@ pub fn read_named_boundaries(path: &Path, field: &str) -> Result<Vec<RawBoundary
     for (i, f) in fc.features.into_iter().enumerate() {
         let place = format!("feature {}", i + 1);
         let name = match f.property(field) {
-            Some(serde_json::Value::String(s)) => s.clone(),
+            Some(serde_json::Value::String(s)) if !s.trim().is_empty() => s.clone(),
             Some(serde_json::Value::Number(n)) => n.to_string(),
             _ => {
                 return Err(InputError::new(
@@ -453,5 +503,40 @@ mod tests {
             "{}",
             e.what
         );
+    }
+
+    /// Issue 20: the WKT reader stops after the first geometry, so a second
+    /// polygon (or a note) after it would be dropped unread: refused with
+    /// the line where the first ends. EMPTY members are not errors.
+    #[test]
+    fn wkt_refuses_text_after_the_first_geometry() {
+        let square = "POLYGON ((0 0, 10 0, 10 10, 0 10, 0 0))";
+        let f = file(
+            ".wkt",
+            &format!("{square}\nPOLYGON ((20 0, 30 0, 30 10, 20 0))\n"),
+        );
+        let e = read_boundary(f.path()).unwrap_err();
+        assert!(
+            e.what
+                .contains("text follows the first geometry, which ends on line 1: `POLYGON ((20 0"),
+            "{}",
+            e.what
+        );
+        assert!(e.hint.contains("MULTIPOLYGON"));
+        let f = file(".wkt", "POLYGON EMPTY the meadow");
+        assert!(
+            read_boundary(f.path())
+                .unwrap_err()
+                .what
+                .contains("`the meadow`")
+        );
+        let f = file(".wkt", &format!("  {square}  \n\n"));
+        assert_eq!(read_boundary(f.path()).unwrap().shape.0.len(), 1);
+        let f = file(
+            ".wkt",
+            "MULTIPOLYGON (EMPTY, ((0 0, 10 0, 10 10, 0 10, 0 0), EMPTY))",
+        );
+        let b = read_boundary(f.path()).unwrap();
+        assert_eq!(b.shape.0.len(), 2, "the EMPTY part is dropped later");
     }
 }

@@ -14,7 +14,7 @@ use crate::error::InputError;
 use crate::geopackage::{self, GpkgChoice, is_geopackage};
 use crate::points::read_points;
 use geo::Intersects;
-use geo::{Area, MapCoords, MultiPolygon, Validation};
+use geo::{Area, MapCoords, MultiPolygon};
 use patternproof_core::Xy;
 use patternproof_core::order::{canonical_permutation, permute};
 use patternproof_gpkg::SpatialRef;
@@ -103,6 +103,7 @@ impl Dataset {
         boundary_files: &[PathBuf],
         options: &LoadOptions,
     ) -> Result<Self, InputError> {
+        check_unit_name(&options.unit)?;
         let mut warnings = Vec::new();
         let gpkg_points = is_geopackage(points_file);
         let (mut raw, file_unit, srs, layer) = if gpkg_points {
@@ -146,6 +147,9 @@ impl Dataset {
                 raw.skipped_empty
             ));
         }
+        if let Some((place, text)) = &raw.decimal_comma {
+            warnings.push(decimal_comma_note(points_file, place, text));
+        }
         let n_read = raw.coords.len();
         if n_read == 0 {
             return Err(InputError::new(
@@ -154,6 +158,12 @@ impl Dataset {
                 "add at least two points (the nearest-neighbour test needs pairs)",
             ));
         }
+        crate::magnitude::check_points(
+            points_file,
+            &raw.coords,
+            &raw.places,
+            raw.system == CoordSystem::Projected,
+        )?;
         // Which points repeat an earlier one exactly, found before the
         // coordinates move on: one flag per point, no copy of the points.
         let repeats = repeated_points(&raw.coords);
@@ -347,6 +357,45 @@ impl Dataset {
     }
 }
 
+/// `--unit` is printed beside every distance, in the terminal, Markdown,
+/// CSV and SVG: it must be visible text on one line.
+fn check_unit_name(unit: &str) -> Result<(), InputError> {
+    if unit.trim().is_empty() || unit.chars().any(char::is_control) || unit.chars().count() > 40 {
+        return Err(InputError::new(
+            Path::new("--unit"),
+            format!(
+                "`{}` is not a unit name (it is printed beside every distance and area)",
+                unit.escape_debug()
+            ),
+            "give the unit as a short word on one line, e.g. --unit m, --unit ft or --unit km",
+        ));
+    }
+    Ok(())
+}
+
+/// The reading of decimal commas, in words: which value first, what it was
+/// read as, and (when three digits follow the comma, as in `512,045`) that
+/// the comma might instead group thousands.
+fn decimal_comma_note(file: &Path, place: &crate::points::Place, text: &str) -> String {
+    let read_as = text.replace(',', ".");
+    let digits_after = text
+        .rsplit(',')
+        .next()
+        .map_or(0, |d| d.chars().take_while(char::is_ascii_digit).count());
+    let thousands = if digits_after == 3 {
+        format!(
+            "; if the comma groups thousands ({} rather than {read_as}), remove the grouping and run again",
+            text.replace(',', "")
+        )
+    } else {
+        String::new()
+    };
+    format!(
+        "{}: decimal commas read as decimal points ({place}: '{text}' read as {read_as}){thousands}",
+        file.display()
+    )
+}
+
 /// For each point, whether an earlier point has exactly the same
 /// coordinates (+0.0 and −0.0 count as the same place).
 ///
@@ -506,6 +555,25 @@ fn check_not_degrees(file: &Path, basis: &Basis, points: &[[f64; 2]]) -> Result<
     ))
 }
 
+/// The shape without `EMPTY` members (WKT `MULTIPOLYGON (EMPTY, ...)`, a
+/// hole written `EMPTY`, GeoJSON's empty coordinate arrays): they cover
+/// nothing, so leaving them out reads the file exactly, and nothing
+/// downstream has to expect a ring without vertices.
+fn without_empty_parts(shape: MultiPolygon<f64>) -> MultiPolygon<f64> {
+    MultiPolygon(
+        shape
+            .0
+            .into_iter()
+            .filter(|p| !p.exterior().0.is_empty())
+            .map(|p| {
+                let (shell, holes) = p.into_inner();
+                let holes = holes.into_iter().filter(|h| !h.0.is_empty()).collect();
+                geo::Polygon::new(shell, holes)
+            })
+            .collect(),
+    )
+}
+
 fn planar_boundary(
     file: &Path,
     raw: RawBoundary,
@@ -527,8 +595,9 @@ fn planar_boundary(
         )),
         _ => {}
     }
+    crate::magnitude::check_boundary(file, &raw.shape, projection.is_none())?;
     let shape = match projection {
-        None => raw.shape,
+        None => without_empty_parts(raw.shape),
         Some(proj) => {
             let bad = std::cell::Cell::new(None);
             let bad_ref = &bad;
@@ -556,10 +625,10 @@ fn planar_boundary(
                     "give the boundary in lon/lat degrees like the points",
                 ));
             }
-            mapped
+            without_empty_parts(mapped)
         }
     };
-    if let Err(problem) = shape.check_validation() {
+    if let Err(problem) = crate::validity::check(&shape) {
         return Err(InputError::new(
             file,
             format!("the boundary is not a valid polygon: {problem}"),
@@ -684,6 +753,59 @@ mod reading_tests {
         assert_eq!(
             d.reading,
             "projected coordinates in m (the GeoJSON crs member names `local survey grid, metres`)"
+        );
+    }
+
+    /// A unit that is empty, spans lines or runs on is refused before the
+    /// file is read.
+    #[test]
+    fn unit_names_are_one_short_visible_word() {
+        let f = file(
+            ".csv",
+            "x,y\n512000,5600000\n512010,5600003\n512004,5600009\n",
+        );
+        for bad in ["", "  ", "m\nfake", &"u".repeat(41)] {
+            let e = load(&f, CoordChoice::Auto, bad).unwrap_err();
+            assert_eq!(e.file, Path::new("--unit"));
+            assert!(e.what.contains("is not a unit name"), "{}", e.what);
+        }
+        assert_eq!(load(&f, CoordChoice::Auto, "ft").unwrap().unit, "ft");
+    }
+
+    /// Decimal commas are read, and the reading says so with the first
+    /// value; three digits after the comma also name the thousands reading.
+    #[test]
+    fn decimal_commas_are_read_and_said() {
+        let f = file(".csv", "x;y\n10;20\n1,5;2,5\n512,045;7\n");
+        let d = load(&f, CoordChoice::Projected, "m").unwrap();
+        assert_eq!(
+            d.warnings
+                .iter()
+                .filter(|w| w.contains("decimal commas"))
+                .count(),
+            1
+        );
+        assert!(
+            d.warnings.iter().any(|w| w
+                .ends_with("decimal commas read as decimal points (line 3: '1,5' read as 1.5)")),
+            "{:?}",
+            d.warnings
+        );
+        let f = file(".csv", "x;y\n512,045;20\n3;4\n5;9\n");
+        let d = load(&f, CoordChoice::Projected, "m").unwrap();
+        assert!(
+            d.warnings.iter().any(|w| w.contains(
+                "(line 2: '512,045' read as 512.045); if the comma groups thousands (512045 rather than 512.045)"
+            )),
+            "{:?}",
+            d.warnings
+        );
+        let plain = file(".csv", "x;y\n1.5;2\n3;4\n5;9\n");
+        assert!(
+            load(&plain, CoordChoice::Projected, "m")
+                .unwrap()
+                .warnings
+                .is_empty()
         );
     }
 

@@ -56,10 +56,11 @@ pub(crate) fn cannot_read(path: &Path, e: std::io::Error) -> InputError {
     )
 }
 
-/// Read a whole file, mapping I/O failures to an [`InputError`].
+/// Read a whole file as UTF-8 text without a leading byte-order mark,
+/// mapping I/O failures to an [`InputError`].
 pub fn read_text(path: &Path) -> Result<String, InputError> {
     let bytes = std::fs::read(path).map_err(|e| cannot_read(path, e))?;
-    String::from_utf8(bytes).map_err(|e| {
+    let text = String::from_utf8(bytes).map_err(|e| {
         InputError::new(
             path,
             format!(
@@ -68,5 +69,11 @@ pub fn read_text(path: &Path) -> Result<String, InputError> {
             ),
             "save it as UTF-8 (plain CSV, GeoJSON or WKT text)",
         )
+    })?;
+    // A byte-order mark (written by some Windows editors) is not part of
+    // the text: RFC 8259 §8.1 lets a JSON reader ignore it.
+    Ok(match text.strip_prefix('\u{feff}') {
+        Some(rest) => rest.to_string(),
+        None => text,
     })
 }

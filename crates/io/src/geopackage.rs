@@ -353,8 +353,8 @@ pub fn read_points(
         };
         let value = match (field, &f.value) {
             (None, _) => None,
-            (Some(_), Some(v)) => Some(v.clone()),
-            (Some(name), None) => {
+            (Some(_), Some(v)) if !v.trim().is_empty() => Some(crate::points::one_line(v)),
+            (Some(name), _) => {
                 return Err(InputError::new(
                     path,
                     format!("the feature has no value in column `{name}`"),
@@ -396,6 +396,7 @@ pub fn read_points(
             basis: decision.basis,
             field_values: field.map(|_| values),
             skipped_empty: skipped,
+            decimal_comma: None,
         },
         layer: layer.name.clone(),
         unit: decision.unit,
@@ -506,11 +507,11 @@ pub fn read_boundary(
     if polygons.is_empty() {
         return Err(b.no_polygon(path, features.len()));
     }
-    let name = if names.len() == 1 && features.len() == 1 {
+    let name = crate::points::one_line(&if names.len() == 1 && features.len() == 1 {
         names.remove(0)
     } else {
         b.layer.name.clone()
-    };
+    });
     Ok(GpkgBoundary {
         raw: RawBoundary {
             name,

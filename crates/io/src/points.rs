@@ -94,6 +94,9 @@ pub struct RawPoints {
     pub field_values: Option<Vec<String>>,
     /// Features without geometry, skipped.
     pub skipped_empty: usize,
+    /// The first coordinate written with a decimal comma (`10,5` in a
+    /// `;`- or tab-separated CSV) and where, so the reading can say so.
+    pub decimal_comma: Option<(Place, String)>,
 }
 
 const PROJECTED_PAIRS: [(&str, &str); 2] = [("x", "y"), ("easting", "northing")];
@@ -144,6 +147,24 @@ pub fn read_points(
     }
 }
 
+/// A name from a file (a site, a boundary) on one visible line: control
+/// characters (a line break inside a quoted CSV cell), bidirectional
+/// overrides and zero-width characters are written as escapes (`\n`,
+/// `\u{202e}`). A name ends up in table rows, file names and ids; a line
+/// break would start a new row, an override would reverse what follows.
+pub fn one_line(name: &str) -> String {
+    let mut out = String::with_capacity(name.len());
+    for c in name.chars() {
+        let escaped = c.escape_debug().to_string();
+        if escaped.chars().count() == 1 || matches!(c, '\'' | '"' | '\\') {
+            out.push(c);
+        } else {
+            out.push_str(&escaped);
+        }
+    }
+    out
+}
+
 /// The error of a `--where` that kept nothing.
 fn nothing_kept(path: &Path, f: &Filter, rows: usize, what: &str) -> InputError {
     InputError::new(
@@ -164,7 +185,28 @@ pub(crate) fn is_geojson(path: &Path, start: &str) -> bool {
         .and_then(|e| e.to_str())
         .unwrap_or("")
         .to_ascii_lowercase();
-    ext == "geojson" || ext == "json" || start.trim_start().starts_with('{')
+    ext == "geojson"
+        || ext == "json"
+        || start
+            .trim_start_matches('\u{feff}')
+            .trim_start()
+            .starts_with('{')
+}
+
+/// Refuse a key repeated within one JSON object (see [`crate::json_keys`]):
+/// a property map would keep the last value without a word.
+pub(crate) fn refuse_repeated_keys(path: &Path, text: &str) -> Result<(), InputError> {
+    match crate::json_keys::first_repeated_key(text) {
+        None => Ok(()),
+        Some((key, line, column)) => Err(InputError::new(
+            path,
+            format!(
+                "the key `{key}` appears twice in one object, so which value holds cannot be told"
+            ),
+            "remove or rename one of the two (each key of a GeoJSON object is written once)",
+        )
+        .at(format!("line {line}, column {column}"))),
+    }
 }
 
 fn sniff_delimiter(text: &str) -> u8 {
@@ -184,6 +226,22 @@ fn sniff_delimiter(text: &str) -> u8 {
 
 fn find(headers: &[String], names: &[&str]) -> Option<usize> {
     headers.iter().position(|h| names.contains(&h.as_str()))
+}
+
+/// A column the reader uses whose name (compared as read: trimmed,
+/// lower-case) appears again in the header, as (name, first, second) with
+/// 1-based column numbers. The reader would take the first silently.
+fn repeated_name(headers: &[String], used: &[usize]) -> Option<(String, usize, usize)> {
+    used.iter().find_map(|&c| {
+        let name = &headers[c];
+        let mut at = headers
+            .iter()
+            .enumerate()
+            .filter(|(_, h)| *h == name)
+            .map(|(k, _)| k + 1);
+        let first = at.next()?;
+        at.next().map(|second| (name.clone(), first, second))
+    })
 }
 
 fn read_csv_points<R: std::io::Read>(
@@ -210,7 +268,13 @@ fn read_csv_points<R: std::io::Read>(
         .iter()
         .find_map(|(a, b)| Some((find(&headers, &[a])?, find(&headers, &[b])?)));
     let lonlat = find(&headers, &LON_NAMES).zip(find(&headers, &LAT_NAMES));
-    let shown = headers.join(", ");
+    // Invisible characters (a zero-width space, a stray control byte)
+    // are shown escaped, so the message explains why a name did not match.
+    let shown = headers
+        .iter()
+        .map(|h| h.escape_debug().to_string())
+        .collect::<Vec<_>>()
+        .join(", ");
     let (cols, system) = match (choice, projected, lonlat) {
         (CoordChoice::Auto, Some(p), None) => (p, CoordSystem::Projected),
         (CoordChoice::Auto, None, Some(l)) => (l, CoordSystem::LonLat),
@@ -242,6 +306,7 @@ fn read_csv_points<R: std::io::Read>(
             .at("line 1"));
         }
     };
+    let mut used = vec![cols.0, cols.1];
     let basis = Basis::forced(choice).unwrap_or_else(|| {
         Basis::inferred(format!(
             "the CSV columns are named {},{}",
@@ -279,6 +344,18 @@ fn read_csv_points<R: std::io::Read>(
         )),
         None => None,
     };
+    used.extend(field_col);
+    used.extend(filter_col.map(|(c, _)| c));
+    if let Some((name, first, second)) = repeated_name(&headers, &used) {
+        return Err(InputError::new(
+            path,
+            format!(
+                "the column name '{name}' appears twice (columns {first} and {second}), so which one to read cannot be told"
+            ),
+            "rename or remove one of the two columns",
+        )
+        .at("line 1"));
+    }
     let mut rows = 0usize;
 
     let lenient_decimal_comma = delimiter != b',';
@@ -286,6 +363,7 @@ fn read_csv_points<R: std::io::Read>(
     let mut places = Vec::new();
     let mut values = Vec::new();
     let mut record = csv::StringRecord::new();
+    let mut decimal_comma = None;
     loop {
         match reader.read_record(&mut record) {
             Ok(true) => {}
@@ -305,22 +383,29 @@ fn read_csv_points<R: std::io::Read>(
         }
         let line = record.position().map(|p| p.line()).unwrap_or(0);
         let place = Place::Line(line);
-        let x = parse_number(
-            path,
-            place,
-            &headers[cols.0],
-            record.get(cols.0).unwrap_or(""),
-            lenient_decimal_comma,
-        )?;
-        let y = parse_number(
-            path,
-            place,
-            &headers[cols.1],
-            record.get(cols.1).unwrap_or(""),
-            lenient_decimal_comma,
-        )?;
+        let mut number = |col: usize| {
+            let raw = record.get(col).unwrap_or("");
+            let (v, comma) = parse_number(path, place, &headers[col], raw, lenient_decimal_comma)?;
+            if comma && decimal_comma.is_none() {
+                decimal_comma = Some((place, raw.to_string()));
+            }
+            Ok::<f64, InputError>(v)
+        };
+        let x = number(cols.0)?;
+        let y = number(cols.1)?;
         if let Some(c) = field_col {
-            values.push(record.get(c).unwrap_or("").to_string());
+            let v = record.get(c).unwrap_or("");
+            // An empty cell names no site: grouping such rows into a site
+            // called "" would analyse them together without a word.
+            if v.trim().is_empty() {
+                return Err(InputError::new(
+                    path,
+                    format!("column '{}' is empty: the row names no site", headers[c]),
+                    "give every row the name of its site, or leave the row out with --where",
+                )
+                .at(place.to_string()));
+            }
+            values.push(one_line(v));
         }
         coords.push([x, y]);
         places.push(place);
@@ -340,6 +425,7 @@ fn read_csv_points<R: std::io::Read>(
         basis,
         field_values: field_col.map(|_| values),
         skipped_empty: 0,
+        decimal_comma,
     })
 }
 
@@ -377,23 +463,26 @@ fn csv_error(path: &Path, e: csv::Error, line: u64) -> InputError {
 }
 
 /// `place` is formatted only when the value is refused, so the common
-/// case allocates nothing per row.
+/// case allocates nothing per row. The flag says whether the value was
+/// read with a decimal comma.
 fn parse_number(
     path: &Path,
     place: Place,
     column: &str,
     raw: &str,
     decimal_comma: bool,
-) -> Result<f64, InputError> {
+) -> Result<(f64, bool), InputError> {
+    let mut comma = false;
     let parsed = raw.parse::<f64>().ok().or_else(|| {
         if decimal_comma && raw.matches(',').count() == 1 && !raw.contains('.') {
+            comma = true;
             raw.replace(',', ".").parse::<f64>().ok()
         } else {
             None
         }
     });
     match parsed {
-        Some(v) if v.is_finite() => Ok(v),
+        Some(v) if v.is_finite() => Ok((v, comma)),
         Some(_) => Err(InputError::new(
             path,
             format!("column '{column}' holds '{raw}', which is not a finite number"),
@@ -438,7 +527,12 @@ fn crs_is_lonlat(crs: &serde_json::Value) -> Option<bool> {
         .get("properties")?
         .get("name")?
         .as_str()?
+        .trim()
         .to_ascii_uppercase();
+    // An empty name states nothing: ask rather than read it as planar.
+    if name.is_empty() {
+        return None;
+    }
     if name.contains("CRS84") {
         return Some(true);
     }
@@ -477,12 +571,23 @@ pub(crate) fn epsg_is_lonlat(code: u32) -> Option<bool> {
     }
 }
 
+/// The crs member's name, or the member itself (shortened) when it has no
+/// name string, so the message shows what the file holds.
 fn crs_name(crs: &serde_json::Value) -> String {
-    crs.get("properties")
+    match crs
+        .get("properties")
         .and_then(|p| p.get("name"))
         .and_then(|n| n.as_str())
-        .unwrap_or("?")
-        .to_string()
+    {
+        Some(name) => name.to_string(),
+        None => {
+            let text = crs.to_string();
+            match text.char_indices().nth(80) {
+                Some((cut, _)) => format!("{}…", &text[..cut]),
+                None => text,
+            }
+        }
+    }
 }
 
 fn read_geojson_points(
@@ -499,6 +604,7 @@ fn read_geojson_points(
             "check the file against RFC 7946 (a FeatureCollection of Point or MultiPoint features)",
         )
     })?;
+    refuse_repeated_keys(path, text)?;
     let crs = legacy_crs(&gj);
     let basis = match (Basis::forced(choice), crs) {
         (Some(forced), _) => forced,
@@ -570,16 +676,20 @@ fn read_geojson_points(
         };
         let value = match field {
             None => None,
+            // null and "" name no site: they are missing, not a site
+            // called "null" or "".
             Some(name) => Some(
                 f.properties
                     .as_ref()
                     .and_then(|p| p.get(name))
-                    .map(text_of)
+                    .filter(|v| !v.is_null())
+                    .map(|v| one_line(&text_of(v)))
+                    .filter(|t| !t.trim().is_empty())
                     .ok_or_else(|| {
                         InputError::new(
                             path,
-                            format!("the feature has no property '{name}'"),
-                            "give every feature that property",
+                            format!("the feature has no value in property '{name}'"),
+                            "give every feature that property, with the name of its site",
                         )
                         .at(place.clone())
                     })?,
@@ -587,6 +697,11 @@ fn read_geojson_points(
         };
         let positions: Vec<&geojson::Position> = match &geometry.value {
             GeometryValue::Point { coordinates } => vec![coordinates],
+            // An empty MultiPoint places nothing, like a null geometry.
+            GeometryValue::MultiPoint { coordinates } if coordinates.is_empty() => {
+                skipped += 1;
+                continue;
+            }
             GeometryValue::MultiPoint { coordinates } => coordinates.iter().collect(),
             other => {
                 return Err(InputError::new(
@@ -627,6 +742,7 @@ fn read_geojson_points(
         basis,
         field_values: field.map(|_| values),
         skipped_empty: skipped,
+        decimal_comma: None,
     })
 }
 
@@ -644,6 +760,73 @@ mod tests {
         assert_eq!(p.system, CoordSystem::Projected);
         assert_eq!(p.places[1], Place::Line(3));
         assert_eq!(p.places[1].to_string(), "line 3");
+    }
+
+    /// A used column whose name appears twice (case aside) is refused with
+    /// both column numbers; a repeated name the reader does not use is not.
+    #[test]
+    fn csv_refuses_a_repeated_coordinate_or_filter_column() {
+        let dup = file(".csv", "x,X,y\n1,2,3\n4,5,6\n");
+        let e = read_points(dup.path(), CoordChoice::Auto, None, None).unwrap_err();
+        assert_eq!(e.location.as_deref(), Some("line 1"));
+        assert!(
+            e.what.contains("'x' appears twice (columns 1 and 2)"),
+            "{}",
+            e.what
+        );
+        let year = file(".csv", "x,y,year,year\n1,2,2023,2024\n");
+        let e = read_points(
+            year.path(),
+            CoordChoice::Auto,
+            None,
+            Some(&keep("year", "2024")),
+        )
+        .unwrap_err();
+        assert!(e.what.contains("'year' appears twice (columns 3 and 4)"));
+        assert!(read_points(year.path(), CoordChoice::Auto, None, None).is_ok());
+    }
+
+    /// Issue 20: a row or feature without a site name (an empty cell, an
+    /// empty string, JSON null) is refused with its place, rather than
+    /// grouped into a site called "" or "null".
+    #[test]
+    fn a_missing_site_name_is_refused() {
+        let csv = file(".csv", "x,y,site\n1,2,north\n3,4, \n5,6,south\n");
+        let e = read_points(csv.path(), CoordChoice::Projected, Some("site"), None).unwrap_err();
+        assert_eq!(e.location.as_deref(), Some("line 3"));
+        assert!(e.what.contains("column 'site' is empty"), "{}", e.what);
+        for missing in ["null", "\"\""] {
+            let gj = file(
+                ".geojson",
+                &format!(
+                    r#"{{"type":"FeatureCollection","features":[
+                  {{"type":"Feature","properties":{{"site":"north"}},"geometry":{{"type":"Point","coordinates":[1,2]}}}},
+                  {{"type":"Feature","properties":{{"site":{missing}}},"geometry":{{"type":"Point","coordinates":[3,4]}}}}]}}"#
+                ),
+            );
+            let e = read_points(gj.path(), CoordChoice::Projected, Some("site"), None).unwrap_err();
+            assert_eq!(e.location.as_deref(), Some("feature 2"), "{missing}");
+            assert!(e.what.contains("no value in property 'site'"), "{}", e.what);
+        }
+        let ok = file(".csv", "x,y,site\n1,2,north\n3,4,7\n");
+        let p = read_points(ok.path(), CoordChoice::Projected, Some("site"), None).unwrap();
+        assert_eq!(
+            p.field_values,
+            Some(vec!["north".to_string(), "7".to_string()])
+        );
+    }
+
+    /// Names keep their letters (accents, quotes, slashes included) and
+    /// lose only what would break a line or reverse the text.
+    #[test]
+    fn names_are_kept_on_one_visible_line() {
+        assert_eq!(one_line("Wiese Süd / 2"), "Wiese Süd / 2");
+        assert_eq!(one_line("a\"b'c\\d"), "a\"b'c\\d");
+        assert_eq!(one_line("north\nplot"), "north\\nplot");
+        assert_eq!(one_line("a\u{202e}b\tc"), "a\\u{202e}b\\tc");
+        let csv = file(".csv", "x,y,site\n1,2,\"north\nplot\"\n");
+        let p = read_points(csv.path(), CoordChoice::Projected, Some("site"), None).unwrap();
+        assert_eq!(p.field_values, Some(vec!["north\\nplot".to_string()]));
     }
 
     fn keep(field: &str, value: &str) -> Filter {

@@ -1,5 +1,6 @@
 //! Window rules: how each site's study area is drawn, the same way for all.
 
+use patternproof_audit::BufferRule;
 use serde::{Deserialize, Serialize};
 
 /// One window rule.
@@ -72,13 +73,17 @@ impl WindowRule {
 
     /// The numbers must be positive and finite.
     pub fn validate(&self) -> Result<(), String> {
-        match *self {
-            WindowRule::HullPlus { distance: v } | WindowRule::HullPlusKnn { k: v }
-                if !(v > 0.0 && v.is_finite()) =>
-            {
+        let (v, rule) = match *self {
+            WindowRule::HullPlus { distance } => (distance, BufferRule::Distance(distance)),
+            WindowRule::HullPlusKnn { k } => (k, BufferRule::MeanNnMultiple(k)),
+            _ => return Ok(()),
+        };
+        match rule.problem() {
+            None => Ok(()),
+            Some(_) if !(v > 0.0 && v.is_finite()) => {
                 Err(format!("the buffer {v} must be a positive number"))
             }
-            _ => Ok(()),
+            Some(p) => Err(format!("the buffer {v:e} is {p}")),
         }
     }
 
@@ -105,6 +110,7 @@ impl WindowRule {
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
     use super::*;
 
@@ -129,5 +135,27 @@ mod tests {
         assert!(WindowRule::parse("hull+-3").is_err());
         assert!(WindowRule::parse("hull+abc").is_err());
         assert!(WindowRule::parse("circle").is_err());
+    }
+
+    /// Issue 20: buffers beyond any map (10¹³ units) or beyond any
+    /// pattern's own size (10⁶ mean nearest-neighbour distances) are
+    /// refused when the protocol is written, not carried as 300-digit
+    /// numbers into every site's row.
+    #[test]
+    fn absurd_buffers_are_refused() {
+        let far = WindowRule::HullPlus { distance: 1e300 }
+            .validate()
+            .unwrap_err();
+        assert!(
+            far.contains("the buffer 1e300 is more than 1e13 units"),
+            "{far}"
+        );
+        let many = WindowRule::HullPlusKnn { k: 2e6 }.validate().unwrap_err();
+        assert!(
+            many.contains("the buffer 2e6 is more than 1e6 times"),
+            "{many}"
+        );
+        assert!(WindowRule::HullPlus { distance: 1e13 }.validate().is_ok());
+        assert!(WindowRule::HullPlusKnn { k: 1e6 }.validate().is_ok());
     }
 }

@@ -249,7 +249,7 @@ pub fn parse(text: &str, q: Quantity) -> Result<Reported, Problem> {
         Bound::Below => Interval::new(f64::NEG_INFINITY, value),
         Bound::Above => Interval::new(value, f64::INFINITY),
     };
-    validate(q, value, bound)?;
+    validate(q, value, bound, text.trim())?;
     let interval = raw.intersect(&q.domain()).ok_or_else(|| {
         Problem::new(
             format!("{} cannot take this value", q.words()),
@@ -266,7 +266,7 @@ pub fn parse(text: &str, q: Quantity) -> Result<Reported, Problem> {
     })
 }
 
-fn validate(q: Quantity, v: f64, bound: Bound) -> Result<(), Problem> {
+fn validate(q: Quantity, v: f64, bound: Bound, text: &str) -> Result<(), Problem> {
     let bad = |what: &str, advice: &str| Err(Problem::new(what, advice));
     match q {
         Quantity::Ratio if v <= 0.0 => bad(
@@ -293,7 +293,46 @@ fn validate(q: Quantity, v: f64, bound: Bound) -> Result<(), Problem> {
             "the area must be positive (in the unit squared)",
             "give the study area as printed, e.g. --area 10000",
         ),
+        _ if !(min_figure(q)..=max_figure(q)).contains(&v.abs()) && v != 0.0 => bad(
+            &format!(
+                "{} of {text} is out of range: it must lie {}, where every study's figure lies (beyond, floating point cannot recompute from it)",
+                q.words(),
+                if min_figure(q) > 0.0 {
+                    format!("between {:e} and {:e}", min_figure(q), max_figure(q))
+                } else {
+                    format!("within ±{:e}", max_figure(q))
+                }
+            ),
+            &format!(
+                "check the number and its unit: it is a misprint or a slip of the exponent; give it as printed, e.g. {}",
+                q.example()
+            ),
+        ),
         _ => Ok(()),
+    }
+}
+
+/// The smallest |figure| other than 0 that can be rechecked: 10⁻¹² for
+/// distances (the smallest spread the readers accept) and its square for
+/// areas; below them areas and intensities leave floating point. R, z and
+/// p have no lower limit (p < 10⁻³⁰ is printed by large studies).
+fn min_figure(q: Quantity) -> f64 {
+    match q {
+        Quantity::MeanNn | Quantity::ExpectedNn => 1e-12,
+        Quantity::Area => 1e-24,
+        Quantity::Ratio | Quantity::Z | Quantity::P => 0.0,
+    }
+}
+
+/// The largest |figure| that can be rechecked: 10¹³ for distances (the
+/// largest coordinate the readers accept, farther than any map position
+/// in any unit), its square for areas, and 10¹⁵ for R and z (beyond any
+/// test of up to 10¹⁵ points). Beyond them squares and products overflow.
+fn max_figure(q: Quantity) -> f64 {
+    match q {
+        Quantity::MeanNn | Quantity::ExpectedNn => 1e13,
+        Quantity::Area => 1e26,
+        Quantity::Ratio | Quantity::Z | Quantity::P => 1e15,
     }
 }
 
@@ -403,6 +442,22 @@ mod tests {
         assert!(parse("1.2.3", Quantity::Z).is_err());
         assert!(parse("inf", Quantity::Z).is_err());
         assert!(parse("", Quantity::Z).is_err());
+        // Issue 20: figures beyond any study overflow the recomputation.
+        let e = parse("1e308", Quantity::Z).unwrap_err();
+        assert!(
+            e.what
+                .contains("z of 1e308 is out of range: it must lie within ±1e15"),
+            "{}",
+            e.what
+        );
+        let e = parse("1e300", Quantity::MeanNn).unwrap_err();
+        assert!(e.what.contains("between 1e-12 and 1e13"), "{}", e.what);
+        assert!(parse("1e300", Quantity::MeanNn).is_err());
+        assert!(parse("2e26", Quantity::Area).is_err());
+        assert!(parse("1e-300", Quantity::MeanNn).is_err());
+        assert!(parse("1e26", Quantity::Area).is_ok());
+        assert!(parse("0", Quantity::Z).is_ok());
+        assert!(parse("< 1e-30", Quantity::P).is_ok());
         assert_eq!(parse_count("64").unwrap(), 64);
         assert_eq!(parse_count("n = 64").unwrap(), 64);
         assert!(parse_count("1").is_err());

@@ -8,7 +8,7 @@
 //! XML parser can check it.
 
 use crate::document::AuditReport;
-use crate::numbers::{p_value, percent, sig};
+use crate::numbers::{fixed, p_value, percent, sig};
 use crate::table::{call_symbol, call_word, flip_lines};
 use std::fmt::Write;
 
@@ -179,8 +179,8 @@ pub fn index_html(
             r.edge,
             r.mean_nn.map_or("—".into(), |x| sig(x, 4)),
             r.expected_nn.map_or("—".into(), |x| sig(x, 4)),
-            r.ratio.map_or("—".into(), |x| format!("{x:.3}")),
-            r.z.map_or("—".into(), |x| format!("{x:.2}")),
+            r.ratio.map_or("—".into(), |x| fixed(x, 3)),
+            r.z.map_or("—".into(), |x| fixed(x, 2)),
             e(&r.p.map_or("—".into(), p_value)),
             call_symbol(r.call),
             call_word(r.call),

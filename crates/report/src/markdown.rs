@@ -5,7 +5,7 @@
 
 use crate::document::AuditReport;
 use crate::markdown_escape::{code, prose, text};
-use crate::numbers::{opt, p_value, percent, sig};
+use crate::numbers::{fixed, opt, p_value, percent, sig};
 use crate::table::{call_word, flip_lines};
 use std::io;
 
@@ -81,8 +81,8 @@ pub fn write_markdown<W: io::Write>(report: &AuditReport, mut out: W) -> io::Res
             n,
             opt(r.mean_nn, 4),
             opt(r.expected_nn, 4),
-            r.ratio.map_or("—".into(), |x| format!("{x:.3}")),
-            r.z.map_or("—".into(), |x| format!("{x:.2}")),
+            r.ratio.map_or("—".into(), |x| fixed(x, 3)),
+            r.z.map_or("—".into(), |x| fixed(x, 2)),
             r.p.map_or("—".into(), p_value),
             call_word(r.call),
             r.size_under_csr.map_or("—".into(), percent),

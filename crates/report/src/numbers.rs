@@ -18,6 +18,17 @@ pub fn sig(x: f64, sig: usize) -> String {
     format!("{x:.decimals$}")
 }
 
+/// A figure such as R or z with a fixed number of decimals, switching to
+/// four significant digits in scientific notation from 10⁶ on, so that an
+/// extreme row (R = 1.1·10¹², from a tiny `--area`) stays a short cell.
+pub fn fixed(x: f64, decimals: usize) -> String {
+    if x.is_finite() && x.abs() >= 1e6 {
+        sig(x, 4)
+    } else {
+        format!("{x:.decimals$}")
+    }
+}
+
 /// p-values: three decimals, and "< 0.001" below that.
 pub fn p_value(p: f64) -> String {
     if !p.is_finite() {
@@ -50,6 +61,9 @@ mod tests {
         assert_eq!(sig(-4.28525, 3), "-4.29");
         assert_eq!(sig(1.5e12, 3), "1.50e12");
         assert_eq!(p_value(0.0004), "< 0.001");
+        assert_eq!(fixed(1.2804, 3), "1.280");
+        assert_eq!(fixed(-12.104, 2), "-12.10");
+        assert_eq!(fixed(1116687350529.397, 3), "1.117e12");
         assert_eq!(p_value(0.04999), "0.050");
     }
 }

@@ -38,6 +38,10 @@ pub fn sensitivity_svg(report: &AuditReport) -> Option<String> {
         return None;
     }
     let [lo, hi] = s.area_range;
+    // A log axis over an infinite or empty range never finishes its ticks.
+    if !(lo > 0.0 && hi.is_finite() && hi > lo) {
+        return None;
+    }
     let unit = &report.input.unit;
     let thresholds = thresholds(report);
     let (inside, outside): (Vec<&Threshold>, Vec<&Threshold>) = thresholds

@@ -2,7 +2,7 @@
 //! terminal table (rounded, for reading).
 
 use crate::document::AuditReport;
-use crate::numbers::{opt, p_value, percent, sig};
+use crate::numbers::{fixed, opt, p_value, percent, sig};
 use comfy_table::{Cell, CellAlignment, ContentArrangement, Table, presets};
 use patternproof_core::Call;
 use std::io;
@@ -122,10 +122,9 @@ pub fn terminal_table(report: &AuditReport, width: Option<u16>) -> String {
             Cell::new(opt(area, 4)).set_alignment(CellAlignment::Right),
             Cell::new(opt(r.mean_nn, 4)).set_alignment(CellAlignment::Right),
             Cell::new(opt(r.expected_nn, 4)).set_alignment(CellAlignment::Right),
-            Cell::new(r.ratio.map_or("—".into(), |x| format!("{x:.3}")))
+            Cell::new(r.ratio.map_or("—".into(), |x| fixed(x, 3)))
                 .set_alignment(CellAlignment::Right),
-            Cell::new(r.z.map_or("—".into(), |x| format!("{x:.2}")))
-                .set_alignment(CellAlignment::Right),
+            Cell::new(r.z.map_or("—".into(), |x| fixed(x, 2))).set_alignment(CellAlignment::Right),
             Cell::new(r.p.map_or("—".into(), p_value)).set_alignment(CellAlignment::Right),
             Cell::new(call_word(r.call)),
             Cell::new(r.size_under_csr.map_or("—".into(), percent))
