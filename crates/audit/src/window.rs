@@ -1029,7 +1029,7 @@ impl Outline {
     fn distance(&self, p: Xy) -> f64 {
         use rstar::PointDistance;
         self.tree
-            .nearest_neighbor(p)
+            .nearest_neighbor(&p)
             .map_or(f64::INFINITY, |line| line.distance_2(&p).sqrt())
     }
 

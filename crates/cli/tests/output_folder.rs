@@ -276,6 +276,19 @@ mod signals {
             send(&child, Signal::SIGKILL);
             child.wait().unwrap();
             let left = leftovers(dir.path());
+            let contents: Vec<String> = left
+                .iter()
+                .map(|n| {
+                    let names: Vec<String> = std::fs::read_dir(dir.path().join(n))
+                        .map(|d| {
+                            d.filter_map(Result::ok)
+                                .map(|e| e.file_name().to_string_lossy().into_owned())
+                                .collect()
+                        })
+                        .unwrap_or_default();
+                    format!("{n}: {names:?}")
+                })
+                .collect();
             // Killed between the two renames, `out` may be missing for now.
             if !out.exists() {
                 assert!(
@@ -285,10 +298,13 @@ mod signals {
             }
             let o = run(audit(&pts, &out, &["--force", "--seed", "500"]));
             let e = String::from_utf8_lossy(&o.stderr);
-            assert!(o.status.success(), "trial {trial}: {e}");
+            assert!(o.status.success(), "trial {trial}: {:?} {e}", o.status);
             if !left.is_empty() {
                 repaired += 1;
-                assert!(e.contains("patternproof: note: "), "trial {trial}: {e}");
+                assert!(
+                    e.contains("patternproof: note: "),
+                    "trial {trial}: left {contents:?}: {e}"
+                );
             }
             assert_eq!(leftovers(dir.path()), Vec::<String>::new(), "trial {trial}");
             assert_eq!(assert_whole(&out, "after the repair"), 500);

@@ -154,7 +154,7 @@ fn build_tree(points: &[Xy]) -> RTree<Indexed> {
 }
 
 fn nearest_other(tree: &RTree<Indexed>, i: usize, p: Xy) -> f64 {
-    tree.nearest_neighbor_iter_with_distance_2(p)
+    tree.nearest_neighbor_iter_with_distance_2(&p)
         .find(|(g, _)| g.data != i)
         .map(|(_, d2)| d2.sqrt())
         .unwrap_or(f64::INFINITY)

@@ -75,7 +75,7 @@ pub fn torus_tree_distances(points: &[Xy], rect: Rect) -> Option<Vec<f64>> {
                     for dy in [-h, 0.0, h] {
                         let q = [p[0] + dx, p[1] + dy];
                         let found = tree
-                            .nearest_neighbor_iter_with_distance_2(q)
+                            .nearest_neighbor_iter_with_distance_2(&q)
                             .find(|(item, _)| item.data != i);
                         if let Some((_, d2)) = found {
                             best = best.min(d2);

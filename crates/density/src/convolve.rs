@@ -19,7 +19,7 @@ pub fn good_size(n: usize) -> usize {
     loop {
         let mut k = m;
         for p in [2, 3, 5] {
-            while k % p == 0 {
+            while k.is_multiple_of(p) {
                 k /= p;
             }
         }

@@ -521,10 +521,10 @@ fn printed_figures_recheck_as_consistent() {
                 "{what}: R, z and p cannot fix an area"
             );
         }
-        if let Some(zc) = rc.checks.iter().find(|ch| ch.name == "z from R and n") {
-            if let Some(iv) = zc.recomputed {
-                assert!(iv.contains(row.z.unwrap()), "{what}: recomputed z {iv}");
-            }
+        if let Some(zc) = rc.checks.iter().find(|ch| ch.name == "z from R and n")
+            && let Some(iv) = zc.recomputed
+        {
+            assert!(iv.contains(row.z.unwrap()), "{what}: recomputed z {iv}");
         }
     }
 }

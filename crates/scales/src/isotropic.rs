@@ -36,10 +36,10 @@ pub fn inside_share(region: &Region, c: Xy, r: f64) -> f64 {
     if r <= 0.0 {
         return 1.0;
     }
-    if let Some(rect) = region.rectangle {
-        if let Some(share) = rectangle_share(rect, c, r) {
-            return share;
-        }
+    if let Some(rect) = region.rectangle
+        && let Some(share) = rectangle_share(rect, c, r)
+    {
+        return share;
     }
     let mut angles: Vec<f64> = Vec::new();
     for line in region.edges_near(c, r) {

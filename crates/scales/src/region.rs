@@ -73,7 +73,7 @@ impl Region {
     /// half-width `r`: every edge a circle of radius `r` about `c` can cut.
     pub fn edges_near(&self, c: Xy, r: f64) -> impl Iterator<Item = &Line<Xy>> {
         let env = AABB::from_corners([c[0] - r, c[1] - r], [c[0] + r, c[1] + r]);
-        self.edges.locate_in_envelope_intersecting(env)
+        self.edges.locate_in_envelope_intersecting(&env)
     }
 
     /// Even–odd rule: a horizontal ray from `p` to the right crosses the
@@ -85,7 +85,7 @@ impl Region {
         }
         let env = AABB::from_corners(p, [self.bounds[1][0] + 1.0, p[1]]);
         let mut inside = false;
-        for l in self.edges.locate_in_envelope_intersecting(env) {
+        for l in self.edges.locate_in_envelope_intersecting(&env) {
             let (a, b) = (l.from, l.to);
             if (a[1] > p[1]) != (b[1] > p[1]) {
                 let x = a[0] + (p[1] - a[1]) / (b[1] - a[1]) * (b[0] - a[0]);
@@ -100,7 +100,7 @@ impl Region {
     /// Distance from `p` to the nearest ring edge (holes included).
     pub fn distance_to_outline(&self, p: Xy) -> f64 {
         self.edges
-            .nearest_neighbor(p)
+            .nearest_neighbor(&p)
             .map_or(f64::INFINITY, |l| l.distance_2(&p).sqrt())
     }
 }

@@ -320,27 +320,28 @@ impl Plan<'_> {
         let pts: Vec<Xy> = w.inside.iter().map(|&i| self.points[i]).collect();
         let (curves, pair_notes) = k_curves(&pts, region, grid, &options.corrections, true);
         let mut tests = Vec::new();
-        if options.sims > 0 && !options.tested.is_empty() {
-            if let Some(sampler) = Sampler::new(&region.shape) {
-                let sims = simulate(
-                    region,
-                    &sampler,
-                    pts.len(),
-                    grid,
-                    &options.tested,
-                    options.sims,
-                    options.seed,
-                    &stream_label(&w.id),
-                    tick,
-                );
-                for (t, &c) in options.tested.iter().enumerate() {
-                    let observed = curves
-                        .iter()
-                        .find(|k| k.correction == c)
-                        .map(|k| k.l_minus_r.clone())
-                        .unwrap_or_else(|| vec![None; grid.len()]);
-                    tests.push(global_tests(c, &observed, &sims[t], options.alpha));
-                }
+        if options.sims > 0
+            && !options.tested.is_empty()
+            && let Some(sampler) = Sampler::new(&region.shape)
+        {
+            let sims = simulate(
+                region,
+                &sampler,
+                pts.len(),
+                grid,
+                &options.tested,
+                options.sims,
+                options.seed,
+                &stream_label(&w.id),
+                tick,
+            );
+            for (t, &c) in options.tested.iter().enumerate() {
+                let observed = curves
+                    .iter()
+                    .find(|k| k.correction == c)
+                    .map(|k| k.l_minus_r.clone())
+                    .unwrap_or_else(|| vec![None; grid.len()]);
+                tests.push(global_tests(c, &observed, &sims[t], options.alpha));
             }
         }
         let window_bands = tests.iter().map(|t| bands(&t.departure, grid)).collect();

@@ -4,7 +4,7 @@
 
 /// The height of the k-th flat simulated curve: ±0.1·k, odd k below zero.
 pub fn height(k: u32) -> f64 {
-    let step = if k % 2 == 0 { 0.1 } else { -0.1 };
+    let step = if k.is_multiple_of(2) { 0.1 } else { -0.1 };
     step * f64::from(k)
 }
 

@@ -40,12 +40,16 @@ pub fn repair(parent: &Path, target: &OsStr) -> Vec<String> {
         let path = e.path();
         match temporary::read_marker(&path) {
             None => {
-                // Made, but stopped before its marker: only ever empty, and
-                // `remove_dir` removes nothing else.
+                // Made, but stopped before its marker was in place: empty
+                // but for a marker being written, and `remove_dir` removes
+                // nothing else.
                 let gone = temporary::pid_in_name(name).is_some_and(|pid| {
                     let host = Owner::me().host;
                     !Owner { pid, host }.alive()
                 });
+                if gone {
+                    let _ = std::fs::remove_file(path.join(temporary::MARKER_PART));
+                }
                 if gone && std::fs::remove_dir(&path).is_ok() {
                     notes.push(format!(
                         "removed {}, an empty temporary folder of a run that was stopped",
@@ -91,12 +95,20 @@ fn old(parent: &Path, path: &Path, m: &MarkerInfo, notes: &mut Vec<String>) {
     let replaced = !has_previous
         || (target.is_dir() && manifest::inspect(&target).is_ok_and(|c| c == Contents::OnlyListed));
     if replaced {
-        if temporary::remove_marker_last(path).is_ok() && has_previous {
-            notes.push(format!(
-                "removed {}, the earlier report of {} that a stopped run had already replaced",
-                path.display(),
-                target.display()
-            ));
+        if temporary::remove_marker_last(path).is_ok() {
+            notes.push(if has_previous {
+                format!(
+                    "removed {}, the earlier report of {} that a stopped run had already replaced",
+                    path.display(),
+                    target.display()
+                )
+            } else {
+                // Stopped before the earlier report was moved into it.
+                format!(
+                    "removed {}, an empty temporary folder of a run that was stopped",
+                    path.display()
+                )
+            });
         }
     } else {
         notes.push(format!(
@@ -229,5 +241,42 @@ mod tests {
         assert!(legacy.join("previous").is_dir());
         assert!(!empty.exists());
         assert!(fake.join(temporary::MARKER).is_file());
+    }
+
+    /// A run killed while writing its marker: the marker is only ever put
+    /// in place whole (written as `.part`, then renamed), a cut marker
+    /// (no final newline, e.g. its host name cut short) counts as none,
+    /// and a dead run's folder holding only the `.part` file is removed.
+    #[test]
+    fn a_marker_cut_short_is_no_marker() {
+        let root = tempfile::tempdir().unwrap();
+        let me = dead_owner();
+        let part = root
+            .path()
+            .join(format!(".patternproof-stage-{}-abc", me.pid));
+        std::fs::create_dir(&part).unwrap();
+        std::fs::write(part.join(temporary::MARKER_PART), "patternproof tem").unwrap();
+        let cut = root
+            .path()
+            .join(format!(".patternproof-old-{}-def", me.pid));
+        std::fs::create_dir(&cut).unwrap();
+        let whole = format!(
+            "{}\nrole: old\ntarget: out\npid: {}\nhost: {}\n",
+            temporary::HEADER,
+            me.pid,
+            me.host
+        );
+        // Cut inside the host name: read whole, it would name another host.
+        std::fs::write(cut.join(temporary::MARKER), &whole[..whole.len() - 2]).unwrap();
+        assert!(temporary::read_marker(&cut).is_none());
+        let notes = repair(root.path(), OsStr::new("out"));
+        assert!(!part.exists(), "{notes:?}");
+        assert!(
+            notes
+                .iter()
+                .any(|n| n.contains("an empty temporary folder"))
+        );
+        // The cut marker's folder holds a file, so it is not ours to judge.
+        assert!(cut.join(temporary::MARKER).is_file());
     }
 }

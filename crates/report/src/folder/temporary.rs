@@ -20,12 +20,15 @@ use std::path::{Path, PathBuf};
 
 /// The marker inside every temporary folder.
 pub const MARKER: &str = ".patternproof-temporary";
+
+/// The marker while it is being written.
+pub const MARKER_PART: &str = ".patternproof-temporary.part";
 /// Name prefix of staging folders.
 pub const STAGE_PREFIX: &str = ".patternproof-stage-";
 /// Name prefix of the folders holding a previous report.
 pub const OLD_PREFIX: &str = ".patternproof-old-";
 /// First line of [`MARKER`].
-const HEADER: &str = "patternproof temporary folder";
+pub(super) const HEADER: &str = "patternproof temporary folder";
 
 /// What a temporary folder is for.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -117,7 +120,12 @@ impl TempFolder {
             owner.pid,
             owner.host
         );
-        std::fs::write(folder.path.join(MARKER), text)?;
+        // Written beside its final name and renamed, so a run killed while
+        // writing leaves no marker at all rather than a cut one (whose
+        // cut host name would make a dead run look like another host's).
+        let part = folder.path.join(MARKER_PART);
+        std::fs::write(&part, text)?;
+        std::fs::rename(&part, folder.path.join(MARKER))?;
         Ok(folder)
     }
 
@@ -165,6 +173,9 @@ pub fn remove_marker_last(dir: &Path) -> io::Result<()> {
 /// The marker of `dir`, if it carries a well-formed one.
 pub fn read_marker(dir: &Path) -> Option<MarkerInfo> {
     let text = std::fs::read_to_string(dir.join(MARKER)).ok()?;
+    if !text.ends_with('\n') {
+        return None;
+    }
     let mut lines = text.lines();
     if lines.next()? != HEADER {
         return None;
