@@ -829,6 +829,36 @@ mod tests {
         assert_eq!(p.field_values, Some(vec!["north\\nplot".to_string()]));
     }
 
+    /// Issue 20: a `crs` member with an empty name states nothing and is
+    /// asked about (it was read as a planar system); one without a name
+    /// string is shown as written; an empty MultiPoint counts with the
+    /// features without geometry; an invisible character in a header
+    /// name is shown escaped.
+    #[test]
+    fn odd_crs_members_empty_multipoints_and_invisible_headers() {
+        let fc = |crs: &str| {
+            file(
+                ".geojson",
+                &format!(
+                    r#"{{"type":"FeatureCollection","crs":{crs},"features":[
+                  {{"type":"Feature","properties":{{}},"geometry":{{"type":"MultiPoint","coordinates":[]}}}},
+                  {{"type":"Feature","properties":{{}},"geometry":{{"type":"Point","coordinates":[10.1,50.2]}}}}]}}"#
+                ),
+            )
+        };
+        let empty = fc(r#"{"type":"name","properties":{"name":" "}}"#);
+        let e = read_points(empty.path(), CoordChoice::Auto, None, None).unwrap_err();
+        assert!(e.what.contains("cannot identify"), "{}", e.what);
+        let bare = fc(r#""EPSG:4326""#);
+        let e = read_points(bare.path(), CoordChoice::Auto, None, None).unwrap_err();
+        assert!(e.what.contains("names `\"EPSG:4326\"`"), "{}", e.what);
+        let p = read_points(empty.path(), CoordChoice::LonLat, None, None).unwrap();
+        assert_eq!((p.coords.len(), p.skipped_empty), (1, 1));
+        let zw = file(".csv", "x\u{200b},y\n1,2\n");
+        let e = read_points(zw.path(), CoordChoice::Auto, None, None).unwrap_err();
+        assert!(e.what.contains("(x\\u{200b}, y)"), "{}", e.what);
+    }
+
     fn keep(field: &str, value: &str) -> Filter {
         Filter {
             field: field.into(),
