@@ -357,6 +357,21 @@ fn split_target(target: &Path) -> Result<(PathBuf, OsString), FolderError> {
         what: what.into(),
         todo: todo.into(),
     };
+    // `a/../b` would create `a`, a folder outside the one asked for, on
+    // the way to `b`: `..` may follow only a folder that already exists.
+    let mut walked = PathBuf::new();
+    for c in target.components() {
+        if c == Component::ParentDir
+            && matches!(walked.components().next_back(), Some(Component::Normal(_)))
+            && !walked.is_dir()
+        {
+            return Err(refuse(
+                "--out goes down into a folder that does not exist and back up with `..`, which would create a folder outside the one asked for",
+                "give the folder's path without that detour, e.g. --out b instead of --out a/../b",
+            ));
+        }
+        walked.push(c);
+    }
     let last = target.components().next_back();
     let Some(Component::Normal(name)) = last else {
         return Err(refuse(
@@ -680,5 +695,24 @@ mod tests {
             let r = write_folder(&root.path().join("out"), &f);
             assert!(matches!(r, Err(FolderError::BadName(_))), "{bad:?}");
         }
+    }
+
+    /// `--out a/../b` with no folder `a` is refused before anything is
+    /// made: no folder `a` appears. Through a folder that exists the path
+    /// is fine.
+    #[test]
+    fn out_may_not_go_down_and_back_up() {
+        let root = tempfile::tempdir().unwrap();
+        let target = root.path().join("a/../b");
+        let mut f = OutputFolder::default();
+        f.add("report.json", b"{}".to_vec());
+        let e = write_folder(&target, &f).unwrap_err();
+        assert!(e.to_string().contains("and back up with `..`"), "{e}");
+        assert!(!root.path().join("a").exists());
+        assert!(!root.path().join("b").exists());
+        let climbing = root.path().join("inner");
+        std::fs::create_dir(&climbing).unwrap();
+        write_folder(&climbing.join("../c"), &f).unwrap();
+        assert!(root.path().join("c/report.json").is_file());
     }
 }
