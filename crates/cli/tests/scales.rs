@@ -361,3 +361,33 @@ fn window_ids_with_commas_are_quoted_in_the_csv() {
     }
     assert!(ids.contains("boundary:north, \"upper\" field"), "{ids:?}");
 }
+
+/// An r_max beyond every window's diagonal gets a caution: no two points
+/// are that far apart, so "no departure" up to it says nothing there. The
+/// demo windows are at most a few hundred metres across; the default
+/// r_max (a quarter of the shortest side) gets no such caution.
+#[test]
+fn an_rmax_beyond_every_window_is_named() {
+    let dir = tempfile::tempdir().unwrap();
+    let caution = |out: &Path| -> bool {
+        let v: serde_json::Value =
+            serde_json::from_slice(&std::fs::read(out.join("scales.json")).unwrap()).unwrap();
+        v["cautions"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .any(|c| c.as_str().unwrap().contains("is beyond the widest window"))
+    };
+    let far = dir.path().join("far");
+    let o = scales(
+        &["--sims", "19", "--steps", "8", "--rmax", "100000"],
+        &far,
+        "2",
+    );
+    assert_eq!(o.status.code(), Some(0));
+    assert!(caution(&far));
+    let near = dir.path().join("near");
+    let o = scales(&["--sims", "19", "--steps", "8"], &near, "2");
+    assert_eq!(o.status.code(), Some(0));
+    assert!(!caution(&near));
+}

@@ -9,6 +9,7 @@ use crate::verdict::{Band, bands, sentence};
 use patternproof_audit::sampling::Sampler;
 use patternproof_audit::{Window, WindowKind};
 use patternproof_core::Xy;
+use patternproof_report::numbers::sig;
 use serde::Serialize;
 
 /// Schema id of `scales.json` (docs/scales-schema.md).
@@ -170,6 +171,20 @@ fn too_few_simulations(options: &ScalesOptions) -> Option<String> {
             options.alpha,
             options.sims + 1,
             1.0 / (options.sims + 1) as f64
+        )
+    })
+}
+
+/// Distances beyond the widest window's diagonal separate no two points,
+/// so K is flat there under the data and under CSR alike: "no departure"
+/// up to such an r_max says nothing about those distances.
+fn beyond_every_window(rmax: f64, widest: f64, unit: &str) -> Option<String> {
+    (widest > 0.0 && rmax > widest).then(|| {
+        format!(
+            "r_max = {} {unit} is beyond the widest window (its bounding rectangle's diagonal is {} {unit}): no two points of any window are farther apart, so the curves beyond {} {unit} show nothing, and neither a departure nor its absence there is a finding. Use an r_max within the windows, e.g. the default.",
+            sig(rmax, 4),
+            sig(widest, 4),
+            sig(widest, 4)
         )
     })
 }
@@ -366,6 +381,14 @@ impl Plan<'_> {
             .iter()
             .map(|(w, region, how)| self.window(w, region, *how, options, tick))
             .collect();
+        let widest = self
+            .usable
+            .iter()
+            .map(|(_, region, _)| {
+                let [lo, hi] = region.bounds;
+                (hi[0] - lo[0]).hypot(hi[1] - lo[1])
+            })
+            .fold(0.0, f64::max);
         let Plan {
             points,
             skipped,
@@ -412,6 +435,7 @@ impl Plan<'_> {
             cautions: cautions()
                 .into_iter()
                 .chain(too_few_simulations(options))
+                .chain(beyond_every_window(rmax, widest, unit))
                 .collect(),
         }
     }
