@@ -488,8 +488,8 @@ mod tests {
     use super::*;
     use std::cell::Cell;
 
-    /// Every entry of `dir`, sorted.
-    fn names(dir: &Path) -> Vec<String> {
+    /// Every entry of `dir`, sorted (shared with the repair tests).
+    pub(super) fn names(dir: &Path) -> Vec<String> {
         let mut v: Vec<String> = std::fs::read_dir(dir)
             .unwrap()
             .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())

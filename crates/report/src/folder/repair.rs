@@ -125,16 +125,9 @@ fn old(parent: &Path, path: &Path, m: &MarkerInfo, notes: &mut Vec<String>) {
 mod tests {
     use super::super::temporary::TempFolder;
     use super::super::temporary::tests::dead_owner;
+    use super::super::tests::names;
     use super::*;
 
-    fn names(dir: &Path) -> Vec<String> {
-        let mut v: Vec<String> = std::fs::read_dir(dir)
-            .unwrap()
-            .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
-            .collect();
-        v.sort();
-        v
-    }
 
     fn report(dir: &Path, text: &str) {
         std::fs::create_dir_all(dir).unwrap();
