@@ -128,7 +128,6 @@ mod tests {
     use super::super::tests::names;
     use super::*;
 
-
     fn report(dir: &Path, text: &str) {
         std::fs::create_dir_all(dir).unwrap();
         std::fs::write(dir.join("report.json"), text).unwrap();
