@@ -13,7 +13,11 @@ out=${1:?usage: scripts/record-outputs.sh OUTDIR}
 root=$(cd "$(dirname "$0")/.." && pwd)
 cargo build --release -q -p patternproof --manifest-path "$root/Cargo.toml"
 bin="$root/target/release/patternproof"
-rm -rf "$out"
+# Runs write into one fixed folder, since output paths appear in the pages
+# and terminal lines; the folder is moved to OUTDIR at the end.
+final=$out
+out=${TMPDIR:-/tmp}/patternproof-record
+rm -rf "$out" "$final"
 mkdir -p "$out"
 cd "$root"
 run() { # name, args…
@@ -33,4 +37,6 @@ run lonlat audit reference/gpkg/plots_wgs84.csv --sims 99 --out "$out/lonlat"
 run gpkg audit reference/gpkg/survey.gpkg --layer plots_utm --sims 99 --out "$out/gpkg"
 # The absolute output path appears in terminal lines; make it relative.
 sed -i "s|$out/||g" "$out"/*.stdout "$out"/*.stderr
-echo "recorded in $out"
+mkdir -p "$(dirname "$final")"
+mv "$out" "$final"
+echo "recorded in $final"
