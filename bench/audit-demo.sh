@@ -7,7 +7,7 @@
 set -euo pipefail
 cd "$(dirname "$0")/.."
 target="${CARGO_TARGET_DIR:-target}"
-cargo build --release -q -p patternproof
+cargo build --release -q -p patternproof-cli
 out=$(mktemp -d)
 for threads in ${THREADS:-1 2}; do
   best=""

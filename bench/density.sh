@@ -7,7 +7,7 @@
 set -euo pipefail
 cd "$(dirname "$0")/.."
 target="${CARGO_TARGET_DIR:-target}"
-cargo build --release -q -p patternproof
+cargo build --release -q -p patternproof-cli
 work=$(mktemp -d)
 n="${POINTS:-100000}"
 awk -v n="$n" 'BEGIN {

@@ -6,7 +6,7 @@
 set -euo pipefail
 cd "$(dirname "$0")/.."
 target="${CARGO_TARGET_DIR:-target}"
-cargo build --release -q -p patternproof -p patternproof-demo
+cargo build --release -q -p patternproof-cli -p patternproof-demo
 work=$(mktemp -d)
 "$target/release/patternproof-demo" --bench-sites "$work/sites" "${SITES:-200}" "${POINTS:-500}" >/dev/null
 "$target/release/patternproof" protocol new --window hull+1nn --edge simulation --sims 999 --out "$work/protocol.json" >/dev/null

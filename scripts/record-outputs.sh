@@ -11,7 +11,7 @@
 set -euo pipefail
 out=${1:?usage: scripts/record-outputs.sh OUTDIR}
 root=$(cd "$(dirname "$0")/.." && pwd)
-cargo build --release -q -p patternproof --manifest-path "$root/Cargo.toml"
+cargo build --release -q -p patternproof-cli --manifest-path "$root/Cargo.toml"
 bin="$root/target/release/patternproof"
 # Runs write into one fixed folder, since output paths appear in the pages
 # and terminal lines; the folder is moved to OUTDIR at the end.

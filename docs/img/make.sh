@@ -4,7 +4,7 @@
 set -euo pipefail
 cd "$(dirname "$0")/../.."
 out=$(mktemp -d)
-cargo run --release -q -p patternproof -- audit demo-data/meadow-burrows.csv \
+cargo run --release -q -p patternproof-cli -- audit demo-data/meadow-burrows.csv \
   --boundary demo-data/meadow-boundary.geojson --quiet --out "$out/report" >/dev/null
 cp "$out/report/sensitivity.svg" docs/img/sensitivity.svg
 rm -rf "$out"

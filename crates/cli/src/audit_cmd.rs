@@ -6,19 +6,16 @@ use crate::fail::Failure;
 use crate::progress::Progress;
 use crate::scales_cmd;
 use patternproof_audit::simulation;
-use patternproof_audit::window::{NamedShape, WindowOptions};
-use patternproof_audit::{AuditOptions, BufferRule, Edge, run_audit};
+use patternproof_audit::window::WindowOptions;
+use patternproof_audit::{AuditOptions, BufferRule, Edge};
 use patternproof_io::magnitude::{MAX_AREA, MIN_AREA};
 use patternproof_io::{Dataset, LoadOptions};
-use patternproof_report::document::BoundarySource;
-use patternproof_report::document::{FileDigest, ReportProvenance};
 use patternproof_report::html::{self, Picture, Provenance, Section};
 use patternproof_report::{
-    AuditReport, InputSummary, OutputFolder, markdown, outlines, sensitivity_plot, simulation_plot,
-    table, window_map,
+    AuditReport, OutputFolder, markdown, outlines, sensitivity_plot, simulation_plot, table,
+    window_map,
 };
 use patternproof_scales::{ScalesOptions, ScalesRun};
-use sha2::Digest;
 
 /// Run the command.
 pub fn run(a: &AuditArgs) -> Result<(), Failure> {
@@ -55,8 +52,8 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
     }
     let data = load(&a.input)?;
     print_reading(&data);
-    let shapes = named_shapes(&data);
-    let windows = budget::outlined_windows(buffers.len(), shapes.len());
+    let input = patternproof::Input::from_dataset(&data)?;
+    let windows = patternproof::outlined_windows(buffers.len(), input.boundaries.len());
     let scales_options = a.scales.then(|| ScalesOptions {
         rmax: a.scales_rmax,
         sims: a.scales_sims,
@@ -77,51 +74,12 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
         sims: a.sims,
         seed: a.seed,
     };
-    let progress = Progress::new(
-        a.sims.saturating_mul(windows) as u64,
-        a.quiet,
-        "simulating CSR",
-    );
-    let audit =
-        run_audit(&data.points, &shapes, &options, &|| progress.tick()).ok_or_else(|| {
-            Failure::Internal("the sweep could not start although the input was checked".into())
-        })?;
-    progress.finish();
-    if !audit.results.iter().any(|r| r.p.is_some()) {
-        let hint = if !audit.windows.is_empty()
-            && audit.n < patternproof_core::clark_evans::MIN_N_ANALYTIC
-        {
-            "with so few points only the simulation test applies, and it needs an outline: give the surveyed outline with --boundary (and --sims above 0)"
-        } else {
-            "the points are identical or collinear, so no study area can be drawn from them; give the surveyed outline with --boundary or the study area with --area"
-        };
-        return Err(Failure::Input(format!(
-            "{}: no window could be tested ({})\n  what to do: {hint}",
-            a.input.points.display(),
-            audit.why_untested()
-        )));
-    }
-
-    let sensitivity = patternproof_audit::curves::sensitivity(&data.points, &audit);
-    let report = AuditReport::new(
-        audit,
-        sensitivity,
-        input_summary(&data),
-        buffers
-            .iter()
-            .map(|b| b.describe())
-            .collect::<Vec<_>>()
-            .join(","),
-        concavity,
-    );
-    let mut report = report;
-    report.provenance = provenance(&data)?;
+    let report = patternproof::audit(&input, &options, &Progress::new(a.quiet))?;
     let scales = match &scales_options {
-        Some(options) => Some(scales_cmd::compute(
-            &data,
-            buffers.clone(),
-            concavity,
-            options,
+        Some(scales_options) => Some(scales_cmd::compute(
+            &input,
+            &options.windows,
+            scales_options,
             a.quiet,
             "--scales-sims",
         )?),
@@ -132,16 +90,16 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
         no_map: a.no_map,
         stamp: a.stamp,
         protocol: None,
-        scales: scales.as_ref().map(|(run, _)| run.clone()),
+        scales: scales.as_ref().map(|k| k.run.clone()),
     };
     let mut folder = render(&report, &data.points, data.projection.as_ref(), &choices)?;
     folder.add("windows.gpkg", windows_gpkg(&report, &data, a.stamp)?);
     a.output.write(&folder)?;
 
     print_summary(&report, &a.output.out, &folder);
-    if let Some((run, notes)) = &scales {
+    if let Some(k) = &scales {
         println!("\nRipley's K across the same windows (--scales):");
-        scales_cmd::print_lines(run, notes);
+        scales_cmd::print_lines(&k.run, &k.notes);
     }
     Ok(())
 }
@@ -297,39 +255,13 @@ pub fn render(
     Ok(folder)
 }
 
-/// SHA-256 of every input file.
-fn provenance(data: &Dataset) -> Result<ReportProvenance, Failure> {
-    let mut inputs = Vec::new();
-    let files = std::iter::once(&data.points_file).chain(data.boundaries.iter().map(|b| &b.file));
-    for f in files {
-        if inputs
-            .iter()
-            .any(|d: &FileDigest| d.file == f.display().to_string())
-        {
-            continue;
-        }
-        let bytes = std::fs::read(f).map_err(|e| {
-            Failure::Input(format!(
-                "{}: could not be read again for its checksum: {e}\n  what to do: keep the input files in place while the audit runs",
-                f.display()
-            ))
-        })?;
-        let digest = sha2::Sha256::digest(&bytes);
-        inputs.push(FileDigest {
-            file: f.display().to_string(),
-            sha256: digest.iter().map(|b| format!("{b:02x}")).collect(),
-        });
-    }
-    Ok(ReportProvenance { inputs })
-}
-
 fn internal(e: std::io::Error) -> Failure {
     Failure::Internal(format!("could not render the report in memory: {e}"))
 }
 
 /// Load points and boundaries with the shared input flags.
 pub fn load(input: &InputArgs) -> Result<Dataset, Failure> {
-    Ok(Dataset::load(
+    Ok(patternproof::load(
         &input.points,
         &input.boundaries,
         &LoadOptions {
@@ -393,44 +325,6 @@ pub fn windows_gpkg(report: &AuditReport, data: &Dataset, stamp: bool) -> Result
     };
     patternproof_report::windows_gpkg::windows_gpkg(report, &data.plane_srs(), &last_change)
         .map_err(|e| Failure::Internal(format!("could not write windows.gpkg in memory: {e}")))
-}
-
-/// The boundaries as the audit wants them.
-pub fn named_shapes(data: &Dataset) -> Vec<NamedShape> {
-    data.boundaries
-        .iter()
-        .map(|b| NamedShape {
-            name: b.name.clone(),
-            source: b.file.display().to_string(),
-            shape: b.shape.clone(),
-        })
-        .collect()
-}
-
-/// What the report says about the input.
-pub fn input_summary(data: &Dataset) -> InputSummary {
-    InputSummary {
-        points_file: match &data.layer {
-            Some(layer) => format!("{} ({layer})", data.points_file.display()),
-            None => data.points_file.display().to_string(),
-        },
-        n: data.points.len(),
-        n_read: data.n_read,
-        duplicates: data.duplicates,
-        duplicates_dropped: data.duplicates_dropped,
-        coords: data.system.as_str().to_string(),
-        projection: data.projection.as_ref().map(|p| p.describe()),
-        unit: data.unit.clone(),
-        boundaries: data
-            .boundaries
-            .iter()
-            .map(|b| BoundarySource {
-                name: b.name.clone(),
-                file: b.file.display().to_string(),
-            })
-            .collect(),
-        warnings: data.warnings.clone(),
-    }
 }
 
 /// `--buffers 0.5x,1x,2x` or `--buffers 5,10`.

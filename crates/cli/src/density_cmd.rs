@@ -4,12 +4,11 @@
 
 use crate::fail::Failure;
 use clap::Args;
-use geo::{Area, ConvexHull, MultiPoint, MultiPolygon, Point};
 use patternproof_density::bandwidth::{BandwidthSpec, FIXED_RANGE, MULTIPLE_RANGE};
 use patternproof_density::edge::Edge;
 use patternproof_density::kernels::{self, Kernel};
 use patternproof_density::render::RunInfo;
-use patternproof_density::{Config, analyse, render};
+use patternproof_density::{Config, render};
 use patternproof_report::html::shell_quote;
 
 /// `patternproof density`.
@@ -202,43 +201,12 @@ pub fn run(a: &DensityArgs) -> Result<(), Failure> {
     }
     let config = parse_config(a, &data.unit)?;
     let points_name = a.input.points.display().to_string();
-    let (window, source): (MultiPolygon<f64>, String) = match data.boundaries.first() {
-        Some(b) => (
-            b.shape.clone(),
-            format!("boundary {} ({})", b.name, b.file.display()),
-        ),
-        None => {
-            let mp = MultiPoint(data.points.iter().map(|p| Point::new(p[0], p[1])).collect());
-            (
-                MultiPolygon(vec![mp.convex_hull()]),
-                "convex hull of the points".to_string(),
-            )
-        }
-    };
-    let area = window.unsigned_area();
-    if area.is_nan() || area <= 0.0 {
-        return Err(bad(
-            &points_name,
-            "the window has no area (the points lie on one line or at one place)".into(),
-            "pass a study area with --boundary, or check the coordinates",
-        ));
-    }
-    let analysis = analyse(&data.points, &window, &config).map_err(|e| {
-        let todo = match e {
-            patternproof_density::DensityError::TooManyCells(_)
-            | patternproof_density::DensityError::EmptyWindow => {
-                "choose a --cell suited to the window's size"
-            }
-            patternproof_density::DensityError::LcvFailed(_) => {
-                "drop lcv from --bandwidths for this kernel, or use the gaussian kernel"
-            }
-            patternproof_density::DensityError::NoMass { .. } => {
-                "pass a --cell of at most half the bandwidth, or drop that bandwidth"
-            }
-            _ => "check the point file and the window",
-        };
-        bad(&points_name, e.to_string(), todo)
-    })?;
+    let input = patternproof::Input::from_dataset(&data)?;
+    let patternproof::DensityResult {
+        analysis,
+        window_source: source,
+        window_area: area,
+    } = patternproof::density(&input, &config)?;
     let mut command = vec!["patternproof".to_string()];
     command.extend(
         std::env::args_os()

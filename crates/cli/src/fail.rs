@@ -48,3 +48,12 @@ impl From<patternproof_io::InputError> for Failure {
         Failure::Input(e.to_string())
     }
 }
+
+impl From<patternproof::Error> for Failure {
+    fn from(e: patternproof::Error) -> Self {
+        match e.kind() {
+            patternproof::ErrorKind::Internal => Failure::Internal(e.to_string()),
+            _ => Failure::Input(e.to_string()),
+        }
+    }
+}

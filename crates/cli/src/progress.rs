@@ -2,7 +2,7 @@
 //!
 //! Hidden at first; shown on stderr once a second has passed, and never
 //! when stderr is not a terminal or `--quiet` is given, so logs and pipes
-//! stay clean.
+//! stay clean. It is the command line's [`patternproof::Progress`].
 
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 use std::io::IsTerminal;
@@ -16,23 +16,31 @@ pub struct Progress {
 }
 
 impl Progress {
-    /// A bar for `total` steps.
-    pub fn new(total: u64, quiet: bool, what: &str) -> Self {
-        let bar = ProgressBar::with_draw_target(Some(total), ProgressDrawTarget::hidden());
+    /// A bar, hidden until a stage starts and a second has passed.
+    pub fn new(quiet: bool) -> Self {
+        let bar = ProgressBar::with_draw_target(None, ProgressDrawTarget::hidden());
         if let Ok(style) = ProgressStyle::with_template("{msg} {wide_bar} {pos}/{len} ({eta} left)")
         {
             bar.set_style(style);
         }
-        bar.set_message(what.to_string());
         Self {
             bar,
             allowed: !quiet && std::io::stderr().is_terminal(),
             shown: AtomicBool::new(false),
         }
     }
+}
 
-    /// One step done.
-    pub fn tick(&self) {
+impl patternproof::Progress for Progress {
+    fn start(&self, total: u64, what: &str) {
+        self.bar.set_length(total);
+        self.bar.set_position(0);
+        self.bar.set_message(what.to_string());
+        self.bar.reset_elapsed();
+        self.bar.reset_eta();
+    }
+
+    fn step(&self) {
         self.bar.inc(1);
         if self.allowed
             && !self.shown.load(Ordering::Relaxed)
@@ -43,8 +51,7 @@ impl Progress {
         }
     }
 
-    /// Remove the bar.
-    pub fn finish(&self) {
+    fn finish(&self) {
         self.bar.finish_and_clear();
     }
 }

@@ -172,45 +172,8 @@ fn write_new(path: &Path, text: &str) -> Result<(), Failure> {
     }
 }
 
-/// Read and verify a protocol file; a changed one is an input error.
-pub fn read_verified(path: &Path) -> Result<Protocol, Failure> {
-    let (protocol, check) = read(path)?;
-    match check {
-        Check::Intact => Ok(protocol),
-        Check::Changed { stored, actual } => Err(changed(path, &stored, &actual)),
-    }
-}
-
-fn read(path: &Path) -> Result<(Protocol, Check), Failure> {
-    let text = std::fs::read_to_string(path).map_err(|e| {
-        Failure::Input(format!(
-            "{}: cannot be read ({e})\n  what to do: give the protocol file written by `patternproof protocol new`",
-            path.display()
-        ))
-    })?;
-    // A byte-order mark from an editor is not part of the JSON.
-    let text = text.strip_prefix('\u{feff}').unwrap_or(&text);
-    // A JSON object keeps the last of two equal keys, so a protocol that
-    // says `"alpha": 0.5` and then `"alpha": 0.05` would read (and hash)
-    // as 0.05 while a person reading it sees 0.5 first.
-    if let Some((key, line, column)) = patternproof_io::json_keys::first_repeated_key(text) {
-        return Err(Failure::Input(format!(
-            "{}, line {line}, column {column}: the key `{key}` appears twice, so the protocol cannot be read unambiguously\n  what to do: use the protocol file as `patternproof protocol new` wrote it",
-            path.display()
-        )));
-    }
-    Protocol::from_file_text(text).map_err(|e| Failure::Input(format!("{}: {e}", path.display())))
-}
-
-fn changed(path: &Path, stored: &str, actual: &str) -> Failure {
-    Failure::Input(format!(
-        "{}: the protocol was CHANGED after it was written: its choices hash to {actual}, the file records {stored}\n  what to do: use the original protocol file; if the change is intended, write a new protocol with `patternproof protocol new` and report both",
-        path.display()
-    ))
-}
-
 fn show(a: &ShowArgs) -> Result<(), Failure> {
-    let (protocol, check) = read(&a.file)?;
+    let (protocol, check) = patternproof::read_protocol(&a.file)?;
     println!("protocol {} ({})", a.file.display(), protocol.schema);
     for l in protocol.describe() {
         println!("  {l}");
@@ -223,6 +186,8 @@ fn show(a: &ShowArgs) -> Result<(), Failure> {
             );
             Ok(())
         }
-        Check::Changed { stored, actual } => Err(changed(&a.file, &stored, &actual)),
+        Check::Changed { stored, actual } => {
+            Err(patternproof::changed(&a.file, &stored, &actual).into())
+        }
     }
 }

@@ -5,15 +5,11 @@
 //! the `patternproof-recheck` crate.
 
 use crate::args::CoordsArg;
-use crate::audit_cmd::named_shapes;
 use crate::fail::Failure;
 use clap::Args;
-use patternproof_audit::run_audit;
-use patternproof_core::clark_evans::MIN_N_ANALYTIC;
-use patternproof_io::{CoordChoice, Dataset, LoadOptions};
-use patternproof_recheck::attribution::sweep_options;
-use patternproof_recheck::reported::{Bound, Problem, Quantity, parse, parse_count};
-use patternproof_recheck::{Figures, recheck, render};
+use patternproof_io::{CoordChoice, LoadOptions};
+use patternproof_recheck::reported::{Problem, Quantity, parse, parse_count};
+use patternproof_recheck::{Figures, render};
 use std::path::PathBuf;
 
 /// `patternproof recheck`.
@@ -114,50 +110,22 @@ pub fn run(a: &RecheckArgs) -> Result<(), Failure> {
                 field: None,
                 gpkg: Default::default(),
             };
-            let data = Dataset::load(path, &a.boundaries, &options)?;
+            let data = patternproof::load(path, &a.boundaries, &options)?;
             crate::audit_cmd::print_reading(&data);
             Some(data)
         }
         None => None,
     };
-    let audit = match &data {
-        Some(d) => {
-            let area = f
-                .get(Quantity::Area)
-                .filter(|r| r.bound == Bound::Rounded)
-                .map(|r| r.value);
-            let audit = run_audit(&d.points, &named_shapes(d), &sweep_options(area), &|| {})
-                .ok_or_else(|| {
-                    Failure::Input(format!(
-                        "{}: the sweep needs at least two points\n  what to do: check the point file",
-                        d.points_file.display()
-                    ))
-                })?;
-            let n = d.points.len();
-            if n < MIN_N_ANALYTIC && !audit.results.iter().any(|r| r.p.is_some()) {
-                // A boundary would not help here (and recheck runs no
-                // simulation row): say what does.
-                return Err(Failure::Input(format!(
-                    "{}: only {n} point(s): the sweep gives no closed-form row below {MIN_N_ANALYTIC} points (the normal approximation is not trusted there), so the points cannot show which window reproduces the figures\n  what to do: leave out --points to check the figures alone",
-                    d.points_file.display()
-                )));
-            }
-            if !audit.results.iter().any(|r| r.p.is_some()) {
-                return Err(Failure::Input(format!(
-                    "{}: no window could be tested ({})\n  what to do: give the surveyed outline with --boundary, or leave out --points to check the figures alone",
-                    d.points_file.display(),
-                    audit.why_untested()
-                )));
-            }
-            for w in &d.warnings {
-                eprintln!("patternproof: warning: {w}");
-            }
-            Some(audit)
+    let input = data
+        .as_ref()
+        .map(patternproof::Input::from_dataset)
+        .transpose()?;
+    let result = patternproof::recheck(&f, input.as_ref())?;
+    if let Some(d) = &data {
+        for w in &d.warnings {
+            eprintln!("patternproof: warning: {w}");
         }
-        None => None,
-    };
-    let unit = data.as_ref().map_or("m", |d| d.unit.as_str());
-    let result = recheck(&f, audit.as_ref().map(|x| (x, unit)));
+    }
     if a.json {
         let text = serde_json::to_string_pretty(&result)
             .map_err(|e| Failure::Internal(format!("could not write the JSON: {e}")))?;

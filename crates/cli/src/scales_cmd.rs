@@ -6,22 +6,16 @@
 //! the test are in the `patternproof-scales` crate.
 
 use crate::args::{InputArgs, OutArgs, count};
-use crate::audit_cmd::{check_alpha, load, named_shapes};
+use crate::audit_cmd::{check_alpha, load};
 use crate::budget;
 use crate::fail::Failure;
 use crate::progress::Progress;
 use crate::window_args::WindowArgs;
 use clap::Args;
-use geo::Translate;
-use patternproof_audit::BufferRule;
-use patternproof_audit::sweep::centre;
-use patternproof_audit::window::{NamedShape, WindowOptions, build_windows};
-use patternproof_core::Xy;
-use patternproof_core::nearest::{mean, nearest_distances};
-use patternproof_io::Dataset;
+use patternproof::{ScalesJob, ScalesResult, WindowOptions};
 use patternproof_report::OutputFolder;
 use patternproof_scales::summary;
-use patternproof_scales::{Correction, ScalesOptions, ScalesRun, memory, plan};
+use patternproof_scales::{Correction, ScalesOptions, ScalesRun, memory};
 
 /// Largest accepted `--steps`.
 const MAX_STEPS: usize = 10_000;
@@ -134,7 +128,13 @@ pub fn run(a: &ScalesArgs) -> Result<(), Failure> {
     };
     let windows = budget::outlined_windows(buffers.len(), data.boundaries.len());
     check_memory("--sims", &options, data.points.len(), windows, 0)?;
-    let (run, notes) = compute(&data, buffers, concavity, &options, a.quiet, "--sims")?;
+    let input = patternproof::Input::from_dataset(&data)?;
+    let windows = WindowOptions {
+        buffers,
+        area: None,
+        concavity,
+    };
+    let ScalesResult { run, notes } = compute(&input, &windows, &options, a.quiet, "--sims")?;
     let mut folder = OutputFolder::default();
     add_files(&mut folder, &run)?;
     a.output.write(&folder)?;
@@ -174,77 +174,29 @@ pub fn check_memory(
     budget::check_memory(flag, options.sims, need, &basis, budget::available_memory())
 }
 
-/// The K audit of `data` in every window of the sweep, in coordinates
-/// centred on the data (as the nearest-neighbour audit), with a forecast
+/// The K audit of `input` in every window of the sweep, with a forecast
 /// of its time and a progress bar unless `quiet`; `flag` is the option
-/// that set `options.sims`. Also returns the window notes of the sweep.
-/// Shared by `scales` and `audit --scales`.
+/// that set `options.sims`. Shared by `scales` and `audit --scales`.
 pub fn compute(
-    data: &Dataset,
-    buffers: Vec<BufferRule>,
-    concavity: f64,
+    input: &patternproof::Input,
+    windows: &WindowOptions,
     options: &ScalesOptions,
     quiet: bool,
     flag: &str,
-) -> Result<(ScalesRun, Vec<String>), Failure> {
-    let points_file = data.points_file.display().to_string();
-    let origin = centre(&data.points);
-    let points: Vec<Xy> = data
-        .points
-        .iter()
-        .map(|p| [p[0] - origin[0], p[1] - origin[1]])
-        .collect();
-    let shapes: Vec<NamedShape> = named_shapes(data)
-        .into_iter()
-        .map(|b| NamedShape {
-            shape: b.shape.translate(-origin[0], -origin[1]),
-            ..b
-        })
-        .collect();
-    let mean_nn = nearest_distances(&points)
-        .and_then(|d| mean(&d))
-        .ok_or_else(|| {
-            Failure::Input(format!(
-                "{points_file}: K needs at least two points, the file has {}\n  what to do: check the point file",
-                points.len()
-            ))
-        })?;
-    let (windows, notes) = build_windows(
-        &points,
-        mean_nn,
-        &shapes,
-        &WindowOptions {
-            buffers,
-            area: None,
-            concavity,
-        },
-    );
-    let plan = plan(&points, &windows, options);
-    let patterns = plan.simulated_patterns(options);
-    if patterns > 0 {
-        // One trial pattern per window, on one thread; the simulations
-        // share the threads.
-        let trial = plan.trial_seconds(options);
-        let threads = rayon::current_num_threads();
-        let seconds = |sims: usize| trial * sims as f64 / threads as f64;
-        budget::check_time(flag, options.sims, seconds, threads, quiet)?;
-    }
-    let progress = Progress::new(patterns as u64, quiet, "simulating CSR for K");
-    let run = plan.run(&data.unit, options, &|| progress.tick());
-    progress.finish();
-    if run.windows.is_empty() {
-        let mut why: Vec<String> = notes.clone();
-        why.extend(
-            run.skipped
-                .iter()
-                .map(|s| format!("{}: {}", s.window, s.reason)),
-        );
-        return Err(Failure::Input(format!(
-            "{points_file}: no window could be analysed ({})\n  what to do: the points are identical or collinear, so no study area can be drawn from them; give the surveyed outline with --boundary",
-            why.join("; ")
-        )));
-    }
-    Ok((run, notes))
+) -> Result<ScalesResult, Failure> {
+    let job = ScalesJob::prepare(input, windows)?;
+    let check = |plan: &patternproof_scales::Plan, options: &ScalesOptions| {
+        if plan.simulated_patterns(options) > 0 {
+            // One trial pattern per window, on one thread; the simulations
+            // share the threads.
+            let trial = plan.trial_seconds(options);
+            let threads = rayon::current_num_threads();
+            let seconds = |sims: usize| trial * sims as f64 / threads as f64;
+            budget::check_time(flag, options.sims, seconds, threads, quiet)?;
+        }
+        Ok::<(), Failure>(())
+    };
+    job.run(options, check, &Progress::new(quiet))
 }
 
 /// The files of a K audit: scales.json, scales.csv, scales.md and the

@@ -1,25 +1,20 @@
 //! `patternproof sites`: one locked protocol over many sites.
 
 use crate::args::{CoordArgs, OutArgs, count};
-use crate::audit_cmd::{RenderChoices, input_summary, render};
+use crate::audit_cmd::{RenderChoices, render};
 use crate::budget;
 use crate::fail::Failure;
 use crate::progress::Progress;
-use crate::protocol_cmd::read_verified;
 use clap::Args;
+use patternproof::{Site, SitesSource};
 use patternproof_audit::simulation;
-use patternproof_audit::window::NamedShape;
-use patternproof_io::boundary::read_named_boundaries;
-use patternproof_io::geopackage::{self, is_geopackage};
-use patternproof_io::{CoordChoice, CoordSystem, Dataset, LoadOptions};
+use patternproof_io::{Dataset, LoadOptions};
 use patternproof_protocol::Protocol;
-use patternproof_report::document::{FileDigest, ReportProvenance};
-use patternproof_report::{AuditReport, OutputFolder};
+use patternproof_report::OutputFolder;
 use patternproof_sites::folder_name::site_folders;
 use patternproof_sites::{RunOptions, SiteInput, SiteRun, forest, page, render as site_render};
 use rayon::prelude::*;
-use sha2::Digest;
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 
 /// `patternproof sites`.
 #[derive(Debug, Args)]
@@ -71,57 +66,36 @@ pub struct SitesArgs {
     pub output: OutArgs,
 }
 
-/// A site with what its report needs besides the sweep.
-struct Loaded {
-    input: SiteInput,
-    /// Index of the data set the site came from (shared with --site-field).
-    data: usize,
-    /// What its report says about the input.
-    summary: patternproof_report::InputSummary,
-    files: Vec<PathBuf>,
-}
-
 /// Run the command.
 pub fn run(a: &SitesArgs) -> Result<(), Failure> {
-    let protocol = read_verified(&a.protocol)?;
-    if protocol.window == patternproof_protocol::WindowRule::Boundary && a.boundaries.is_none() {
-        return Err(Failure::Input(format!(
-            "{}: the protocol's window is each site's own boundary, and no --boundaries file was given, so no site could be tested\n  what to do: pass --boundaries FILE (one polygon per site, named in --boundary-field), or use a protocol with another window rule",
-            a.protocol.display()
-        )));
+    let protocol = patternproof::read_verified(&a.protocol)?;
+    let source = SitesSource {
+        inputs: a.inputs.clone(),
+        site_field: a.site_field.clone(),
+        boundaries: a.boundaries.clone(),
+        boundary_layer: a.boundary_layer.clone(),
+        boundary_field: a.boundary_field.clone(),
+        load: LoadOptions {
+            coords: a.coords.choice(),
+            unit: a.coords.unit.clone(),
+            drop_duplicates: a.drop_duplicates,
+            field: None,
+            gpkg: crate::audit_cmd::gpkg_choice(a.layer.clone(), None, a.filter.as_deref())?,
+        },
+    };
+    let loaded = patternproof::load_sites(&source, &protocol, &a.protocol.display().to_string())?;
+    for w in &loaded.warnings {
+        eprintln!("patternproof: warning: {w}");
     }
-    let (sites, datasets) = load_sites(a)?;
-    if protocol.window == patternproof_protocol::WindowRule::Boundary
-        && let Some(bfile) = &a.boundaries
-        && sites.iter().all(|s| s.input.boundary.is_none())
-    {
-        let names: Vec<&str> = sites
-            .iter()
-            .map(|s| s.input.name.as_str())
-            .take(5)
-            .collect();
-        return Err(Failure::Input(format!(
-            "{}: no boundary's `{}` matches a site name ({}{}), and the protocol's window is each site's own boundary, so no site could be tested\n  what to do: name the property or column that holds the site names with --boundary-field",
-            bfile.display(),
-            a.boundary_field,
-            names.join(", "),
-            if sites.len() > 5 { ", …" } else { "" }
-        )));
-    }
-    print_readings(&datasets);
+    let (sites, datasets) = (&loaded.sites, &loaded.datasets);
+    print_readings(datasets);
     let inputs: Vec<SiteInput> = sites.iter().map(|s| s.input.clone()).collect();
     let opts = RunOptions {
         sweep_sims: a.sweep_sims,
     };
     check_budget(&inputs, &protocol, opts, a.quiet)?;
-    let progress = Progress::new(
-        patternproof_sites::simulated_patterns(&inputs, &protocol, opts),
-        a.quiet,
-        "simulating CSR at every site",
-    );
-    let runs = patternproof_sites::run_sites_with(&inputs, &protocol, opts, &|| progress.tick());
-    progress.finish();
-    let folder = outputs(a, &protocol, &sites, &datasets, &runs)?;
+    let runs = patternproof::sites(&loaded, &protocol, opts, &Progress::new(a.quiet));
+    let folder = outputs(a, &protocol, sites, datasets, &runs)?;
     a.output.write(&folder)?;
 
     let doc = site_render::document(&runs, &protocol, a.sweep_sims);
@@ -253,159 +227,6 @@ fn check_budget(
     budget::check_time("--sweep-sims", opts.sweep_sims, seconds, threads, quiet)
 }
 
-fn load_sites(a: &SitesArgs) -> Result<(Vec<Loaded>, Vec<Dataset>), Failure> {
-    let gpkg = crate::audit_cmd::gpkg_choice(a.layer.clone(), None, a.filter.as_deref())?;
-    let options = |field: Option<String>| LoadOptions {
-        coords: a.coords.choice(),
-        unit: a.coords.unit.clone(),
-        drop_duplicates: a.drop_duplicates,
-        field,
-        gpkg: gpkg.clone(),
-    };
-    let mut sites: Vec<Loaded> = Vec::new();
-    let mut datasets: Vec<Dataset> = Vec::new();
-    if let Some(field) = &a.site_field {
-        if a.inputs.len() != 1 {
-            return Err(Failure::Input(format!(
-                "--site-field {field}: give exactly one point file holding every site ({} given)\n  what to do: drop --site-field to use one file per site, or merge the files",
-                a.inputs.len()
-            )));
-        }
-        let file = &a.inputs[0];
-        let all = Dataset::load(file, &[], &options(Some(field.clone())))?;
-        let values = all
-            .field_values
-            .clone()
-            .ok_or_else(|| Failure::Internal("the site field was requested but not read".into()))?;
-        let mut names: Vec<String> = values.clone();
-        names.sort();
-        names.dedup();
-        for name in names {
-            let idx: Vec<usize> = (0..values.len()).filter(|&i| values[i] == name).collect();
-            let points: Vec<_> = idx.iter().map(|&i| all.points[i]).collect();
-            let mut summary = input_summary(&all);
-            summary.points_file = format!("{} (site {name})", summary.points_file);
-            summary.n = points.len();
-            summary.n_read = points.len();
-            summary.duplicates = 0;
-            sites.push(Loaded {
-                input: SiteInput {
-                    name: name.clone(),
-                    points,
-                    boundary: None,
-                },
-                data: 0,
-                summary,
-                files: vec![file.clone()],
-            });
-        }
-        datasets.push(all);
-    } else {
-        for file in &a.inputs {
-            let name = patternproof_io::points::one_line(
-                file.file_stem().and_then(|s| s.to_str()).unwrap_or("site"),
-            );
-            if sites.iter().any(|s| s.input.name == name) {
-                return Err(Failure::Input(format!(
-                    "{}: a second file for site `{name}` (site names are file stems)\n  what to do: rename one of the files so every site has its own name",
-                    file.display()
-                )));
-            }
-            let data = Dataset::load(file, &[], &options(None))?;
-            sites.push(Loaded {
-                input: SiteInput {
-                    name,
-                    points: data.points.clone(),
-                    boundary: None,
-                },
-                data: datasets.len(),
-                summary: input_summary(&data),
-                files: vec![file.clone()],
-            });
-            datasets.push(data);
-        }
-    }
-    if a.boundary_layer.is_some() && !a.boundaries.as_deref().is_some_and(is_geopackage) {
-        return Err(Failure::Input(
-            "--boundary-layer was given but --boundaries is not a GeoPackage\n  what to do: give --boundaries FILE.gpkg --boundary-layer NAME, or leave --boundary-layer out".into(),
-        ));
-    }
-    if let Some(bfile) = &a.boundaries {
-        let mut layer_srs = None;
-        let raws = if is_geopackage(bfile) {
-            let (raws, layer, srs) = geopackage::read_named_boundaries(
-                bfile,
-                a.boundary_layer.as_deref(),
-                &a.boundary_field,
-                a.coords.choice(),
-            )?;
-            layer_srs = srs.map(|s| (layer, s));
-            raws
-        } else {
-            read_named_boundaries(bfile, &a.boundary_field)?
-        };
-        for raw in &raws {
-            if !sites.iter().any(|s| s.input.name == raw.name) {
-                eprintln!(
-                    "patternproof: warning: {}: boundary `{}` matches no site",
-                    bfile.display(),
-                    raw.name
-                );
-            }
-        }
-        for s in &mut sites {
-            if let Some(raw) = raws.iter().find(|r| r.name == s.input.name) {
-                let data = &datasets[s.data];
-                // Projected layers must share the points' system: nothing
-                // here reprojects between two projected systems.
-                if let (Some((layer, b)), Some(p), CoordSystem::Projected, CoordChoice::Auto) =
-                    (&layer_srs, &data.srs, data.system, a.coords.choice())
-                    && !geopackage::same_system(p, b)
-                {
-                    return Err(Failure::Input(format!(
-                        "{}: layer `{layer}` is in {} but the points of site `{}` are in {}\n  what to do: reproject the boundaries to the points' coordinate system in a GIS and export them again",
-                        bfile.display(),
-                        b.label(),
-                        s.input.name,
-                        p.label()
-                    )));
-                }
-                let b = datasets[s.data].planar(bfile, raw.clone(), a.coords.choice())?;
-                s.input.boundary = Some(NamedShape {
-                    name: b.name.clone(),
-                    source: bfile.display().to_string(),
-                    shape: b.shape.clone(),
-                });
-                s.summary.boundaries = vec![patternproof_report::document::BoundarySource {
-                    name: b.name.clone(),
-                    file: bfile.display().to_string(),
-                }];
-                s.files.push(bfile.clone());
-            }
-        }
-    }
-    for s in &mut sites {
-        s.summary.warnings = datasets[s.data].warnings.clone();
-    }
-    Ok((sites, datasets))
-}
-
-fn digest(path: &Path) -> Result<FileDigest, Failure> {
-    let bytes = std::fs::read(path).map_err(|e| {
-        Failure::Input(format!(
-            "{}: could not be read again for its checksum: {e}\n  what to do: keep the input files in place while the run lasts",
-            path.display()
-        ))
-    })?;
-    Ok(FileDigest {
-        file: path.display().to_string(),
-        sha256: sha2::Sha256::digest(&bytes)
-            .iter()
-            .map(|b| format!("{b:02x}"))
-            .collect(),
-    })
-}
-
 /// One site's report folder, before it joins the run's folder.
 struct SiteFolder {
     /// `site/FOLDER`.
@@ -418,7 +239,7 @@ struct SiteFolder {
 fn outputs(
     a: &SitesArgs,
     protocol: &Protocol,
-    sites: &[Loaded],
+    sites: &[Site],
     datasets: &[Dataset],
     runs: &[SiteRun],
 ) -> Result<OutputFolder, Failure> {
@@ -426,7 +247,7 @@ fn outputs(
         Failure::Internal(format!("could not render the outputs in memory: {e}"))
     };
     let hash = protocol.sha256();
-    let with_report: Vec<&Loaded> = sites
+    let with_report: Vec<&Site> = sites
         .iter()
         .zip(runs)
         .filter(|(_, run)| run.audit.is_some())
@@ -449,26 +270,9 @@ fn outputs(
         .par_iter()
         .zip(runs.par_iter())
         .map(|(s, run)| {
-            let Some(audit) = &run.audit else {
+            let Some(report) = patternproof::site_report(s, run, protocol)? else {
                 return Ok(None);
             };
-            let sensitivity = patternproof_audit::curves::sensitivity(&s.input.points, audit);
-            let summary = s.summary.clone();
-            let mut report = AuditReport::new(
-                audit.clone(),
-                sensitivity,
-                summary,
-                "0.5x,1x,2x (+ the protocol's buffer)".into(),
-                protocol.concavity,
-            );
-            report.provenance = ReportProvenance {
-                inputs: s
-                    .files
-                    .iter()
-                    .map(|f| digest(f))
-                    .collect::<Result<_, _>>()?,
-            };
-            report.protocol_sha256 = Some(hash.clone());
             let mut folder = render(
                 &report,
                 &s.input.points,

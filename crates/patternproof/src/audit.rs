@@ -1,0 +1,77 @@
+//! `audit`: one data set over every window × edge handling, with the
+//! sensitivity curves and the report document.
+
+use crate::document::AuditReport;
+use crate::error::{Error, Refusal};
+use crate::input::Input;
+use crate::progress::Progress;
+use patternproof_audit::{AuditOptions, run_audit};
+use patternproof_core::clark_evans::MIN_N_ANALYTIC;
+
+/// Windows with an outline that a sweep builds, and so simulates in: the
+/// bounding box, the hull, the concave hull, one buffered hull per buffer
+/// and the boundaries. An upper bound: a window that cannot be drawn is
+/// left out later.
+pub fn outlined_windows(buffers: usize, boundaries: usize) -> usize {
+    3 + buffers + boundaries
+}
+
+/// Sweep `input` over the windows and edge handlings of `options` and
+/// assemble the report document (`report.json`, schema
+/// `patternproof.audit/3`).
+///
+/// Refuses ([`Refusal::NoTestableWindow`]) when no row has a p-value,
+/// and ([`Refusal::TooFewPoints`]) below two points.
+pub fn audit(
+    input: &Input,
+    options: &AuditOptions,
+    progress: &dyn Progress,
+) -> Result<AuditReport, Error> {
+    let windows = outlined_windows(options.windows.buffers.len(), input.boundaries.len());
+    progress.start(
+        options.sims.saturating_mul(windows) as u64,
+        "simulating CSR",
+    );
+    let audit = run_audit(&input.points, &input.boundaries, options, &|| {
+        progress.step()
+    });
+    progress.finish();
+    let audit = audit.ok_or_else(|| {
+        Error::refused(
+            Refusal::TooFewPoints,
+            input.subject.clone(),
+            "the sweep needs at least two points",
+            "check the point file",
+        )
+    })?;
+    if !audit.results.iter().any(|r| r.p.is_some()) {
+        let hint = if !audit.windows.is_empty() && audit.n < MIN_N_ANALYTIC {
+            "with so few points only the simulation test applies, and it needs an outline: give the surveyed outline with --boundary (and --sims above 0)"
+        } else {
+            "the points are identical or collinear, so no study area can be drawn from them; give the surveyed outline with --boundary or the study area with --area"
+        };
+        return Err(Error::refused(
+            Refusal::NoTestableWindow,
+            input.subject.clone(),
+            format!("no window could be tested ({})", audit.why_untested()),
+            hint,
+        ));
+    }
+    let sensitivity = patternproof_audit::curves::sensitivity(&input.points, &audit);
+    let buffers = options
+        .windows
+        .buffers
+        .iter()
+        .map(|b| b.describe())
+        .collect::<Vec<_>>()
+        .join(",");
+    let mut report = AuditReport::new(
+        audit,
+        sensitivity,
+        input.summary.clone(),
+        buffers,
+        options.windows.concavity,
+    );
+    report.provenance.inputs = input.digests.clone();
+    Ok(report)
+}
