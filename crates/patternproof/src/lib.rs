@@ -58,7 +58,7 @@
 //! let row = report
 //!     .results
 //!     .iter()
-//!     .find(|r| r.window == "boundary:plot" && r.edge == patternproof::Edge::None)
+//!     .find(|r| r.window.starts_with("boundary") && r.edge == patternproof::Edge::None)
 //!     .expect("the outline's row");
 //! assert!((row.ratio.expect("a ratio") - 2.0).abs() < 1e-12);
 //! assert!(report.results.iter().all(|r| r.ratio.is_none_or(|ratio| ratio > 1.0)));
