@@ -21,6 +21,33 @@ pub struct DensityResult {
 /// Estimate every kernel × bandwidth × edge surface of `config` in the
 /// first boundary of `input`, or in the convex hull of the points when it
 /// has none.
+///
+/// ```
+/// use patternproof::{BandwidthSpec, DensityConfig, DensityEdge, Input, Kernel, density};
+///
+/// // Thirty points on two rings; no boundary, so the window is their
+/// // convex hull.
+/// let points: Vec<[f64; 2]> = (0..30)
+///     .map(|i| {
+///         let (r, a) = (if i % 2 == 0 { 10.0 } else { 20.0 }, i as f64 * 0.7);
+///         [50.0 + r * a.cos(), 50.0 + r * a.sin()]
+///     })
+///     .collect();
+/// let config = DensityConfig {
+///     kernels: vec![Kernel::Gaussian, Kernel::Quartic],
+///     bandwidths: vec![BandwidthSpec::Scott],
+///     edges: vec![DensityEdge::None],
+///     levels: vec![0.5, 0.95],
+///     cell: None,
+///     reference: (Kernel::Gaussian, BandwidthSpec::Scott, DensityEdge::None),
+///     unit: "m".into(),
+/// };
+/// let result = density(&Input::from_points(points, "m"), &config)?;
+/// assert_eq!(result.window_source, "convex hull of the points");
+/// assert!(result.window_area > 0.0 && result.window_area < std::f64::consts::PI * 400.0);
+/// assert_eq!(result.analysis.surfaces.len(), 2); // one per kernel
+/// # Ok::<(), patternproof::Error>(())
+/// ```
 pub fn density(input: &Input, config: &Config) -> Result<DensityResult, Error> {
     let (window, window_source): (MultiPolygon<f64>, String) = match input.boundaries.first() {
         Some(b) => (

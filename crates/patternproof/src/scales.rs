@@ -121,6 +121,28 @@ impl ScalesJob {
 }
 
 /// The K audit of `input` in every window of `window_options`.
+///
+/// ```
+/// use geo::{MultiPolygon, Rect, coord};
+/// use patternproof::{Correction, Input, ScalesOptions, Silent, WindowOptions, scales};
+///
+/// // A grid with spacing 10: no two points closer than 10, so K(r) = 0
+/// // and L(r) − r = sqrt(K/π) − r = −r below 10 (Ripley 1977).
+/// let points: Vec<[f64; 2]> = (0..100)
+///     .map(|i| [5.0 + 10.0 * (i % 10) as f64, 5.0 + 10.0 * (i / 10) as f64])
+///     .collect();
+/// let square = Rect::new(coord! { x: 0.0, y: 0.0 }, coord! { x: 100.0, y: 100.0 });
+/// let input = Input::from_points(points, "m")
+///     .with_boundary("plot", MultiPolygon(vec![square.to_polygon()]));
+/// let options = ScalesOptions { rmax: Some(9.0), steps: 3, sims: 19, ..ScalesOptions::default() };
+///
+/// let result = scales(&input, &WindowOptions::default(), &options, &Silent)?;
+///
+/// let outline = result.run.windows.iter().find(|w| w.id.starts_with("boundary")).expect("the outline");
+/// let iso = outline.curves.iter().find(|c| c.correction == Correction::Isotropic).expect("isotropic");
+/// assert_eq!(iso.l_minus_r, vec![Some(-3.0), Some(-6.0), Some(-9.0)]);
+/// # Ok::<(), patternproof::Error>(())
+/// ```
 pub fn scales(
     input: &Input,
     window_options: &WindowOptions,

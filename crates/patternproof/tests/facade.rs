@@ -33,7 +33,11 @@ fn protocol(window: WindowRule) -> Protocol {
 fn points_on_one_line_are_refused_as_untestable() {
     // On one horizontal line even the bounding box has no area.
     let line: Vec<[f64; 2]> = (0..40).map(|i| [i as f64, 0.0]).collect();
-    let Err(e) = audit(&Input::from_points(line, "m"), &AuditOptions::default(), &Silent) else {
+    let Err(e) = audit(
+        &Input::from_points(line, "m"),
+        &AuditOptions::default(),
+        &Silent,
+    ) else {
         panic!("no window can be drawn around points on one line");
     };
     assert_eq!(e.kind(), ErrorKind::Refused(Refusal::NoTestableWindow));
