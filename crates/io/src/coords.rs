@@ -269,7 +269,8 @@ mod tests {
     fn centre_maps_to_origin() {
         let p = Projection::centred_at(10.0, 50.0).unwrap();
         let o = p.forward(10.0, 50.0).unwrap();
-        assert!(o[0].abs() < 1e-6 && o[1].abs() < 1e-6);
+        assert_abs_diff_eq!(o[0], 0.0, epsilon = 1e-6);
+        assert_abs_diff_eq!(o[1], 0.0, epsilon = 1e-6);
         let e = p.forward(11.0, 50.0).unwrap();
         // One degree of longitude at 50° N is about 71.7 km on WGS84
         // (from memory; the pyproj comparison is the real check).
