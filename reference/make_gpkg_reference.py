@@ -1,6 +1,6 @@
 #!/usr/bin/env python3
 """Write the GeoPackage fixtures and reference/gpkg_values.json, read by
-crates/cli/tests/gpkg.rs and crates/io/tests/geopackage.rs.
+crates/cli/tests/cli/gpkg.rs and crates/io/tests/geopackage.rs.
 
 Everything is built with general-purpose libraries only: Python's sqlite3
 for the database and shapely (GEOS) for the WKB and the reference areas.

@@ -1,7 +1,7 @@
 #!/usr/bin/env python3
 """Write reference/values.json: independent reference values computed with
 general-purpose libraries (numpy, scipy, shapely, pyproj), read back by the
-Rust integration test crates/cli/tests/reference.rs.
+Rust integration test crates/cli/tests/cli/reference.rs.
 
 The point sets are generated here with numpy's seeded generator and stored
 in the JSON, so the Rust side uses exactly the same coordinates.

@@ -2,7 +2,7 @@
 """Read a windows.gpkg written by `patternproof audit` with general-purpose
 libraries only (Python's sqlite3, shapely from WKB, pyproj for the
 coordinate-system definitions) and print what it
-holds as JSON on stdout. Run by crates/cli/tests/gpkg.rs when
+holds as JSON on stdout. Run by crates/cli/tests/cli/gpkg.rs when
 reference/.venv exists; the Rust test compares the output with
 report.json.
 

@@ -241,6 +241,7 @@ mod tests {
     use super::*;
     use crate::sweep::{AuditOptions, run_audit};
     use crate::window::Outline;
+    use approx::{abs_diff_eq, relative_eq};
     use geo::{Contains, Scale};
     use rand::RngExt;
     use rand::SeedableRng;
@@ -300,8 +301,16 @@ mod tests {
             }
             .expect("point");
             let ratio = row.ratio.expect("ratio");
-            assert!((at.ratio - ratio).abs() < 1e-9 * ratio, "{:?}", curve.edge);
-            assert!((at.z - row.z.expect("z")).abs() < 1e-9, "{:?}", curve.edge);
+            assert!(
+                relative_eq!(at.ratio, ratio, max_relative = 1e-9),
+                "{:?}",
+                curve.edge
+            );
+            assert!(
+                abs_diff_eq!(at.z, row.z.expect("z"), epsilon = 1e-9),
+                "{:?}",
+                curve.edge
+            );
         }
         assert_eq!(s.omitted.len(), 1, "toroidal has no curve");
         assert_eq!(s.omitted[0].0, Edge::Toroidal);

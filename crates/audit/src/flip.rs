@@ -186,6 +186,7 @@ fn donnelly_buffer(
 #[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
     use super::*;
+    use approx::{abs_diff_eq, assert_abs_diff_eq};
     use patternproof_core::NnRatioTest;
 
     /// The scaled-family closed form reproduces Donnelly's z = −z_c exactly
@@ -197,11 +198,11 @@ mod tests {
         let c = c.unwrap();
         let s = (c / a).sqrt();
         let t = donnelly::test(d, n, c, s * p).unwrap();
-        assert!((t.z + zc).abs() < 1e-9, "{}", t.z);
+        assert!(abs_diff_eq!(t.z, -zc, epsilon = 1e-9), "{}", t.z);
         let disp = disp.unwrap();
         let s = (disp / a).sqrt();
         let t = donnelly::test(d, n, disp, s * p).unwrap();
-        assert!((t.z - zc).abs() < 1e-9);
+        assert_abs_diff_eq!(t.z, zc, epsilon = 1e-9);
     }
 
     /// Bisection root: at the buffer found, Donnelly's z of the buffered hull
@@ -213,10 +214,10 @@ mod tests {
         let b = donnelly_buffer(n, d, -zc, a, p).unwrap();
         let pi = std::f64::consts::PI;
         let t = donnelly::test(d, n, a + p * b + pi * b * b, p + 2.0 * pi * b).unwrap();
-        assert!((t.z + zc).abs() < 1e-9);
+        assert_abs_diff_eq!(t.z, -zc, epsilon = 1e-9);
         let f = FlipThresholds::new(n, d, zc).unwrap();
         let plain = buffer_for_area(a, p, f.clustered_above_area.unwrap()).unwrap();
         let t = NnRatioTest::uncorrected(d, n, a + p * plain + pi * plain * plain).unwrap();
-        assert!((t.z + zc).abs() < 1e-9);
+        assert_abs_diff_eq!(t.z, -zc, epsilon = 1e-9);
     }
 }

@@ -83,6 +83,7 @@ impl Sampler {
 mod tests {
     use super::*;
     use crate::streams::stream;
+    use approx::assert_abs_diff_eq;
     use geo::{Contains, Point};
 
     fn square_with_hole() -> MultiPolygon<f64> {
@@ -94,7 +95,7 @@ mod tests {
     fn triangulation_keeps_the_area_and_never_lands_in_the_hole() {
         let shape = square_with_hole();
         let s = Sampler::new(&shape).expect("shape has area");
-        assert!((s.area() - 84.0).abs() < 1e-9);
+        assert_abs_diff_eq!(s.area(), 84.0, epsilon = 1e-9);
         let pts = s.sample(5_000, &mut stream(1, "t", 0));
         for p in &pts {
             assert!(

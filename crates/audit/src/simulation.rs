@@ -282,6 +282,7 @@ mod budget {
 #[cfg(test)]
 mod csr_sanity {
     use super::*;
+    use approx::abs_diff_eq;
 
     /// Clark & Evans (1954): under CSR the mean nearest-neighbour distance
     /// is 0.5·sqrt(A/n); on a torus there is no edge bias, so the mean R
@@ -312,7 +313,10 @@ mod csr_sanity {
         let mean = r.iter().sum::<f64>() / k;
         let sd = (r.iter().map(|x| (x - mean).powi(2)).sum::<f64>() / (k - 1.0)).sqrt();
         let se = sd / k.sqrt();
-        assert!((mean - 1.0).abs() < 3.0 * se, "mean R {mean}, se {se}");
+        assert!(
+            abs_diff_eq!(mean, 1.0, epsilon = 3.0 * se),
+            "mean R {mean}, se {se}"
+        );
         // The plain (uncorrected) mean in the same square is biased upward.
         let plain: f64 = stats.iter().map(|s| s.mean_nn / expected).sum::<f64>() / k;
         assert!(plain > 1.0 + 3.0 * se, "plain mean R {plain}");

@@ -596,6 +596,7 @@ fn false_alarm_rate(
 mod tests {
     use super::*;
     use crate::simulation::Measure;
+    use approx::abs_diff_eq;
 
     /// Geometry (the buffer of a convex set holds every point at least D
     /// from its outline): with the default guard, the mean nearest-neighbour
@@ -688,7 +689,7 @@ mod tests {
         let d_rate = false_alarm_rate(&stats, |s| donnelly::test(s.mean_nn, n, 100.0, 40.0), 0.05)
             .expect("simulations ran");
         assert!(
-            (d_rate - 0.05).abs() < 0.03,
+            abs_diff_eq!(d_rate, 0.05, epsilon = 0.03),
             "Donnelly false-alarm rate {d_rate}"
         );
     }
@@ -716,6 +717,9 @@ mod tests {
             }
         }
         let rate = rejected as f64 / 300.0;
-        assert!((rate - 0.05).abs() < 0.038, "simulation test size {rate}");
+        assert!(
+            abs_diff_eq!(rate, 0.05, epsilon = 0.038),
+            "simulation test size {rate}"
+        );
     }
 }

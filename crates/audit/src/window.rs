@@ -478,6 +478,7 @@ pub fn short_number(x: f64) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use approx::assert_abs_diff_eq;
 
     fn grid(k: usize, step: f64) -> Vec<Xy> {
         let mut v = Vec::new();
@@ -545,12 +546,16 @@ mod tests {
         assert!(notes.is_empty(), "{notes:?}");
         let bbox = &w[0];
         assert_eq!(bbox.id, "bbox");
-        assert!((bbox.area - 64.0).abs() < 1e-12);
-        assert!((bbox.perimeter.expect("bbox has a perimeter") - 32.0).abs() < 1e-12);
+        assert_abs_diff_eq!(bbox.area, 64.0, epsilon = 1e-12);
+        assert_abs_diff_eq!(
+            bbox.perimeter.expect("bbox has a perimeter"),
+            32.0,
+            epsilon = 1e-12
+        );
         assert_eq!(bbox.points_outside, 0);
         assert!(bbox.rectangle.is_some());
         let hull = &w[1];
-        assert!((hull.area - 64.0).abs() < 1e-9);
+        assert_abs_diff_eq!(hull.area, 64.0, epsilon = 1e-9);
         assert_eq!(hull.points_outside, 0);
         let ids: Vec<&str> = w.iter().map(|x| x.id.as_str()).collect();
         assert_eq!(
@@ -589,7 +594,7 @@ mod tests {
         let (w, notes) = build_windows(&diagonal, 2.2, &[], &WindowOptions::default());
         assert_eq!(w.len(), 1);
         assert_eq!(w[0].id, "bbox");
-        assert!((w[0].area - 9.0 * 18.0).abs() < 1e-12);
+        assert_abs_diff_eq!(w[0].area, 9.0 * 18.0, epsilon = 1e-12);
         assert_eq!(notes.len(), 1);
         let flat: Vec<Xy> = (0..10).map(|i| [i as f64, 3.0]).collect();
         let (w, notes) = build_windows(&flat, 1.0, &[], &WindowOptions::default());
@@ -724,8 +729,16 @@ mod tests {
     #[test]
     fn outline_distance_includes_holes() {
         let shape = crate::test_shapes::rectangle_with_hole(10.0, 10.0, [4.0, 4.0, 6.0, 6.0]);
-        assert!((distance_to_outline(&shape, [3.0, 5.0]) - 1.0).abs() < 1e-12);
-        assert!((distance_to_outline(&shape, [1.0, 5.0]) - 1.0).abs() < 1e-12);
+        assert_abs_diff_eq!(
+            distance_to_outline(&shape, [3.0, 5.0]),
+            1.0,
+            epsilon = 1e-12
+        );
+        assert_abs_diff_eq!(
+            distance_to_outline(&shape, [1.0, 5.0]),
+            1.0,
+            epsilon = 1e-12
+        );
         assert!(axis_rectangle(&shape).is_none());
         // The indexed outline agrees with the direct distance (brute force).
         // Grid answers and tree answers both checked on a dense lattice.

@@ -4,6 +4,7 @@
 
 #![allow(clippy::unwrap_used, missing_docs)]
 
+use approx::{abs_diff_eq, relative_eq};
 use patternproof_audit::{AuditOptions, Edge, WindowKind, run_audit};
 use patternproof_core::Xy;
 use proptest::prelude::*;
@@ -49,9 +50,9 @@ fn close(
         && a.iter().zip(b).all(|(x, y)| {
             x.0 == y.0
                 && x.1 == y.1
-                && (x.2 - y.2).abs() <= tol * x.2.abs().max(1.0)
-                && (x.3 - y.3).abs() <= tol * x.3.abs().max(1.0)
-                && (x.4 - y.4).abs() <= tol.max(1e-12)
+                && relative_eq!(y.2, x.2, epsilon = tol, max_relative = tol)
+                && relative_eq!(y.3, x.3, epsilon = tol, max_relative = tol)
+                && abs_diff_eq!(y.4, x.4, epsilon = tol.max(1e-12))
         })
 }
 

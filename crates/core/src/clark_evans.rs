@@ -111,13 +111,18 @@ pub fn z_from_ratio(ratio: f64, n: usize) -> f64 {
 #[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
     use super::*;
+    use approx::assert_abs_diff_eq;
 
     /// Clark & Evans (1954): the constants 0.5 and 0.26136, the latter equal
     /// to sqrt((4 − π)/(4π)) (closed form).
     #[test]
     fn constants_match_the_closed_form_and_the_printed_value() {
         let pi = std::f64::consts::PI;
-        assert!((CE_SE_FACTOR - ((4.0 - pi) / (4.0 * pi)).sqrt()).abs() < 1e-15);
+        assert_abs_diff_eq!(
+            CE_SE_FACTOR,
+            ((4.0 - pi) / (4.0 * pi)).sqrt(),
+            epsilon = 1e-15
+        );
         assert_eq!((CE_SE_FACTOR * 1e5).round() / 1e5, 0.26136);
         assert_eq!(CE_MEAN_FACTOR, 0.5);
     }
@@ -128,10 +133,10 @@ mod tests {
     fn z_depends_on_ratio_and_n_only() {
         let a = NnRatioTest::uncorrected(3.0, 64, 5_000.0).unwrap();
         let b = NnRatioTest::uncorrected(3.0 * 2.0, 64, 20_000.0).unwrap();
-        assert!((a.ratio - b.ratio).abs() < 1e-12);
-        assert!((a.z - b.z).abs() < 1e-9);
-        assert!((a.z - z_from_ratio(a.ratio, 64)).abs() < 1e-9);
-        assert!((z_from_ratio(0.0, 1) + 1.91306).abs() < 1e-5);
+        assert_abs_diff_eq!(a.ratio, b.ratio, epsilon = 1e-12);
+        assert_abs_diff_eq!(a.z, b.z, epsilon = 1e-9);
+        assert_abs_diff_eq!(a.z, z_from_ratio(a.ratio, 64), epsilon = 1e-9);
+        assert_abs_diff_eq!(z_from_ratio(0.0, 1), -1.91306, epsilon = 1e-5);
     }
 
     /// Worked value computed by hand from the closed form: n = 64, A = 10 000,
@@ -139,10 +144,10 @@ mod tests {
     #[test]
     fn worked_example() {
         let t = NnRatioTest::uncorrected(4.5, 64, 10_000.0).unwrap();
-        assert!((t.expected - 6.25).abs() < 1e-12);
-        assert!((t.ratio - 0.72).abs() < 1e-12);
-        assert!((t.se - 0.408_377_5).abs() < 1e-6);
-        assert!((t.z + 4.285_25).abs() < 1e-4);
+        assert_abs_diff_eq!(t.expected, 6.25, epsilon = 1e-12);
+        assert_abs_diff_eq!(t.ratio, 0.72, epsilon = 1e-12);
+        assert_abs_diff_eq!(t.se, 0.408_377_5, epsilon = 1e-6);
+        assert_abs_diff_eq!(t.z, -4.285_25, epsilon = 1e-4);
     }
 
     #[test]

@@ -55,6 +55,7 @@ pub fn test(mean_nn: f64, n: usize, area: f64, perimeter: f64) -> Option<NnRatio
 #[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
     use super::*;
+    use approx::abs_diff_eq;
 
     /// Hand-computed from Donnelly's (1978) formulas for a 100 × 50
     /// rectangle with n = 49: A = 5000, P = 300.
@@ -65,9 +66,9 @@ mod tests {
     #[test]
     fn rectangle_values_match_hand_computation() {
         let e = expected_mean(49, 5000.0, 300.0);
-        assert!((e - 5.401_316).abs() < 2e-6, "{e}");
+        assert!(abs_diff_eq!(e, 5.401_316, epsilon = 2e-6), "{e}");
         let se = standard_error(49, 5000.0, 300.0);
-        assert!((se - 0.439_428).abs() < 2e-6, "{se}");
+        assert!(abs_diff_eq!(se, 0.439_428, epsilon = 2e-6), "{se}");
     }
 
     /// The correction only ever lengthens the expected mean (positive

@@ -92,6 +92,7 @@ pub fn steiner_area(area: f64, perimeter: f64, d: f64) -> f64 {
 mod tests {
     use super::*;
     use crate::NnRatioTest;
+    use approx::assert_abs_diff_eq;
 
     /// Closed form (METHODS.md): at each threshold the plain test's z equals
     /// ∓z_c exactly, and the call is on the expected side just beyond it.
@@ -101,11 +102,11 @@ mod tests {
         let f = FlipThresholds::new(n, d, 1.959_964).unwrap();
         let ac = f.clustered_above_area.unwrap();
         let zc = NnRatioTest::uncorrected(d, n, ac).unwrap().z;
-        assert!((zc + 1.959_964).abs() < 1e-9);
+        assert_abs_diff_eq!(zc, -1.959_964, epsilon = 1e-9);
         let zd = NnRatioTest::uncorrected(d, n, f.dispersed_below_area)
             .unwrap()
             .z;
-        assert!((zd - 1.959_964).abs() < 1e-9);
+        assert_abs_diff_eq!(zd, 1.959_964, epsilon = 1e-9);
         assert!(NnRatioTest::uncorrected(d, n, ac * 1.001).unwrap().z < -1.959_964);
         assert!(
             NnRatioTest::uncorrected(d, n, f.dispersed_below_area * 0.999)
@@ -121,8 +122,8 @@ mod tests {
     #[test]
     fn clustered_threshold_exists_only_when_b_exceeds_the_critical_value() {
         let f = FlipThresholds::new(4, 1.0, 1.959_964).unwrap();
-        assert!((f.b - 0.5 * 2.0 / CE_SE_FACTOR).abs() < 1e-12);
-        assert!((f.b - 3.826_12).abs() < 1e-4);
+        assert_abs_diff_eq!(f.b, 0.5 * 2.0 / CE_SE_FACTOR, epsilon = 1e-12);
+        assert_abs_diff_eq!(f.b, 3.826_12, epsilon = 1e-4);
         assert!(f.clustered_above_area.is_some());
         assert!(
             FlipThresholds::new(4, 1.0, 3.9)
@@ -137,7 +138,7 @@ mod tests {
     fn buffer_for_area_inverts_steiner() {
         let (a, p) = (1_000.0, 130.0);
         let d = buffer_for_area(a, p, 5_000.0).unwrap();
-        assert!((steiner_area(a, p, d) - 5_000.0).abs() < 1e-9);
+        assert_abs_diff_eq!(steiner_area(a, p, d), 5_000.0, epsilon = 1e-9);
         assert!(buffer_for_area(a, p, 900.0).is_none());
     }
 }

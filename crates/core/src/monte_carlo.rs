@@ -39,6 +39,7 @@ pub fn quantile(values: &[f64], q: f64) -> Option<f64> {
 #[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
     use super::*;
+    use approx::assert_abs_diff_eq;
 
     /// Besag & Diggle (1977) rank rule, worked by hand: observed in the
     /// middle of 1..=99 → p = 1; observed equal to the 3rd smallest →
@@ -47,8 +48,8 @@ mod tests {
     fn rank_rule_by_hand() {
         let sims: Vec<f64> = (1..=99).map(f64::from).collect();
         assert_eq!(two_sided_rank_p(50.0, &sims), 1.0);
-        assert!((two_sided_rank_p(3.0, &sims) - 0.08).abs() < 1e-12);
-        assert!((two_sided_rank_p(100.0, &sims) - 0.02).abs() < 1e-12);
+        assert_abs_diff_eq!(two_sided_rank_p(3.0, &sims), 0.08, epsilon = 1e-12);
+        assert_abs_diff_eq!(two_sided_rank_p(100.0, &sims), 0.02, epsilon = 1e-12);
     }
 
     /// numpy.quantile([1, 2, 3, 4], 0.25) = 1.75 and 0.975 of 1..=1000 =
@@ -56,8 +57,12 @@ mod tests {
     /// definition, h = (N − 1)·q).
     #[test]
     fn quantile_matches_numpy_linear_rule() {
-        assert!((quantile(&[4.0, 1.0, 3.0, 2.0], 0.25).unwrap() - 1.75).abs() < 1e-12);
+        assert_abs_diff_eq!(
+            quantile(&[4.0, 1.0, 3.0, 2.0], 0.25).unwrap(),
+            1.75,
+            epsilon = 1e-12
+        );
         let v: Vec<f64> = (1..=1000).map(f64::from).collect();
-        assert!((quantile(&v, 0.975).unwrap() - 975.025).abs() < 1e-9);
+        assert_abs_diff_eq!(quantile(&v, 0.975).unwrap(), 975.025, epsilon = 1e-9);
     }
 }

@@ -164,6 +164,7 @@ fn nearest_other(tree: &RTree<Indexed>, i: usize, p: Xy) -> f64 {
 mod tests {
     use super::*;
     use crate::oracles::{Gen, brute_plane, brute_torus};
+    use approx::assert_abs_diff_eq;
 
     /// Brute-force oracle: the indexed search must agree exactly with the
     /// O(n²) scan (common practice for checking a spatial index).
@@ -441,7 +442,7 @@ mod tests {
         let d = nearest_distances(&[[1.0, 1.0], [1.0, 1.0], [9.0, 9.0]]).expect("three points");
         assert_eq!(d[0], 0.0);
         assert_eq!(d[1], 0.0);
-        assert!((d[2] - (128.0f64).sqrt()).abs() < 1e-12);
+        assert_abs_diff_eq!(d[2], (128.0f64).sqrt(), epsilon = 1e-12);
     }
 
     #[test]

@@ -39,17 +39,18 @@ pub fn two_sided_critical(alpha: f64) -> Option<f64> {
 #[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
     use super::*;
+    use approx::assert_abs_diff_eq;
 
     /// Printed normal tables (e.g. Abramowitz & Stegun 1964, table 26.1):
     /// z_0.975 = 1.959964, two-sided p at z = 1.96 is 0.0499958, at 2.576 is 0.00999.
     #[test]
     fn matches_printed_normal_table_values() {
-        assert!((two_sided_critical(0.05).unwrap() - 1.959_964).abs() < 1e-6);
-        assert!((two_sided_critical(0.01).unwrap() - 2.575_829).abs() < 1e-6);
-        assert!((two_sided_p(1.96) - 0.049_995_8).abs() < 1e-6);
-        assert!((two_sided_p(-1.96) - 0.049_995_8).abs() < 1e-6);
-        assert!((lower_p(-1.644_854) - 0.05).abs() < 1e-6);
-        assert!((upper_p(1.644_854) - 0.05).abs() < 1e-6);
+        assert_abs_diff_eq!(two_sided_critical(0.05).unwrap(), 1.959_964, epsilon = 1e-6);
+        assert_abs_diff_eq!(two_sided_critical(0.01).unwrap(), 2.575_829, epsilon = 1e-6);
+        assert_abs_diff_eq!(two_sided_p(1.96), 0.049_995_8, epsilon = 1e-6);
+        assert_abs_diff_eq!(two_sided_p(-1.96), 0.049_995_8, epsilon = 1e-6);
+        assert_abs_diff_eq!(lower_p(-1.644_854), 0.05, epsilon = 1e-6);
+        assert_abs_diff_eq!(upper_p(1.644_854), 0.05, epsilon = 1e-6);
         assert!(two_sided_critical(0.0).is_none());
         assert!(two_sided_critical(1.0).is_none());
     }

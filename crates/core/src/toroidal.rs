@@ -91,6 +91,7 @@ pub fn torus_tree_distances(points: &[Xy], rect: Rect) -> Option<Vec<f64>> {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use approx::abs_diff_eq;
 
     /// A point outside the rectangle (which the grid cannot wrap) sends
     /// the whole pattern to the R*-tree: same answer as the tree alone,
@@ -145,7 +146,7 @@ mod tests {
                 best = best.min((dx * dx + dy * dy).sqrt());
             }
             assert!(
-                (fast[i] - best).abs() < 1e-12,
+                abs_diff_eq!(fast[i], best, epsilon = 1e-12),
                 "point {i}: {} vs {best}",
                 fast[i]
             );

@@ -224,6 +224,7 @@ pub fn lcv(points: &[Xy], kernel: Kernel, h_s: f64, grid: &Grid, bins: &[f64]) -
 #[allow(clippy::unwrap_used)]
 mod tests {
     use super::*;
+    use approx::abs_diff_eq;
 
     fn pattern() -> Vec<Xy> {
         // A small deterministic pattern: two loose groups.
@@ -255,7 +256,7 @@ mod tests {
         // s_x² = 4/3, s_y² = 16/3 → σ² = 10/3.
         let want = (10.0f64 / 3.0).sqrt() * 4f64.powf(-1.0 / 6.0);
         assert!(
-            (s.bandwidth - want).abs() < 1e-12,
+            abs_diff_eq!(s.bandwidth, want, epsilon = 1e-12),
             "{} vs {want}",
             s.bandwidth
         );

@@ -144,6 +144,7 @@ pub fn convolve(
 #[allow(clippy::unwrap_used)]
 mod tests {
     use super::*;
+    use approx::abs_diff_eq;
 
     /// Source: definition of discrete convolution; FFT result checked
     /// against the direct double sum.
@@ -174,7 +175,7 @@ mod tests {
                     }
                     let g = got[(j as usize) * nx + i as usize];
                     assert!(
-                        (g - s).abs() < 1e-12,
+                        abs_diff_eq!(g, s, epsilon = 1e-12),
                         "{} at {i},{j}: {g} vs {s}",
                         kernel.name()
                     );

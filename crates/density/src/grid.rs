@@ -165,6 +165,7 @@ impl Grid {
 #[allow(clippy::unwrap_used)]
 mod tests {
     use super::*;
+    use approx::assert_abs_diff_eq;
     use geo::polygon;
 
     #[test]
@@ -178,6 +179,6 @@ mod tests {
         let inside = g.mask(&w).iter().filter(|m| **m).count();
         assert_eq!(inside, 100 - 4);
         let b = g.bin(&[[3.3, 7.9]], None);
-        assert!((b.iter().sum::<f64>() - 1.0).abs() < 1e-12);
+        assert_abs_diff_eq!(b.iter().sum::<f64>(), 1.0, epsilon = 1e-12);
     }
 }

@@ -134,6 +134,7 @@ impl Kernel {
 #[allow(clippy::unwrap_used)]
 mod tests {
     use super::*;
+    use approx::abs_diff_eq;
 
     /// Riemann sum of `f(x, y)` over a square grid of spacing `d` covering `[-l, l]²`.
     fn integrate(f: impl Fn(f64, f64) -> f64, l: f64, d: f64) -> f64 {
@@ -156,7 +157,11 @@ mod tests {
         for k in ALL {
             let h = 1.7;
             let total = integrate(|x, y| k.value(x * x + y * y, h), 6.0 * h, h / 100.0);
-            assert!((total - 1.0).abs() < 1e-3, "{}: {total}", k.name());
+            assert!(
+                abs_diff_eq!(total, 1.0, epsilon = 1e-3),
+                "{}: {total}",
+                k.name()
+            );
         }
     }
 
@@ -179,6 +184,6 @@ mod tests {
         // Common practice: the quartic radius equivalent to a Gaussian σ is
         // about 2.78σ.
         let q = Kernel::Quartic.from_gaussian(1.0);
-        assert!((q - 2.78).abs() < 0.01, "{q}");
+        assert!(abs_diff_eq!(q, 2.78, epsilon = 0.01), "{q}");
     }
 }

@@ -17,10 +17,11 @@ pub fn jaccard(a: &[bool], b: &[bool]) -> f64 {
 
 #[cfg(test)]
 mod tests {
+    use approx::assert_abs_diff_eq;
     #[test]
     fn half_overlap() {
         let a = [true, true, false, false];
         let b = [false, true, true, false];
-        assert!((super::jaccard(&a, &b) - 1.0 / 3.0).abs() < 1e-15);
+        assert_abs_diff_eq!(super::jaccard(&a, &b), 1.0 / 3.0, epsilon = 1e-15);
     }
 }

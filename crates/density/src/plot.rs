@@ -344,6 +344,7 @@ mod tests {
     use crate::edge::Edge;
     use crate::kernels::Kernel;
     use crate::{Config, analyse};
+    use approx::abs_diff_eq;
 
     /// A tight cluster in one corner of a 100 × 100 square and a sparse
     /// background, at cell side `cell`.
@@ -417,7 +418,7 @@ mod tests {
             assert_eq!((rgb[at], rgb[at + 1], rgb[at + 2]), want, "cell {cell}");
             let c = g.centre(i, j);
             assert!(
-                (c[0] - 10.0).abs() < 3.0 && (c[1] - 12.0).abs() < 3.0,
+                abs_diff_eq!(c[0], 10.0, epsilon = 3.0) && abs_diff_eq!(c[1], 12.0, epsilon = 3.0),
                 "the peak lies in the cluster: {c:?}"
             );
         }

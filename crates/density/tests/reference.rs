@@ -1,6 +1,7 @@
 //! Checks of the density surfaces against a reference library, closed
 //! forms and the GeoTIFF specification.
 
+use approx::{abs_diff_eq, assert_abs_diff_eq};
 use geo::{MultiPolygon, polygon};
 use patternproof_density::edge::{Edge, estimate};
 use patternproof_density::geotiff;
@@ -48,7 +49,7 @@ fn gaussian_surface_matches_scipy_gaussian_kde() {
         let want = l["density"].as_f64().expect("density");
         let got = e.values[j * grid.nx + i];
         assert!(
-            (got - want).abs() <= 5e-3 * want + 1e-9,
+            abs_diff_eq!(got, want, epsilon = 5e-3 * want + 1e-9),
             "at ({i},{j}): {got} vs scipy {want}"
         );
     }
@@ -113,11 +114,14 @@ fn mass_outside_matches_direct_computation_and_diggle_keeps_unit_mass() {
         / pts.len() as f64;
     let got = e.mass_outside.expect("none reports the mass outside");
     assert!(direct > 0.05, "the test needs real edge loss: {direct}");
-    assert!((got - direct).abs() < 1e-3, "{got} vs {direct}");
+    assert!(
+        abs_diff_eq!(got, direct, epsilon = 1e-3),
+        "{got} vs {direct}"
+    );
     for k in [Kernel::Gaussian, Kernel::Quartic] {
         let d = estimate(&pts, &grid, &mask, k, sigma * 2.0, Edge::Diggle);
         assert!(
-            (d.mass_inside - 1.0).abs() < 1e-3,
+            abs_diff_eq!(d.mass_inside, 1.0, epsilon = 1e-3),
             "{}: {}",
             k.name(),
             d.mass_inside
@@ -143,7 +147,11 @@ fn uniform_correction_restores_unit_mass_for_an_even_pattern() {
     let none = estimate(&pts, &grid, &mask, Kernel::Gaussian, 6.0, Edge::None);
     let uni = estimate(&pts, &grid, &mask, Kernel::Gaussian, 6.0, Edge::Uniform);
     assert!(none.mass_inside < 0.95, "{}", none.mass_inside);
-    assert!((uni.mass_inside - 1.0).abs() < 1e-3, "{}", uni.mass_inside);
+    assert!(
+        abs_diff_eq!(uni.mass_inside, 1.0, epsilon = 1e-3),
+        "{}",
+        uni.mass_inside
+    );
 }
 
 /// Source: OGC GeoTIFF 1.1 (tags 33550, 33922, 34735; keys 1024, 1025,
@@ -183,7 +191,7 @@ fn geotiff_tags_read_back() {
     match d.read_image().expect("image") {
         tiff::decoder::DecodingResult::F32(v) => {
             // Top row first: the northern row j = 2 holds values 0.8..1.1.
-            assert!((v[0] - 0.8).abs() < 1e-6);
+            assert_abs_diff_eq!(v[0], 0.8, epsilon = 1e-6);
             // Cell (0, 0) is outside the window: last row, first column.
             assert!(v[8].is_nan());
         }

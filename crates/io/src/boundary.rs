@@ -413,6 +413,7 @@ pub fn read_named_boundaries(path: &Path, field: &str) -> Result<Vec<RawBoundary
 mod tests {
     use super::*;
     use crate::test_files::file;
+    use approx::assert_abs_diff_eq;
     use geo::Area;
 
     /// Area of a 10×10 square with a 2×2 hole: 96 (arithmetic).
@@ -423,7 +424,7 @@ mod tests {
             "POLYGON ((0 0, 10 0, 10 10, 0 10, 0 0), (4 4, 6 4, 6 6, 4 6, 4 4))",
         );
         let b = read_boundary(f.path()).unwrap();
-        assert!((b.shape.unsigned_area() - 96.0).abs() < 1e-12);
+        assert_abs_diff_eq!(b.shape.unsigned_area(), 96.0, epsilon = 1e-12);
         assert_eq!(b.declared, None);
     }
 

@@ -248,6 +248,7 @@ pub fn in_lat_range(lat: f64) -> bool {
 #[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
     use super::*;
+    use approx::{abs_diff_eq, assert_abs_diff_eq};
 
     /// At the centre the projection is the origin, and it is defined for
     /// points a few degrees away (sanity check; the numeric comparison with
@@ -258,7 +259,8 @@ mod tests {
         let xy = p.forward(11.5, 49.2).unwrap();
         let back = p.inverse(xy[0], xy[1]).unwrap();
         assert!(
-            (back[0] - 11.5).abs() < 1e-9 && (back[1] - 49.2).abs() < 1e-9,
+            abs_diff_eq!(back[0], 11.5, epsilon = 1e-9)
+                && abs_diff_eq!(back[1], 49.2, epsilon = 1e-9),
             "{back:?}"
         );
     }
@@ -267,11 +269,12 @@ mod tests {
     fn centre_maps_to_origin() {
         let p = Projection::centred_at(10.0, 50.0).unwrap();
         let o = p.forward(10.0, 50.0).unwrap();
-        assert!(o[0].abs() < 1e-6 && o[1].abs() < 1e-6);
+        assert_abs_diff_eq!(o[0], 0.0, epsilon = 1e-6);
+        assert_abs_diff_eq!(o[1], 0.0, epsilon = 1e-6);
         let e = p.forward(11.0, 50.0).unwrap();
         // One degree of longitude at 50° N is about 71.7 km on WGS84
         // (from memory; the pyproj comparison is the real check).
-        assert!((e[0] - 71_700.0).abs() < 500.0, "{e:?}");
+        assert!(abs_diff_eq!(e[0], 71_700.0, epsilon = 500.0), "{e:?}");
         assert!(Projection::centred_at(200.0, 0.0).is_none());
     }
 
@@ -283,18 +286,21 @@ mod tests {
     fn centre_of_points_across_the_antimeridian_and_the_pole() {
         let c = spherical_centre(&[[179.9, 0.0], [-179.9, 0.0]]).unwrap();
         assert_eq!((c.lon.abs(), c.lat), (180.0, 0.0));
-        assert!((c.reach - 0.1).abs() < 1e-9, "{c:?}");
+        assert!(abs_diff_eq!(c.reach, 0.1, epsilon = 1e-9), "{c:?}");
         let ring = [[0.0, 89.0], [90.0, 89.0], [180.0, 89.0], [-90.0, 89.0]];
         let c = spherical_centre(&ring).unwrap();
         assert_eq!(c.lat, 90.0);
-        assert!((c.reach - 1.0).abs() < 1e-9, "{c:?}");
+        assert!(abs_diff_eq!(c.reach, 1.0, epsilon = 1e-9), "{c:?}");
         // The pole is a valid centre for the projection, and the ring
         // keeps its shape: 1° of latitude, about 111.7 km at 89° N on
         // WGS84 (from memory; the pyproj check is in the reference test).
         let p = Projection::centred_at(c.lon, c.lat).unwrap();
         for [lon, lat] in ring {
             let [x, y] = p.forward(lon, lat).unwrap();
-            assert!((x.hypot(y) - 111_700.0).abs() < 300.0, "{x} {y}");
+            assert!(
+                abs_diff_eq!(x.hypot(y), 111_700.0, epsilon = 300.0),
+                "{x} {y}"
+            );
         }
         assert!(spherical_centre(&[[0.0, 0.0], [180.0, 0.0]]).is_none());
         assert!(spherical_centre(&[]).is_none());
@@ -304,6 +310,10 @@ mod tests {
     #[test]
     fn plane_distortion_grows_with_the_reach() {
         assert_eq!(plane_distortion(0.0), 0.0);
-        assert!((plane_distortion(60.0) - (2.0 / 3f64.sqrt() - 1.0)).abs() < 1e-12);
+        assert_abs_diff_eq!(
+            plane_distortion(60.0),
+            2.0 / 3f64.sqrt() - 1.0,
+            epsilon = 1e-12
+        );
     }
 }

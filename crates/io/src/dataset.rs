@@ -688,6 +688,7 @@ mod repeat_tests {
 mod reading_tests {
     use super::*;
     use crate::test_files::file;
+    use approx::abs_diff_eq;
 
     fn load(
         f: &tempfile::NamedTempFile,
@@ -862,7 +863,7 @@ mod reading_tests {
         let d = load(&across, CoordChoice::Auto, "m").unwrap();
         let p = d.projection.as_ref().unwrap();
         assert!(
-            p.lon0.abs() > 179.9 && (p.lat0 + 16.0).abs() < 0.05,
+            p.lon0.abs() > 179.9 && abs_diff_eq!(p.lat0, -16.0, epsilon = 0.05),
             "{p:?}"
         );
         assert!(
@@ -883,7 +884,7 @@ mod reading_tests {
         };
         let (a, b) = (at(2), at(3));
         let gap = (a[0] - b[0]).hypot(a[1] - b[1]);
-        assert!((gap - 10_700.0).abs() < 100.0, "{gap}");
+        assert!(abs_diff_eq!(gap, 10_700.0, epsilon = 100.0), "{gap}");
         assert!(d.warnings.is_empty(), "{:?}", d.warnings);
 
         let grid = file(

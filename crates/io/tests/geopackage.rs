@@ -10,6 +10,7 @@
 
 #![allow(clippy::unwrap_used, missing_docs)]
 
+use approx::assert_relative_eq;
 use geo::Area;
 use patternproof_io::boundary::read_boundary;
 use patternproof_io::geopackage::{self, GpkgChoice, parse_filter};
@@ -148,7 +149,7 @@ fn polygon_layer_with_a_hole_matches_wkt_and_shapely() {
     assert_eq!(g.raw.declared, Some(CoordSystem::Projected));
     // Area from shapely (GEOS) in the reference script; exact arithmetic on these integer corners.
     let want = v["layers"]["area_utm"]["area"].as_f64().unwrap();
-    assert!((g.raw.shape.unsigned_area() - want).abs() <= 1e-12 * want);
+    assert_relative_eq!(g.raw.shape.unsigned_area(), want, max_relative = 1e-12);
 }
 
 #[test]

@@ -441,6 +441,7 @@ mod tests {
     #![allow(clippy::unwrap_used)]
     use super::*;
     use crate::test_figures::figs;
+    use approx::abs_diff_eq;
 
     /// z = (R − 1)·sqrt(n)·0.5/0.26136 (Clark & Evans 1954): R = 0.71,
     /// n = 64 gives z in [−4.515, −4.362], so z = −4.9 is not ok.
@@ -459,7 +460,8 @@ mod tests {
         assert_eq!(z.ok, Some(false));
         let rec = z.recomputed.unwrap();
         assert!(
-            (rec.low + 4.5148).abs() < 1e-3 && (rec.high + 4.3618).abs() < 1e-3,
+            abs_diff_eq!(rec.low, -4.5148, epsilon = 1e-3)
+                && abs_diff_eq!(rec.high, -4.3618, epsilon = 1e-3),
             "{rec}"
         );
         let p = c.iter().find(|c| c.name == "p from z").unwrap();

@@ -404,6 +404,7 @@ mod tests {
     #![allow(clippy::unwrap_used)]
     use super::*;
     use crate::test_figures::figs;
+    use approx::abs_diff_eq;
 
     #[test]
     fn integer_range_finds_a_run() {
@@ -441,13 +442,14 @@ mod tests {
         assert!(n.fits);
         let r = n.range.unwrap();
         assert!(
-            (r.low - 74.0).abs() <= 1.0 && (r.high - 82.0).abs() <= 1.0,
+            abs_diff_eq!(r.low, 74.0, epsilon = 1.0) && abs_diff_eq!(r.high, 82.0, epsilon = 1.0),
             "{r}"
         );
         let r_out = by("without-R").range.unwrap();
         // R = 1 + z/15.3045 over z in [−4.95, −4.85].
         assert!(
-            (r_out.low - 0.6766).abs() < 1e-3 && (r_out.high - 0.6831).abs() < 1e-3,
+            abs_diff_eq!(r_out.low, 0.6766, epsilon = 1e-3)
+                && abs_diff_eq!(r_out.high, 0.6831, epsilon = 1e-3),
             "{r_out}"
         );
     }

@@ -141,6 +141,7 @@ pub fn circle_shape() -> f64 {
 mod tests {
     #![allow(clippy::unwrap_used)]
     use super::*;
+    use approx::{assert_abs_diff_eq, relative_eq};
     use patternproof_core::NnRatioTest;
 
     /// z = (R − 1)·sqrt(n)·0.5/0.26136 (Clark & Evans 1954): for n = 64,
@@ -148,10 +149,10 @@ mod tests {
     #[test]
     fn plain_factors() {
         let m = Model::plain(64);
-        assert!((m.mean_factor - 0.0625).abs() < 1e-15);
-        assert!((m.z_per_ratio - 15.304_5).abs() < 1e-4);
+        assert_abs_diff_eq!(m.mean_factor, 0.0625, epsilon = 1e-15);
+        assert_abs_diff_eq!(m.z_per_ratio, 15.304_5, epsilon = 1e-4);
         let t = NnRatioTest::uncorrected(4.5, 64, 10_000.0).unwrap();
-        assert!((m.z_per_ratio * (t.ratio - 1.0) - t.z).abs() < 1e-9);
+        assert_abs_diff_eq!(m.z_per_ratio * (t.ratio - 1.0), t.z, epsilon = 1e-9);
     }
 
     /// The Donnelly reading reproduces the core's corrected test for a
@@ -160,10 +161,14 @@ mod tests {
     fn donnelly_factors_are_scale_free() {
         let t = donnelly::test(5.0, 49, 5000.0, 300.0).unwrap();
         let m = Model::donnelly(49, 300.0 / 5000f64.sqrt());
-        assert!((m.mean_factor * 5000f64.sqrt() - t.expected).abs() < 1e-12);
-        assert!((m.z_per_ratio * (t.ratio - 1.0) - t.z).abs() < 1e-9);
-        assert!((rectangle_shape(2.0) - 300.0 / 5000f64.sqrt()).abs() < 1e-12);
-        assert!((rectangle_shape(1.0) - 4.0).abs() < 1e-15);
+        assert_abs_diff_eq!(m.mean_factor * 5000f64.sqrt(), t.expected, epsilon = 1e-12);
+        assert_abs_diff_eq!(m.z_per_ratio * (t.ratio - 1.0), t.z, epsilon = 1e-9);
+        assert_abs_diff_eq!(
+            rectangle_shape(2.0),
+            300.0 / 5000f64.sqrt(),
+            epsilon = 1e-12
+        );
+        assert_abs_diff_eq!(rectangle_shape(1.0), 4.0, epsilon = 1e-15);
     }
 
     /// Inverse tails against printed normal tables (Abramowitz & Stegun
@@ -171,14 +176,25 @@ mod tests {
     /// one-sided p = 0.05 at 1.644854.
     #[test]
     fn tails_invert() {
-        assert!((Tail::TwoSided.magnitude_of_p(0.05) - 1.959_964).abs() < 1e-6);
-        assert!((Tail::OneSided.magnitude_of_p(0.05) - 1.644_854).abs() < 1e-6);
+        assert_abs_diff_eq!(
+            Tail::TwoSided.magnitude_of_p(0.05),
+            1.959_964,
+            epsilon = 1e-6
+        );
+        assert_abs_diff_eq!(
+            Tail::OneSided.magnitude_of_p(0.05),
+            1.644_854,
+            epsilon = 1e-6
+        );
         assert_eq!(Tail::OneSided.magnitude_of_p(0.7), 0.0);
         assert!(Tail::TwoSided.magnitude_of_p(0.0).is_infinite());
         for z in [0.1, 1.0, 2.5, 4.9, 8.0] {
             for t in [Tail::TwoSided, Tail::OneSided] {
                 let back = t.magnitude_of_p(t.p_of_magnitude(z));
-                assert!((back - z).abs() < 1e-7 * z.max(1.0), "{t:?} {z} {back}");
+                assert!(
+                    relative_eq!(back, z, epsilon = 1e-7, max_relative = 1e-7),
+                    "{t:?} {z} {back}"
+                );
             }
         }
     }

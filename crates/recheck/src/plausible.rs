@@ -99,6 +99,7 @@ pub fn guard_zone(n: usize, focal: Interval) -> Plausibility {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use approx::assert_abs_diff_eq;
 
     /// The shape bound against its own definition: a k:1 rectangle has
     /// perimeter/sqrt(area) = 2(k + 1)/sqrt(k) (worked by hand: 23:1 gives
@@ -107,7 +108,7 @@ mod tests {
     fn shape_bound_is_a_23_to_1_strip() {
         assert!(rectangle_shape(22.0) < PLAUSIBLE_SHAPE);
         assert!(rectangle_shape(23.0) > PLAUSIBLE_SHAPE);
-        assert!((rectangle_shape(23.0) - 48.0 / 23f64.sqrt()).abs() < 1e-12);
+        assert_abs_diff_eq!(rectangle_shape(23.0), 48.0 / 23f64.sqrt(), epsilon = 1e-12);
         assert!(donnelly(Interval::new(4.0, 30.0)).plausible);
         assert!(!donnelly(Interval::new(18.97, 60.0)).plausible);
     }
@@ -116,8 +117,8 @@ mod tests {
     /// gives 100·0.8² = 64.
     #[test]
     fn guard_zone_floor_by_hand() {
-        assert!((guard_zone_floor(100) - 64.0).abs() < 1e-9);
-        assert!((guard_zone_floor(53) - 27.8796).abs() < 1e-3);
+        assert_abs_diff_eq!(guard_zone_floor(100), 64.0, epsilon = 1e-9);
+        assert_abs_diff_eq!(guard_zone_floor(53), 27.8796, epsilon = 1e-3);
         assert_eq!(guard_zone_floor(4), 0.0);
         assert!(guard_zone(53, Interval::new(36.0, 36.0)).plausible);
         let p = guard_zone(100, Interval::new(20.0, 40.0));

@@ -172,6 +172,7 @@ pub fn propagate(start: &Domains, model: &Model, tail: Tail) -> Option<Domains> 
 mod tests {
     #![allow(clippy::unwrap_used)]
     use super::*;
+    use approx::assert_abs_diff_eq;
     use patternproof_core::NnRatioTest;
 
     fn with(pairs: &[(Quantity, Interval)]) -> Domains {
@@ -190,10 +191,10 @@ mod tests {
             (Quantity::Area, Interval::point(10_000.0)),
         ]);
         let out = propagate(&d, &Model::plain(64), Tail::TwoSided).unwrap();
-        assert!((out.expected_nn.mid() - 6.25).abs() < 1e-9);
-        assert!((out.ratio.mid() - 0.72).abs() < 1e-9);
-        assert!((out.z.mid() - t.z).abs() < 1e-8);
-        assert!((out.p.mid() - t.p).abs() < 1e-12);
+        assert_abs_diff_eq!(out.expected_nn.mid(), 6.25, epsilon = 1e-9);
+        assert_abs_diff_eq!(out.ratio.mid(), 0.72, epsilon = 1e-9);
+        assert_abs_diff_eq!(out.z.mid(), t.z, epsilon = 1e-8);
+        assert_abs_diff_eq!(out.p.mid(), t.p, epsilon = 1e-12);
     }
 
     /// The example of issue 5: R = 0.71 and z = −4.9 with n = 64 cannot
@@ -219,8 +220,13 @@ mod tests {
             .unwrap();
         let out = propagate(&d, &Model::plain(100), Tail::TwoSided).unwrap();
         // |z| in [1.9566, 1.9633] (normal quantiles), negative because R < 1.
-        assert!(out.z.high < 0.0 && (out.z.low + 1.9633).abs() < 1e-3);
-        assert!((out.ratio.mid() - (1.0 - 1.96 / (10.0 * 1.913_06))).abs() < 1e-3);
+        assert!(out.z.high < 0.0);
+        assert_abs_diff_eq!(out.z.low, -1.9633, epsilon = 1e-3);
+        assert_abs_diff_eq!(
+            out.ratio.mid(),
+            1.0 - 1.96 / (10.0 * 1.913_06),
+            epsilon = 1e-3
+        );
         // One-sided: p ≤ 0.5, and a larger p is impossible.
         let d = with(&[(Quantity::P, Interval::new(0.6, 0.7))]);
         assert!(propagate(&d, &Model::plain(100), Tail::OneSided).is_none());

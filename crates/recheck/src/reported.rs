@@ -382,7 +382,7 @@ mod tests {
     use super::*;
 
     fn close(a: f64, b: f64) -> bool {
-        (a - b).abs() <= 1e-12 * b.abs().max(1.0)
+        approx::relative_eq!(a, b, epsilon = 1e-12, max_relative = 1e-12)
     }
 
     /// Rounding to d decimals: the value lies within half a unit of the

@@ -5,6 +5,7 @@
 
 #![allow(clippy::unwrap_used, missing_docs)]
 
+use approx::relative_eq;
 use patternproof_recheck::checks::{PTail, plain_checks};
 use patternproof_recheck::model::Tail;
 use patternproof_recheck::reported::{Quantity, parse};
@@ -34,7 +35,7 @@ fn list(v: &Value, key: &str) -> Vec<f64> {
 fn assert_rel(what: &str, got: f64, want: f64, rel: f64) {
     let err = (got - want).abs() / want.abs().max(1e-300);
     assert!(
-        err <= rel,
+        relative_eq!(got, want, epsilon = 0.0, max_relative = rel),
         "{what}: got {got}, scipy {want}, relative error {err:e}"
     );
 }

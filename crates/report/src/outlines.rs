@@ -212,6 +212,7 @@ fn split_at_antimeridian(polygon: Polygon<f64>) -> Vec<Polygon<f64>> {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use approx::abs_diff_eq;
     use geo::Area;
 
     fn ring(points: &[(f64, f64)]) -> LineString<f64> {
@@ -249,7 +250,10 @@ mod tests {
         assert_eq!(longitudes(west), (-180.0, -175.0));
         assert_eq!(longitudes(east), (175.0, 180.0));
         for p in &parts {
-            assert!((p.unsigned_area() - 50.0).abs() < 1e-6, "{p:?}");
+            assert!(
+                abs_diff_eq!(p.unsigned_area(), 50.0, epsilon = 1e-6),
+                "{p:?}"
+            );
         }
     }
 
@@ -272,7 +276,10 @@ mod tests {
         );
         let parts = split_at_antimeridian(square);
         let area: f64 = parts.iter().map(|p| p.unsigned_area()).sum();
-        assert!((area - 360.0 * 2f64.sqrt()).abs() < 1e-4, "{area}");
+        assert!(
+            abs_diff_eq!(area, 360.0 * 2f64.sqrt(), epsilon = 1e-4),
+            "{area}"
+        );
         for p in &parts {
             let (lo, hi) = longitudes(p);
             assert!((-180.0..=180.0).contains(&lo) && (-180.0..=180.0).contains(&hi));

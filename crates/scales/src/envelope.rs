@@ -226,6 +226,7 @@ pub fn mad_test(
 mod tests {
     use super::*;
     use crate::test_curves::{bump_and_flat_curves, height};
+    use approx::assert_abs_diff_eq;
 
     /// By hand: 19 flat simulated curves at heights ±0.1·k and an observed
     /// curve with a bump of 5 at one distance. The centre is the mean of
@@ -239,12 +240,12 @@ mod tests {
         let sum_sims: f64 = (1..=19).map(height).sum();
         let c0 = sum_sims / 20.0;
         let c1 = (sum_sims + 5.0) / 20.0;
-        assert!((t.centre[0].unwrap_or(f64::NAN) - c0).abs() < 1e-12);
-        assert!((t.centre[1].unwrap_or(f64::NAN) - c1).abs() < 1e-12);
-        assert!((t.p - 0.05).abs() < 1e-12);
-        assert!((t.statistic - (5.0 - c1)).abs() < 1e-12);
+        assert_abs_diff_eq!(t.centre[0].unwrap_or(f64::NAN), c0, epsilon = 1e-12);
+        assert_abs_diff_eq!(t.centre[1].unwrap_or(f64::NAN), c1, epsilon = 1e-12);
+        assert_abs_diff_eq!(t.p, 0.05, epsilon = 1e-12);
+        assert_abs_diff_eq!(t.statistic, 5.0 - c1, epsilon = 1e-12);
         // Largest simulated T: the curve at −1.9 measured at distance 1.
-        assert!((t.critical.unwrap_or(f64::NAN) - (1.9 + c1)).abs() < 1e-12);
+        assert_abs_diff_eq!(t.critical.unwrap_or(f64::NAN), 1.9 + c1, epsilon = 1e-12);
         assert_eq!(t.departure, vec![0, 1, 0, 0]);
         // Too few simulations for α = 0.01: no band.
         let t = mad_test(Correction::Isotropic, &obs, &sims, 0.01);

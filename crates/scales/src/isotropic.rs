@@ -144,6 +144,7 @@ pub fn weight(region: &Region, c: Xy, d: f64) -> (f64, bool) {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use approx::{abs_diff_eq, assert_abs_diff_eq};
     use geo::{LineString, MultiPolygon, Polygon};
 
     fn square(s: f64) -> Region {
@@ -160,11 +161,15 @@ mod tests {
     #[test]
     fn shares_by_hand() {
         let w = square(10.0);
-        assert!((inside_share(&w, [5.0, 5.0], 2.0) - 1.0).abs() < 1e-14);
-        assert!((inside_share(&w, [5.0, 0.0], 2.0) - 0.5).abs() < 1e-12);
-        assert!((inside_share(&w, [0.0, 0.0], 2.0) - 0.25).abs() < 1e-12);
-        assert!((inside_share(&w, [5.0, 1.0], 2.0) - 2.0 / 3.0).abs() < 1e-12);
-        assert!((weight(&w, [5.0, 1.0], 2.0).0 - 1.5).abs() < 1e-12);
+        assert_abs_diff_eq!(inside_share(&w, [5.0, 5.0], 2.0), 1.0, epsilon = 1e-14);
+        assert_abs_diff_eq!(inside_share(&w, [5.0, 0.0], 2.0), 0.5, epsilon = 1e-12);
+        assert_abs_diff_eq!(inside_share(&w, [0.0, 0.0], 2.0), 0.25, epsilon = 1e-12);
+        assert_abs_diff_eq!(
+            inside_share(&w, [5.0, 1.0], 2.0),
+            2.0 / 3.0,
+            epsilon = 1e-12
+        );
+        assert_abs_diff_eq!(weight(&w, [5.0, 1.0], 2.0).0, 1.5, epsilon = 1e-12);
         // A circle around the whole square lies outside it entirely.
         assert_eq!(inside_share(&w, [5.0, 5.0], 100.0), 0.0);
     }
@@ -201,7 +206,10 @@ mod tests {
                 for r in [1e-3, 0.4, 1.0, 1.6, 2.9, 3.5, 5.0, 7.5, 9.0] {
                     let want = inside_share(&general, c, r);
                     let got = rectangle_share(rect, c, r).expect("inside");
-                    assert!((got - want).abs() < 1e-12, "{c:?} r {r}: {got} vs {want}");
+                    assert!(
+                        abs_diff_eq!(got, want, epsilon = 1e-12),
+                        "{c:?} r {r}: {got} vs {want}"
+                    );
                     assert_eq!(inside_share(&closed, c, r), got);
                     checked += 1;
                 }
@@ -213,9 +221,21 @@ mod tests {
             max: [10.0, 10.0],
         };
         assert_eq!(rectangle_share(sq, [5.0, 5.0], 2.0), Some(1.0));
-        assert!((rectangle_share(sq, [5.0, 0.0], 2.0).expect("inside") - 0.5).abs() < 1e-15);
-        assert!((rectangle_share(sq, [0.0, 0.0], 2.0).expect("inside") - 0.25).abs() < 1e-15);
-        assert!((rectangle_share(sq, [5.0, 1.0], 2.0).expect("inside") - 2.0 / 3.0).abs() < 1e-15);
+        assert_abs_diff_eq!(
+            rectangle_share(sq, [5.0, 0.0], 2.0).expect("inside"),
+            0.5,
+            epsilon = 1e-15
+        );
+        assert_abs_diff_eq!(
+            rectangle_share(sq, [0.0, 0.0], 2.0).expect("inside"),
+            0.25,
+            epsilon = 1e-15
+        );
+        assert_abs_diff_eq!(
+            rectangle_share(sq, [5.0, 1.0], 2.0).expect("inside"),
+            2.0 / 3.0,
+            epsilon = 1e-15
+        );
         assert_eq!(rectangle_share(sq, [5.0, 5.0], 100.0), Some(0.0));
         // A centre outside the rectangle is left to the arc method.
         assert_eq!(rectangle_share(sq, [-1.0, 5.0], 2.0), None);
@@ -261,7 +281,7 @@ mod tests {
                 let interior = interior.min(TAU - interior);
                 let share = inside_share(&w, c, d);
                 assert!(
-                    (share - interior / TAU).abs() < 1e-9,
+                    abs_diff_eq!(share, interior / TAU, epsilon = 1e-9),
                     "{c:?}: {share} vs {}",
                     interior / TAU
                 );

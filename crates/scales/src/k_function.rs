@@ -359,6 +359,7 @@ pub fn curve(correction: Correction, k: Vec<Option<f64>>, grid: &[f64]) -> KCurv
 #[cfg(test)]
 mod tests {
     use super::*;
+    use approx::relative_eq;
     use geo::{LineString, MultiPolygon, Polygon};
 
     fn holed() -> Region {
@@ -451,15 +452,15 @@ mod tests {
             let want_b = reg.area * bc / ((n - 1.0) * centres as f64);
             let got = |c: usize| curves[c].k[k].expect("defined");
             assert!(
-                (got(0) - want_b).abs() <= 1e-9 * want_b.max(1.0),
+                relative_eq!(got(0), want_b, epsilon = 1e-9, max_relative = 1e-9),
                 "border r={r}"
             );
             assert!(
-                (got(1) - want_iso).abs() <= 1e-9 * want_iso.max(1.0),
+                relative_eq!(got(1), want_iso, epsilon = 1e-9, max_relative = 1e-9),
                 "iso r={r}"
             );
             assert!(
-                (got(2) - want_tr).abs() <= 1e-9 * want_tr.max(1.0),
+                relative_eq!(got(2), want_tr, epsilon = 1e-9, max_relative = 1e-9),
                 "trans r={r}"
             );
         }

@@ -160,6 +160,7 @@ pub fn rank_envelope(
 mod tests {
     use super::*;
     use crate::test_curves::bump_and_flat_curves;
+    use approx::assert_abs_diff_eq;
 
     /// By hand from the definitions: 19 flat simulated curves at heights
     /// ±0.1·k (k = 1…19, odd k below zero) and an observed curve at 0 with
@@ -178,7 +179,7 @@ mod tests {
         let (obs, sims) = bump_and_flat_curves();
         let t = rank_envelope(&obs, &sims, 0.05);
         assert_eq!(t.extreme_rank, 1);
-        assert!((t.p - 3.0 / 20.0).abs() < 1e-15);
+        assert_abs_diff_eq!(t.p, 3.0 / 20.0, epsilon = 1e-15);
         assert_eq!(t.set_aside, 1);
         assert_eq!(t.hi[1], Some(5.0));
         assert_eq!(t.lo[1], sims[16][1], "−1.7");
@@ -206,7 +207,7 @@ mod tests {
         let obs = vec![Some(10.0); 6];
         let t = rank_envelope(&obs, &sims, 0.05);
         assert_eq!(t.extreme_rank, 1);
-        assert!((t.p - 1.0 / 40.0).abs() < 1e-15);
+        assert_abs_diff_eq!(t.p, 1.0 / 40.0, epsilon = 1e-15);
         assert!(t.set_aside >= 1 && t.set_aside <= 2);
         assert_eq!(t.departure, vec![1; 6]);
         // Two observed points pushed down instead: −1 there.

@@ -108,6 +108,7 @@ impl Region {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use approx::assert_abs_diff_eq;
     use geo::{LineString, Polygon};
 
     fn holed() -> MultiPolygon<f64> {
@@ -125,7 +126,7 @@ mod tests {
         use geo::{Contains, Distance, Euclidean, Point};
         let shape = holed();
         let reg = Region::new(&shape, None).expect("area");
-        assert!((reg.area - 96.0).abs() < 1e-12);
+        assert_abs_diff_eq!(reg.area, 96.0, epsilon = 1e-12);
         for i in 0..=50 {
             for j in 0..=50 {
                 let p = [-1.0 + i as f64 * 0.2417, -1.0 + j as f64 * 0.2391];
@@ -136,7 +137,7 @@ mod tests {
                     .flat_map(|poly| std::iter::once(poly.exterior()).chain(poly.interiors()))
                     .map(|r| Euclidean.distance(&pt, r))
                     .fold(f64::INFINITY, f64::min);
-                assert!((reg.distance_to_outline(p) - want).abs() < 1e-12);
+                assert_abs_diff_eq!(reg.distance_to_outline(p), want, epsilon = 1e-12);
             }
         }
     }

@@ -150,6 +150,7 @@ pub fn weight(region: &Region, v: [f64; 2]) -> Option<f64> {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use approx::{abs_diff_eq, assert_abs_diff_eq};
     use geo::{LineString, MultiPolygon, Polygon};
 
     /// The table against exact intersections (geo boolean operations) at
@@ -208,7 +209,11 @@ mod tests {
             // is not used.
             let v = [rmax / 2.0, 0.0];
             let exact = overlap_area_polygon(&reg, v);
-            assert!((table.area(v).unwrap_or(f64::NAN) - exact).abs() < 1e-9 * reg.area);
+            assert_abs_diff_eq!(
+                table.area(v).unwrap_or(f64::NAN),
+                exact,
+                epsilon = 1e-9 * reg.area
+            );
             assert_eq!(table.area([rmax * 1.01, 0.0]), None);
         }
     }
@@ -233,7 +238,7 @@ mod tests {
             let closed = overlap_area_rectangle(7.0, 4.0, v);
             // geo's overlay snaps to a grid: 1e-8 of the window's area.
             assert!(
-                (poly - closed).abs() < 1e-8 * 28.0,
+                abs_diff_eq!(poly, closed, epsilon = 1e-8 * 28.0),
                 "{v:?}: {poly} vs {closed}"
             );
         }

@@ -3,6 +3,7 @@
 
 #![allow(clippy::unwrap_used, missing_docs)]
 
+use approx::abs_diff_eq;
 use geo::{LineString, MultiPolygon, Polygon};
 use patternproof_audit::sampling::Sampler;
 use patternproof_audit::streams::stream;
@@ -74,7 +75,7 @@ fn csr_mean_k_is_pi_r_squared() {
             let se = (var / v.len() as f64).sqrt();
             let want = PI * r * r;
             assert!(
-                (mean - want).abs() <= 4.0 * se,
+                abs_diff_eq!(mean, want, epsilon = 4.0 * se),
                 "{name} r={r}: mean {mean}, πr² {want}, se {se}"
             );
             // The check has teeth: 4 se stays below 10 % of πr², less
@@ -189,7 +190,7 @@ fn detects_a_thomas_cluster_process() {
     );
     let simulated = &sims[0];
     let t = mad_test(Correction::Isotropic, &obs[0].l_minus_r, simulated, 0.05);
-    assert!((t.p - 1.0 / 40.0).abs() < 1e-12, "p {}", t.p);
+    assert!(abs_diff_eq!(t.p, 1.0 / 40.0, epsilon = 1e-12), "p {}", t.p);
     assert_eq!(t.departure[1], 1, "{:?}", t.departure);
     assert!(t.departure.iter().all(|&d| d >= 0));
     // The ERL test sees it too: the observed curve is above every

@@ -12,6 +12,7 @@
 
 #![allow(clippy::unwrap_used, missing_docs)]
 
+use approx::{assert_abs_diff_eq, relative_eq};
 use geo::{LineString, MultiPolygon, Polygon};
 use patternproof_scales::k_function::k_curves;
 use patternproof_scales::{Correction, Region, isotropic, translation};
@@ -59,7 +60,7 @@ fn setup() -> (Value, Region, Vec<[f64; 2]>) {
 fn assert_rel(what: &str, got: f64, want: f64, rel: f64) {
     let err = (got - want).abs() / want.abs().max(f64::MIN_POSITIVE);
     assert!(
-        err <= rel,
+        relative_eq!(got, want, epsilon = 0.0, max_relative = rel),
         "{what}: got {got}, reference {want}, relative error {err:e} > {rel:e}"
     );
 }
@@ -71,7 +72,7 @@ fn area_and_outline_distances() {
     assert_rel("area", region.area, f(&v["area"]), 1e-12);
     // Reference: shapely boundary.distance(Point) (exterior and hole).
     for (p, want) in pts.iter().zip(v["outline_distance"].as_array().unwrap()) {
-        assert!((region.distance_to_outline(*p) - f(want)).abs() < 1e-9);
+        assert_abs_diff_eq!(region.distance_to_outline(*p), f(want), epsilon = 1e-9);
     }
 }
 
@@ -84,7 +85,11 @@ fn per_pair_weights() {
         let i = pair["i"].as_u64().unwrap() as usize;
         let j = pair["j"].as_u64().unwrap() as usize;
         let d = f(&pair["d"]);
-        assert!(((pts[i][0] - pts[j][0]).hypot(pts[i][1] - pts[j][1]) - d).abs() < 1e-9);
+        assert_abs_diff_eq!(
+            (pts[i][0] - pts[j][0]).hypot(pts[i][1] - pts[j][1]),
+            d,
+            epsilon = 1e-9
+        );
         // Reference: shapely length of a 2^14-chord circle ∩ polygon over
         // the chord circle's length (tolerance 1e-6 stated in the script;
         // checked here at 1e-5).

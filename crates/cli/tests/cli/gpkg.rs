@@ -8,30 +8,14 @@
 //! report's areas, read back here and, when `reference/.venv` exists,
 //! with shapely and pyproj (`reference/read_windows_gpkg.py`).
 
-#![allow(clippy::unwrap_used, missing_docs)]
-
+use crate::util::{assert_rel, repo, repo_arg, run, stderr, tmp, under_ci};
 use rusqlite::Connection;
 use serde_json::Value;
-use std::path::{Path, PathBuf};
+use std::path::Path;
 use std::process::{Command, Output};
 
-fn repo() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("../..")
-}
-
 fn fixture(name: &str) -> String {
-    repo()
-        .join("reference/gpkg")
-        .join(name)
-        .display()
-        .to_string()
-}
-
-fn run(args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_patternproof"))
-        .args(args)
-        .output()
-        .expect("binary runs")
+    repo_arg(&format!("reference/gpkg/{name}"))
 }
 
 fn audit(out: &Path, args: &[&str]) -> Value {
@@ -40,12 +24,7 @@ fn audit(out: &Path, args: &[&str]) -> Value {
     let o_str = out.display().to_string();
     all.extend_from_slice(&["--sims", "39", "--seed", "7", "--quiet", "--out", &o_str]);
     let o = run(&all);
-    assert!(
-        o.status.success(),
-        "{:?}: {}",
-        all,
-        String::from_utf8_lossy(&o.stderr)
-    );
+    assert!(o.status.success(), "{:?}: {}", all, stderr(&o));
     serde_json::from_str(&std::fs::read_to_string(out.join("report.json")).unwrap()).unwrap()
 }
 
@@ -71,7 +50,7 @@ fn analysis(r: &Value) -> Value {
 /// The audit of the fixture's `plots_SUFFIX` layer with the `area_SUFFIX`
 /// boundary layer, and the audit of the same data as CSV and WKT.
 fn layer_and_text_reports(suffix: &str) -> (serde_json::Value, serde_json::Value) {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let survey = fixture("survey.gpkg");
     let (points, area) = (format!("plots_{suffix}"), format!("area_{suffix}"));
     let g = audit(
@@ -148,18 +127,10 @@ fn windows_in(out: &Path) -> Vec<WindowRow> {
         .collect()
 }
 
-fn assert_rel(what: &str, got: f64, want: f64, rel: f64) {
-    let err = (got - want).abs() / want.abs().max(f64::MIN_POSITIVE);
-    assert!(
-        err <= rel,
-        "{what}: got {got}, want {want}, relative error {err:e}"
-    );
-}
-
 #[test]
 fn windows_gpkg_is_a_geopackage_holding_the_report_windows() {
     use geo::{Area, Euclidean, Length};
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let out = dir.path().join("r");
     let survey = fixture("survey.gpkg");
     let report = audit(
@@ -249,7 +220,7 @@ fn windows_gpkg_is_a_geopackage_holding_the_report_windows() {
 
 #[test]
 fn same_input_same_windows_gpkg_bytes() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let survey = fixture("survey.gpkg");
     let args = [survey.as_str(), "--layer", "plots_utm"];
     audit(&dir.path().join("a"), &args);
@@ -262,7 +233,7 @@ fn same_input_same_windows_gpkg_bytes() {
 
 #[test]
 fn projected_input_keeps_its_own_system_and_csv_gets_the_undefined_one() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let survey = fixture("survey.gpkg");
     audit(&dir.path().join("g"), &[&survey, "--layer", "plots_utm"]);
     audit(&dir.path().join("c"), &[&fixture("plots_utm.csv")]);
@@ -293,7 +264,7 @@ fn windows_gpkg_reads_back_with_shapely_and_pyproj() {
     let python = repo().join("reference/.venv/bin/python");
     if !python.is_file() {
         assert!(
-            !std::env::var("CI").is_ok_and(|v| v == "true"),
+            !under_ci(),
             "no reference/.venv under CI: reference/regenerate.sh should have built it"
         );
         eprintln!(
@@ -301,7 +272,7 @@ fn windows_gpkg_reads_back_with_shapely_and_pyproj() {
         );
         return;
     }
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let survey = fixture("survey.gpkg");
     for (name, layer, boundary, srs) in [
         ("lonlat", "plots_wgs84", "area_wgs84", "990001"),
@@ -325,7 +296,7 @@ fn windows_gpkg_reads_back_with_shapely_and_pyproj() {
             .arg(out.join("windows.gpkg"))
             .output()
             .unwrap();
-        assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+        assert!(o.status.success(), "{}", stderr(&o));
         let py: Value = serde_json::from_slice(&o.stdout).unwrap();
         // Python's sqlite3 (reference): the GeoPackage 1.3 §1.1.1.1.1 pragmas, file integrity.
         assert_eq!(py["application_id"], 0x4750_4B47);
@@ -382,7 +353,7 @@ fn windows_gpkg_reads_back_with_shapely_and_pyproj() {
 
 #[test]
 fn sites_from_a_layer_match_sites_from_csv() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let protocol = dir.path().join("protocol.json");
     let o = run(&[
         "protocol",
@@ -392,7 +363,7 @@ fn sites_from_a_layer_match_sites_from_csv() {
         "--out",
         protocol.to_str().unwrap(),
     ]);
-    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    assert!(o.status.success(), "{}", stderr(&o));
     let sites = |out: &str, extra: &[&str]| -> Value {
         let out = dir.path().join(out);
         let mut args = vec![
@@ -408,7 +379,7 @@ fn sites_from_a_layer_match_sites_from_csv() {
         let o_str = out.display().to_string();
         args.extend_from_slice(&["--out", &o_str]);
         let o = run(&args);
-        assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+        assert!(o.status.success(), "{}", stderr(&o));
         let v: Value =
             serde_json::from_str(&std::fs::read_to_string(out.join("sites.json")).unwrap())
                 .unwrap();
@@ -435,7 +406,7 @@ fn sites_from_a_layer_match_sites_from_csv() {
 /// without the named column is refused with exit 2, naming the column.
 #[test]
 fn sites_boundaries_from_a_layer_match_geojson() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let protocol = dir.path().join("protocol.json");
     let o = run(&[
         "protocol",
@@ -447,7 +418,7 @@ fn sites_boundaries_from_a_layer_match_geojson() {
         "--out",
         protocol.to_str().unwrap(),
     ]);
-    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    assert!(o.status.success(), "{}", stderr(&o));
     let survey = fixture("survey.gpkg");
     let sites = |out: &str, extra: &[&str]| -> Output {
         let o_str = dir.path().join(out).display().to_string();
@@ -490,14 +461,14 @@ fn sites_boundaries_from_a_layer_match_geojson() {
     };
     let gpkg = fixture("site_areas.gpkg");
     let o = sites("g", &["--boundaries", &gpkg]);
-    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    assert!(o.status.success(), "{}", stderr(&o));
     assert!(
-        String::from_utf8_lossy(&o.stderr).contains("boundary `pond` matches no site"),
+        stderr(&o).contains("boundary `pond` matches no site"),
         "{}",
-        String::from_utf8_lossy(&o.stderr)
+        stderr(&o)
     );
     let o = sites("j", &["--boundaries", &fixture("site_areas.geojson")]);
-    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    assert!(o.status.success(), "{}", stderr(&o));
     let (g, j) = (areas("g"), areas("j"));
     assert_eq!(g.len(), 2);
     assert_eq!(g, j);
@@ -554,7 +525,7 @@ fn sites_boundaries_from_a_layer_match_geojson() {
         dir.path().join("bad").to_str().unwrap(),
     ]);
     assert_eq!(o.status.code(), Some(2));
-    let err = String::from_utf8_lossy(&o.stderr);
+    let err = stderr(&o);
     assert!(
         err.contains("no column `name`") && err.contains("--boundary-field"),
         "{err}"
@@ -571,7 +542,7 @@ fn sites_boundaries_from_a_layer_match_geojson() {
         ],
     );
     assert_eq!(o.status.code(), Some(2));
-    let err = String::from_utf8_lossy(&o.stderr);
+    let err = stderr(&o);
     assert!(
         err.contains("not a GeoPackage") && err.contains("what to do"),
         "{err}"

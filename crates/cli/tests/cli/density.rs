@@ -1,28 +1,18 @@
 //! End-to-end: `patternproof density` on the invented marsh hare track
 //! (small raster for speed), and bad input exiting 2.
 
-use std::path::PathBuf;
-use std::process::{Command, Output};
-
-fn bin(args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_patternproof"))
-        .args(args)
-        .output()
-        .expect("run patternproof")
-}
+use crate::util::{repo_arg, run, stderr, tmp};
+use approx::{abs_diff_eq, assert_abs_diff_eq};
 
 fn track() -> String {
-    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
-        .join("../../demo-data/marsh-hare-track.csv")
-        .display()
-        .to_string()
+    repo_arg("demo-data/marsh-hare-track.csv")
 }
 
 #[test]
 fn density_on_the_demo_track() {
-    let dir = tempfile::tempdir().expect("tempdir");
+    let dir = tmp();
     let out = dir.path().join("d");
-    let o = bin(&[
+    let o = run(&[
         "density",
         &track(),
         "--cell",
@@ -37,7 +27,7 @@ fn density_on_the_demo_track() {
         "--out",
         out.to_str().expect("path"),
     ]);
-    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    assert!(o.status.success(), "{}", stderr(&o));
     let doc: serde_json::Value =
         serde_json::from_str(&std::fs::read_to_string(out.join("density.json")).expect("json"))
             .expect("parse");
@@ -56,7 +46,11 @@ fn density_on_the_demo_track() {
             let m = s["mass_outside"].as_f64().expect("mass outside");
             assert!(m > 0.0 && m < 0.9, "{m}");
         } else {
-            assert!((s["mass_inside"].as_f64().expect("mass") - 1.0).abs() < 1e-3);
+            assert_abs_diff_eq!(
+                s["mass_inside"].as_f64().expect("mass"),
+                1.0,
+                epsilon = 1e-3
+            );
         }
     }
     // The reference (gaussian, Scott, first edge) overlaps itself fully.
@@ -70,7 +64,7 @@ fn density_on_the_demo_track() {
     let sc = &doc["bandwidth_selection"]["scott"];
     let want =
         sc["sigma"].as_f64().expect("sigma") * (sc["n"].as_f64().expect("n")).powf(-1.0 / 6.0);
-    assert!((sc["bandwidth"].as_f64().expect("h") - want).abs() < 1e-9);
+    assert_abs_diff_eq!(sc["bandwidth"].as_f64().expect("h"), want, epsilon = 1e-9);
     let sentence = doc["verdict"]["sentence"].as_str().expect("sentence");
     assert!(sentence.contains("95 % area ranges from"), "{sentence}");
     for f in [
@@ -95,7 +89,7 @@ fn density_on_the_demo_track() {
 
 #[test]
 fn bad_density_input_exits_2() {
-    let dir = tempfile::tempdir().expect("tempdir");
+    let dir = tmp();
     let out = dir.path().join("d");
     let o = out.to_str().expect("path");
     let t = track();
@@ -109,14 +103,14 @@ fn bad_density_input_exits_2() {
     ] {
         let mut a = vec!["density", t.as_str(), "--out", o];
         a.extend(args);
-        let r = bin(&a);
+        let r = run(&a);
         assert_eq!(r.status.code(), Some(2), "{a:?}");
-        let err = String::from_utf8_lossy(&r.stderr);
+        let err = stderr(&r);
         assert!(err.contains(needle) && err.contains("what to do"), "{err}");
     }
     let one = dir.path().join("one.csv");
     std::fs::write(&one, "x,y\n1,2\n").expect("write");
-    let r = bin(&[
+    let r = run(&[
         "density",
         one.to_str().expect("p"),
         "--coords",
@@ -134,7 +128,7 @@ fn bad_density_input_exits_2() {
 /// member, so a GIS does not read planar numbers as lon/lat.
 #[test]
 fn isopleths_in_small_units_keep_their_shape() {
-    let dir = tempfile::tempdir().expect("tempdir");
+    let dir = tmp();
     let text = std::fs::read_to_string(track()).expect("track");
     let mut km = String::from("x,y\n");
     for line in text.lines().skip(1) {
@@ -150,7 +144,7 @@ fn isopleths_in_small_units_keep_their_shape() {
     let km_file = dir.path().join("track-km.csv");
     std::fs::write(&km_file, km).expect("write");
     let run = |file: &str, unit: &str, cell: &str, out: &std::path::Path| {
-        let o = bin(&[
+        let o = run(&[
             "density",
             file,
             "--coords",
@@ -169,7 +163,7 @@ fn isopleths_in_small_units_keep_their_shape() {
             "--out",
             out.to_str().expect("path"),
         ]);
-        assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+        assert!(o.status.success(), "{}", stderr(&o));
         let gj: serde_json::Value = serde_json::from_str(
             &std::fs::read_to_string(out.join("isopleths.geojson")).expect("gj"),
         )
@@ -206,6 +200,9 @@ fn isopleths_in_small_units_keep_their_shape() {
     assert_eq!(cm.len(), ck.len());
     for (a, b) in cm.iter().zip(&ck) {
         // A thousandth of the 25 m cell, in km.
-        assert!((a / 1000.0 - b).abs() < 0.025e-3 + 1e-9, "{a} m vs {b} km");
+        assert!(
+            abs_diff_eq!(a / 1000.0, b, epsilon = 0.025e-3 + 1e-9),
+            "{a} m vs {b} km"
+        );
     }
 }

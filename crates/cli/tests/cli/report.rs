@@ -1,21 +1,18 @@
 //! The report a reviewer reads: pictures, `index.html`, determinism, the
 //! map switch, and a headless-browser rendering of the page.
 
+use crate::util::{bin, read, repo, repo_arg, stderr, tmp, under_ci};
 use patternproof_report::numbers::sig;
 use serde_json::Value;
-use std::path::{Path, PathBuf};
+use std::path::Path;
 use std::process::{Command, Output};
 
-fn repo() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("../..")
-}
-
 fn demo(name: &str) -> String {
-    repo().join("demo-data").join(name).display().to_string()
+    repo_arg(&format!("demo-data/{name}"))
 }
 
 fn audit(args: &[&str], out: &Path) -> Output {
-    let o = Command::new(env!("CARGO_BIN_EXE_patternproof"))
+    let o = bin()
         .arg("audit")
         .args(args)
         .arg("--out")
@@ -23,11 +20,7 @@ fn audit(args: &[&str], out: &Path) -> Output {
         .arg("--quiet")
         .output()
         .expect("binary runs");
-    assert!(
-        o.status.success(),
-        "audit failed: {}",
-        String::from_utf8_lossy(&o.stderr)
-    );
+    assert!(o.status.success(), "audit failed: {}", stderr(&o));
     o
 }
 
@@ -43,10 +36,6 @@ fn demo_audit(out: &Path, extra: &[&str]) {
     ];
     args.extend_from_slice(extra);
     audit(&args, out);
-}
-
-fn read(p: &Path) -> String {
-    std::fs::read_to_string(p).unwrap_or_else(|e| panic!("{}: {e}", p.display()))
 }
 
 fn json(dir: &Path) -> Value {
@@ -116,7 +105,7 @@ fn check_sensitivity(dir: &Path) {
 /// labelled markers, the flip thresholds in the text.
 #[test]
 fn demo_pictures_carry_series_markers_and_thresholds() {
-    let dir = tempfile::tempdir().expect("tempdir");
+    let dir = tmp();
     let out = dir.path().join("r");
     demo_audit(&out, &[]);
     check_sensitivity(&out);
@@ -175,7 +164,7 @@ fn demo_pictures_carry_series_markers_and_thresholds() {
 /// thresholds in the text.
 #[test]
 fn tiny_data_set_pictures() {
-    let dir = tempfile::tempdir().expect("tempdir");
+    let dir = tmp();
     let points = dir.path().join("tiny.csv");
     std::fs::write(
         &points,
@@ -208,7 +197,7 @@ fn tiny_data_set_pictures() {
 /// section present, and the SVGs inline.
 #[test]
 fn index_html_is_self_contained() {
-    let dir = tempfile::tempdir().expect("tempdir");
+    let dir = tmp();
     let out = dir.path().join("r");
     demo_audit(&out, &[]);
     let html = read(&out.join("index.html"));
@@ -278,7 +267,7 @@ fn index_html_is_self_contained() {
 /// markup.
 #[test]
 fn hostile_names_are_escaped() {
-    let dir = tempfile::tempdir().expect("tempdir");
+    let dir = tmp();
     let points = dir.path().join("<script>alert(1)<script>.csv");
     std::fs::copy(demo("meadow-burrows.csv"), &points).expect("copy");
     let boundary = dir.path().join("b.geojson");
@@ -309,7 +298,7 @@ fn hostile_names_are_escaped() {
 /// `|` that splits a table row.
 #[test]
 fn markdown_files_escape_user_strings() {
-    let dir = tempfile::tempdir().expect("tempdir");
+    let dir = tmp();
     let points = dir.path().join("<img src=x onerror=alert(1)>.csv");
     let mut csv = String::from("burrow,x,y,survey\n");
     for line in read(Path::new(&demo("meadow-burrows.csv"))).lines().skip(1) {
@@ -378,7 +367,7 @@ fn markdown_files_escape_user_strings() {
 /// Same seed, same bytes: report.json, verdict.md and every SVG.
 #[test]
 fn reruns_give_identical_files() {
-    let dir = tempfile::tempdir().expect("tempdir");
+    let dir = tmp();
     let (a, b) = (dir.path().join("a"), dir.path().join("b"));
     demo_audit(&a, &[]);
     demo_audit(&b, &[]);
@@ -402,7 +391,7 @@ fn reruns_give_identical_files() {
 /// `--stamp` adds the time to the page only.
 #[test]
 fn no_map_and_stamp() {
-    let dir = tempfile::tempdir().expect("tempdir");
+    let dir = tmp();
     let out = dir.path().join("r");
     demo_audit(&out, &["--no-map", "--stamp"]);
     assert!(!out.join("windows.svg").exists());
@@ -428,15 +417,14 @@ fn browser_renders_the_page() {
         eprintln!(
             "SKIPPED browser_renders_the_page: no chromium on PATH (install Debian's `chromium`; .ci/run does)"
         );
-        let required = std::env::var_os("PATTERNPROOF_REQUIRE_BROWSER").is_some()
-            || std::env::var("CI").is_ok_and(|v| v == "true");
+        let required = std::env::var_os("PATTERNPROOF_REQUIRE_BROWSER").is_some() || under_ci();
         assert!(
             !required,
             "chromium is missing but this run requires the browser test (CI=true or PATTERNPROOF_REQUIRE_BROWSER)"
         );
         return;
     };
-    let dir = tempfile::tempdir().expect("tempdir");
+    let dir = tmp();
     let out = dir.path().join("r");
     demo_audit(&out, &[]);
     let png = dir.path().join("page.png");
@@ -452,11 +440,7 @@ fn browser_renders_the_page() {
         .arg(format!("file://{}", out.join("index.html").display()))
         .output()
         .expect("chromium runs");
-    assert!(
-        png.exists(),
-        "no screenshot: {}",
-        String::from_utf8_lossy(&o.stderr)
-    );
+    assert!(png.exists(), "no screenshot: {}", stderr(&o));
     let decoder = png::Decoder::new(std::io::BufReader::new(
         std::fs::File::open(&png).expect("png"),
     ));
@@ -485,7 +469,7 @@ fn browser_renders_the_page() {
 /// another on −180°; the pole's outlines reach 90° N.
 #[test]
 fn window_outlines_are_cut_at_the_antimeridian() {
-    let dir = tempfile::tempdir().expect("temp dir");
+    let dir = tmp();
     for (file, pole) in [("antimeridian.csv", false), ("around-the-pole.csv", true)] {
         let out = dir.path().join(file);
         let points = repo().join("tests/bad-inputs").join(file);

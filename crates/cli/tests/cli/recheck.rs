@@ -2,32 +2,17 @@
 //! example, on figures printed from an audit of the (invented) demo
 //! meadow, and on bad input.
 
-#![allow(clippy::unwrap_used, missing_docs)]
-
+use crate::util::{bin, repo_arg, stderr, stdout, tmp};
+use approx::{assert_abs_diff_eq, assert_relative_eq};
 use serde_json::Value;
-use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
-
-fn bin() -> Command {
-    Command::new(env!("CARGO_BIN_EXE_patternproof"))
-}
-
-fn repo() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("../..")
-}
+use std::process::Output;
 
 fn burrows() -> String {
-    repo()
-        .join("demo-data/meadow-burrows.csv")
-        .display()
-        .to_string()
+    repo_arg("demo-data/meadow-burrows.csv")
 }
 
 fn boundary() -> String {
-    repo()
-        .join("demo-data/meadow-boundary.geojson")
-        .display()
-        .to_string()
+    repo_arg("demo-data/meadow-boundary.geojson")
 }
 
 fn recheck(args: &[&str]) -> Output {
@@ -36,14 +21,6 @@ fn recheck(args: &[&str]) -> Output {
         .args(args)
         .output()
         .expect("binary runs")
-}
-
-fn stdout(o: &Output) -> String {
-    String::from_utf8_lossy(&o.stdout).into_owned()
-}
-
-fn stderr(o: &Output) -> String {
-    String::from_utf8_lossy(&o.stderr).into_owned()
 }
 
 fn json(args: &[&str]) -> Value {
@@ -56,7 +33,7 @@ fn json(args: &[&str]) -> Value {
 
 /// The demo audit's uncorrected rows (sims 0), from its report.json.
 fn audit_rows() -> Vec<Value> {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let out = dir.path().join("report");
     let o = bin()
         .args(["audit", &burrows(), "--boundary", &boundary()])
@@ -152,7 +129,11 @@ fn bbox_figures_are_attributed_to_bbox_not_hull() {
             .iter()
             .any(|x| x == "R")
     );
-    assert!((hull_cmp["ratio"].as_f64().unwrap() - hull["ratio"].as_f64().unwrap()).abs() < 1e-12);
+    assert_abs_diff_eq!(
+        hull_cmp["ratio"].as_f64().unwrap(),
+        hull["ratio"].as_f64().unwrap(),
+        epsilon = 1e-12
+    );
 
     // The text names the match and contrasts the hull.
     let o = recheck(&a);
@@ -267,8 +248,16 @@ fn foreign_figures_name_the_nearest_window_and_the_area_needed() {
         r_lo >= 0.695 && r_hi <= 0.705 && r_hi - r_lo < 0.001,
         "{r_lo}–{r_hi}"
     );
-    assert!((need["low"].as_f64().unwrap() - want(r_hi)).abs() < 1e-6 * want(r_hi));
-    assert!((need["high"].as_f64().unwrap() - want(r_lo)).abs() < 1e-6 * want(r_lo));
+    assert_relative_eq!(
+        need["low"].as_f64().unwrap(),
+        want(r_hi),
+        max_relative = 1e-6
+    );
+    assert_relative_eq!(
+        need["high"].as_f64().unwrap(),
+        want(r_lo),
+        max_relative = 1e-6
+    );
 }
 
 /// The issue's example "R = 0.71, z = −4.9, p < 0.001, n = 64": z from R
@@ -366,7 +355,7 @@ fn nothing_to_check_is_null() {
     assert!(v["verdict"].as_str().unwrap().starts_with("cannot tell"));
     // The implied z is still reported: (0.71 − 1)·15.3045 ± 0.077.
     let z = &v["implied"]["z"];
-    assert!((z["low"].as_f64().unwrap() + 4.515).abs() < 1e-3);
+    assert_abs_diff_eq!(z["low"].as_f64().unwrap(), -4.515, epsilon = 1e-3);
 }
 
 fn assert_refused(args: &[&str], must_mention: &[&str]) {
@@ -521,7 +510,7 @@ fn a_free_edge_correction_does_not_make_figures_consistent() {
 /// simulation row", which recheck does not run).
 #[test]
 fn too_few_points_say_what_helps() {
-    let dir = tempfile::tempdir().expect("tempdir");
+    let dir = tmp();
     let pts = dir.path().join("six.csv");
     std::fs::write(
         &pts,

@@ -3,10 +3,8 @@
 //! table-driven test. Input errors exit 2, name the file and say what to
 //! do; no case may panic or leave a report folder behind.
 
-#![allow(clippy::unwrap_used, missing_docs)]
-
+use crate::util::{bin, repo, stderr, stdout, tmp};
 use std::path::{Path, PathBuf};
-use std::process::Command;
 
 /// The clean seven-point file of the `GOOD` cases: a survey grid in metres
 /// with a false origin, so that it reads as projected without `--coords`
@@ -14,12 +12,12 @@ use std::process::Command;
 const GOOD: &str = "x,y\n512001,5600001\n512004,5600002\n512002,5600007\n512008,5600003\n512005,5600005\n512009,5600009\n512000,5600006\n";
 
 fn corpus() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("../../tests/bad-inputs")
+    repo().join("tests/bad-inputs")
 }
 
 #[test]
 fn every_case_in_the_corpus() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let good = dir.path().join("good.csv");
     std::fs::write(&good, GOOD).unwrap();
     let table = std::fs::read_to_string(corpus().join("cases.tsv")).unwrap();
@@ -37,16 +35,12 @@ fn every_case_in_the_corpus() {
             f => corpus().join(f),
         };
         let out = dir.path().join(format!("out-{k}"));
-        let mut cmd = Command::new(env!("CARGO_BIN_EXE_patternproof"));
+        let mut cmd = bin();
         cmd.arg("audit").arg(&file).current_dir(corpus());
         cmd.args(cols[1].split_whitespace());
         cmd.args(["--sims", "19", "--quiet", "--out"]).arg(&out);
         let o = cmd.output().unwrap();
-        let text = format!(
-            "{}{}",
-            String::from_utf8_lossy(&o.stdout),
-            String::from_utf8_lossy(&o.stderr)
-        );
+        let text = format!("{}{}", stdout(&o), stderr(&o));
         let want: i32 = cols[2].parse().unwrap();
         let mut problems = Vec::new();
         if o.status.code() != Some(want) {
@@ -95,12 +89,12 @@ fn every_case_in_the_corpus() {
 /// never.
 #[test]
 fn existing_folders_need_force() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let good = dir.path().join("good.csv");
     std::fs::write(&good, GOOD).unwrap();
     let out = dir.path().join("r");
     let run = |extra: &[&str], out: &Path| {
-        Command::new(env!("CARGO_BIN_EXE_patternproof"))
+        bin()
             .arg("audit")
             .arg(&good)
             .args(["--sims", "9", "--quiet", "--out"])
@@ -113,7 +107,7 @@ fn existing_folders_need_force() {
     let before = std::fs::read(out.join("report.json")).unwrap();
     let again = run(&["--seed", "2"], &out);
     assert_eq!(again.status.code(), Some(2));
-    assert!(String::from_utf8_lossy(&again.stderr).contains("--force"));
+    assert!(stderr(&again).contains("--force"));
     assert_eq!(
         std::fs::read(out.join("report.json")).unwrap(),
         before,

@@ -3,16 +3,11 @@
 //! the new one, whole, nothing of a user's is deleted, and no temporary
 //! `.patternproof-*` folder stays beside it.
 
-#![allow(clippy::unwrap_used, missing_docs)]
-
+use crate::util::{bin, stderr, tmp};
 use serde_json::Value;
 use std::collections::BTreeSet;
 use std::path::{Path, PathBuf};
 use std::process::{Child, Command, Output, Stdio};
-
-fn bin() -> Command {
-    Command::new(env!("CARGO_BIN_EXE_patternproof"))
-}
 
 /// `n` invented points, scattered by a fixed linear congruential sequence.
 fn points(dir: &Path, n: usize) -> PathBuf {
@@ -104,14 +99,14 @@ fn assert_whole(out: &Path, context: &str) -> u64 {
 /// and leaves every file as it was.
 #[test]
 fn force_leaves_a_user_s_folder_alone() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let pts = points(dir.path(), 60);
     let theirs = dir.path().join("theirs");
     std::fs::create_dir(&theirs).unwrap();
     std::fs::write(theirs.join("report.json"), "{\"mine\": true}").unwrap();
     std::fs::write(theirs.join("chapter-2.tex"), "draft").unwrap();
     let o = run(audit(&pts, &theirs, &["--force"]));
-    let e = String::from_utf8_lossy(&o.stderr);
+    let e = stderr(&o);
     assert_eq!(o.status.code(), Some(2), "{e}");
     assert!(
         e.contains(&theirs.display().to_string()) && e.contains("what to do"),
@@ -130,7 +125,7 @@ fn force_leaves_a_user_s_folder_alone() {
     assert!(run(audit(&pts, &out, &[])).status.success());
     std::fs::write(out.join("my-notes.md"), "keep").unwrap();
     let o = run(audit(&pts, &out, &["--force", "--seed", "7"]));
-    let e = String::from_utf8_lossy(&o.stderr);
+    let e = stderr(&o);
     assert_eq!(o.status.code(), Some(2), "{e}");
     assert!(e.contains("my-notes.md"), "{e}");
     assert_eq!(
@@ -151,7 +146,7 @@ fn force_leaves_a_user_s_folder_alone() {
 /// Issue 20: `--out .` is refused before anything is written.
 #[test]
 fn out_dot_is_refused_cleanly() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let pts = points(dir.path(), 60);
     let cwd = dir.path().join("work");
     std::fs::create_dir(&cwd).unwrap();
@@ -160,7 +155,7 @@ fn out_dot_is_refused_cleanly() {
         let mut c = audit(&pts, Path::new("."), if force { &["--force"] } else { &[] });
         c.current_dir(&cwd);
         let o = run(c);
-        let e = String::from_utf8_lossy(&o.stderr);
+        let e = stderr(&o);
         assert_eq!(o.status.code(), Some(2), "{e}");
         assert!(e.contains("what to do"), "{e}");
         assert_eq!(files(&cwd), ["report.json".to_string()].into());
@@ -213,7 +208,7 @@ mod signals {
     /// exit is 0 (too late to stop) or the signal's own.
     #[test]
     fn an_interrupt_leaves_the_old_or_the_new_report() {
-        let dir = tempfile::tempdir().unwrap();
+        let dir = tmp();
         let pts = points(dir.path(), 1000);
         let out = dir.path().join("out");
         assert!(run(audit(&pts, &out, &["--seed", "1000"])).status.success());
@@ -242,9 +237,9 @@ mod signals {
             assert!(
                 status.success() || by_signal,
                 "{context}: ended with {status:?}: {}",
-                String::from_utf8_lossy(&o.stderr)
+                stderr(&o)
             );
-            let stderr = String::from_utf8_lossy(&o.stderr);
+            let stderr = stderr(&o);
             if stderr.contains("while writing") || stderr.contains("already complete") {
                 stopped_while_writing += 1;
             }
@@ -264,7 +259,7 @@ mod signals {
     /// no temporary folder remains and `--out` holds a whole report.
     #[test]
     fn the_run_after_a_kill_repairs_the_leftovers() {
-        let dir = tempfile::tempdir().unwrap();
+        let dir = tmp();
         let pts = points(dir.path(), 1000);
         let out = dir.path().join("out");
         assert!(run(audit(&pts, &out, &["--seed", "1000"])).status.success());
@@ -297,7 +292,7 @@ mod signals {
                 );
             }
             let o = run(audit(&pts, &out, &["--force", "--seed", "500"]));
-            let e = String::from_utf8_lossy(&o.stderr);
+            let e = stderr(&o);
             assert!(o.status.success(), "trial {trial}: {:?} {e}", o.status);
             if !left.is_empty() {
                 repaired += 1;

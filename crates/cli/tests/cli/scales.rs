@@ -2,18 +2,14 @@
 //! folder, its JSON, determinism across thread counts, and refusals of
 //! bad input with exit code 2.
 
-#![allow(clippy::unwrap_used, missing_docs)]
-
-use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
-
-fn repo() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("../..")
-}
+use crate::util::{bin, repo, stderr, stdout, tmp};
+use approx::{abs_diff_eq, assert_abs_diff_eq, assert_relative_eq, relative_eq};
+use std::path::Path;
+use std::process::Output;
 
 fn scales(args: &[&str], out: &Path, threads: &str) -> Output {
     let root = repo();
-    Command::new(env!("CARGO_BIN_EXE_patternproof"))
+    bin()
         .arg("scales")
         .arg(root.join("demo-data/meadow-burrows.csv"))
         .arg("--boundary")
@@ -42,11 +38,11 @@ const SMALL: [&str; 10] = [
 
 #[test]
 fn demo_run_writes_the_folder_and_the_verdict() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let out = dir.path().join("scales");
     let o = scales(&SMALL, &out, "2");
-    let stdout = String::from_utf8_lossy(&o.stdout);
-    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let stdout = stdout(&o);
+    assert!(o.status.success(), "{}", stderr(&o));
     assert!(stdout.contains("Verdict (isotropic correction"), "{stdout}");
     assert!(stdout.contains("personal data"), "{stdout}");
     for f in [
@@ -64,8 +60,8 @@ fn demo_run_writes_the_folder_and_the_verdict() {
     let r = v["r"].as_array().unwrap();
     assert_eq!(r.len(), 8);
     assert_eq!(v["rmax"].as_f64(), Some(12.0));
-    assert!((r[7].as_f64().unwrap() - 12.0).abs() < 1e-12);
-    assert!((r[0].as_f64().unwrap() - 1.5).abs() < 1e-12);
+    assert_abs_diff_eq!(r[7].as_f64().unwrap(), 12.0, epsilon = 1e-12);
+    assert_abs_diff_eq!(r[0].as_f64().unwrap(), 1.5, epsilon = 1e-12);
     let ids: Vec<&str> = v["windows"]
         .as_array()
         .unwrap()
@@ -79,14 +75,19 @@ fn demo_run_writes_the_folder_and_the_verdict() {
         assert_eq!(t["correction"], "isotropic");
         let p = t["p"].as_f64().unwrap();
         // p is a rank p-value with 19 simulations: a multiple of 1/20.
-        assert!(((p * 20.0) - (p * 20.0).round()).abs() < 1e-9 && p > 0.0 && p <= 1.0);
+        assert!(abs_diff_eq!(p * 20.0, (p * 20.0).round(), epsilon = 1e-9) && p > 0.0 && p <= 1.0);
         // K of the isotropic curve is L² π at every distance.
         let c = &w["curves"][0];
         assert_eq!(c["correction"], "isotropic");
         for k in 0..8 {
             let kk = c["k"][k].as_f64().unwrap();
             let l = c["l"][k].as_f64().unwrap();
-            assert!((l * l * std::f64::consts::PI - kk).abs() < 1e-9 * kk.max(1.0));
+            assert_relative_eq!(
+                l * l * std::f64::consts::PI,
+                kk,
+                epsilon = 1e-9,
+                max_relative = 1e-9
+            );
         }
         assert_eq!(w["pairs"]["isotropic_capped"], 0);
     }
@@ -95,12 +96,12 @@ fn demo_run_writes_the_folder_and_the_verdict() {
     let verdict = v["verdicts"][0]["sentence"].as_str().unwrap();
     assert!(verdict.starts_with("clustered"), "{verdict}");
     let boundary = &v["windows"][4]["tests"][0];
-    assert!((boundary["p"].as_f64().unwrap() - 0.05).abs() < 1e-12);
+    assert_abs_diff_eq!(boundary["p"].as_f64().unwrap(), 0.05, epsilon = 1e-12);
 }
 
 #[test]
 fn same_bytes_for_one_and_two_threads() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let (a, b) = (dir.path().join("a"), dir.path().join("b"));
     let args = [
         "--sims",
@@ -127,7 +128,7 @@ fn same_bytes_for_one_and_two_threads() {
 
 #[test]
 fn bad_input_exits_2_with_advice() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let cases: [(&[&str], &str); 6] = [
         (&["--rmax", "-3"], "--rmax"),
         (&["--steps", "0"], "--steps"),
@@ -139,7 +140,7 @@ fn bad_input_exits_2_with_advice() {
     for (args, flag) in cases {
         let out = dir.path().join("never");
         let o = scales(args, &out, "1");
-        let e = String::from_utf8_lossy(&o.stderr);
+        let e = stderr(&o);
         assert_eq!(o.status.code(), Some(2), "{args:?}: {e}");
         assert!(
             e.contains(flag) && e.contains("what to do"),
@@ -149,13 +150,13 @@ fn bad_input_exits_2_with_advice() {
     }
     // A missing point file: exit 2 naming the file.
     let out = dir.path().join("never");
-    let o = Command::new(env!("CARGO_BIN_EXE_patternproof"))
+    let o = bin()
         .args(["scales", "no-such-file.csv", "--quiet", "--out"])
         .arg(&out)
         .output()
         .unwrap();
     assert_eq!(o.status.code(), Some(2));
-    assert!(String::from_utf8_lossy(&o.stderr).contains("no-such-file.csv"));
+    assert!(stderr(&o).contains("no-such-file.csv"));
 }
 
 /// Issue 20: `scales --sims 1000000000` used to abort on a 24 GB
@@ -164,10 +165,10 @@ fn bad_input_exits_2_with_advice() {
 /// 2, the estimate and the largest `--sims` that fits.
 #[test]
 fn a_billion_simulations_are_refused_up_front() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let out = dir.path().join("never");
     let o = scales(&["--sims", "1000000000"], &out, "2");
-    let e = String::from_utf8_lossy(&o.stderr);
+    let e = stderr(&o);
     assert_eq!(o.status.code(), Some(2), "{e}");
     for words in [
         "--sims 1000000000: the run needs about",
@@ -188,24 +189,24 @@ fn a_billion_simulations_are_refused_up_front() {
 /// α = 0.01), instead of a bare "no departure".
 #[test]
 fn too_few_simulations_for_alpha_are_named() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let mut args = SMALL.to_vec();
     args[1] = "5";
     let o = scales(&args, &dir.path().join("five"), "1");
-    let stdout = String::from_utf8_lossy(&o.stdout);
+    let printed = stdout(&o);
     assert!(o.status.success());
     assert!(
-        stdout.contains("5 simulations are too few for a test at α = 0.05")
-            && stdout.contains("1/6 = 0.167")
-            && stdout.contains("Use at least 19 (--sims 19)"),
-        "{stdout}"
+        printed.contains("5 simulations are too few for a test at α = 0.05")
+            && printed.contains("1/6 = 0.167")
+            && printed.contains("Use at least 19 (--sims 19)"),
+        "{printed}"
     );
     let o = scales(&SMALL, &dir.path().join("enough"), "1");
-    assert!(!String::from_utf8_lossy(&o.stdout).contains("too few"));
+    assert!(!stdout(&o).contains("too few"));
     args.extend(["--alpha", "0.01"]);
     args[1] = "98";
     let o = scales(&args, &dir.path().join("strict"), "1");
-    assert!(String::from_utf8_lossy(&o.stdout).contains("Use at least 99 (--sims 99)"));
+    assert!(stdout(&o).contains("Use at least 99 (--sims 99)"));
 }
 
 /// `audit --scales` runs the same K audit as `scales` with the audit's
@@ -214,7 +215,7 @@ fn too_few_simulations_for_alpha_are_named() {
 #[test]
 fn audit_with_scales_adds_the_same_k_audit() {
     let root = repo();
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let alone = dir.path().join("alone");
     let o = scales(
         &[
@@ -223,9 +224,9 @@ fn audit_with_scales_adds_the_same_k_audit() {
         &alone,
         "2",
     );
-    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    assert!(o.status.success(), "{}", stderr(&o));
     let joint = dir.path().join("joint");
-    let o = Command::new(env!("CARGO_BIN_EXE_patternproof"))
+    let o = bin()
         .arg("audit")
         .arg(root.join("demo-data/meadow-burrows.csv"))
         .arg("--boundary")
@@ -246,8 +247,8 @@ fn audit_with_scales_adds_the_same_k_audit() {
         .arg(&joint)
         .output()
         .unwrap();
-    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
-    let stdout = String::from_utf8_lossy(&o.stdout);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let stdout = stdout(&o);
     assert!(
         stdout.contains("Ripley's K across the same windows"),
         "{stdout}"
@@ -299,7 +300,7 @@ fn audit_with_scales_adds_the_same_k_audit() {
                     cj["k"][5 * k + 4].as_f64().unwrap(),
                 );
                 assert!(
-                    (x - y).abs() <= 1e-12 * x.abs(),
+                    relative_eq!(x, y, epsilon = 0.0, max_relative = 1e-12),
                     "{} {}: {x} vs {y}",
                     wa["id"],
                     ca["correction"]
@@ -338,19 +339,14 @@ fn audit_with_scales_adds_the_same_k_audit() {
 /// many fields as the header (read back with the `csv` crate).
 #[test]
 fn window_ids_with_commas_are_quoted_in_the_csv() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let odd = dir.path().join("north, \"upper\" field.wkt");
     std::fs::write(&odd, "POLYGON((0 0,160 0,160 160,0 160,0 0))").unwrap();
     let out = dir.path().join("out");
     let mut args: Vec<&str> = SMALL.to_vec();
     args.extend(["--boundary", odd.to_str().unwrap()]);
     let o = scales(&args, &out, "2");
-    assert_eq!(
-        o.status.code(),
-        Some(0),
-        "{}",
-        String::from_utf8_lossy(&o.stderr)
-    );
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
     let mut reader = csv::Reader::from_path(out.join("scales.csv")).unwrap();
     let width = reader.headers().unwrap().len();
     let mut ids = std::collections::BTreeSet::new();
@@ -368,7 +364,7 @@ fn window_ids_with_commas_are_quoted_in_the_csv() {
 /// r_max (a quarter of the shortest side) gets no such caution.
 #[test]
 fn an_rmax_beyond_every_window_is_named() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let caution = |out: &Path| -> bool {
         let v: serde_json::Value =
             serde_json::from_slice(&std::fs::read(out.join("scales.json")).unwrap()).unwrap();

@@ -1,18 +1,10 @@
 //! End-to-end tests: run the `patternproof` binary on small fixtures and on
 //! the demo data, and check exit codes, messages and the report folder.
 
-#![allow(clippy::unwrap_used)]
-
-use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
-
-fn bin() -> Command {
-    Command::new(env!("CARGO_BIN_EXE_patternproof"))
-}
-
-fn repo() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("../..")
-}
+use crate::util::{bin, repo, stderr, stdout, tmp, write};
+use approx::abs_diff_eq;
+use std::path::Path;
+use std::process::Output;
 
 fn audit(args: &[&str], out: &Path) -> Output {
     bin()
@@ -23,16 +15,6 @@ fn audit(args: &[&str], out: &Path) -> Output {
         .arg("--quiet")
         .output()
         .expect("binary runs")
-}
-
-fn write(dir: &Path, name: &str, text: &str) -> PathBuf {
-    let p = dir.join(name);
-    std::fs::write(&p, text).unwrap();
-    p
-}
-
-fn stderr(o: &Output) -> String {
-    String::from_utf8_lossy(&o.stderr).into_owned()
 }
 
 /// Bad input: exit 2, the message names the file, and no report folder.
@@ -65,7 +47,7 @@ fn grid_csv(k: usize) -> String {
 
 #[test]
 fn demo_data_gives_a_full_report() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let out = dir.path().join("rep");
     let r = repo();
     let o = audit(
@@ -115,7 +97,10 @@ fn demo_data_gives_a_full_report() {
         assert!(k <= n);
         let expected = (r - 1.0) * k.sqrt() * 0.5
             / ((4.0 - std::f64::consts::PI) / (4.0 * std::f64::consts::PI)).sqrt();
-        assert!((z - expected).abs() < 1e-9, "{z} vs {expected}");
+        assert!(
+            abs_diff_eq!(z, expected, epsilon = 1e-9),
+            "{z} vs {expected}"
+        );
     }
     let calls = &j["summary"]["calls"];
     let total = calls["clustered"].as_u64().unwrap()
@@ -150,7 +135,7 @@ fn demo_data_gives_a_full_report() {
 /// Same seed, same bytes, on one thread or two.
 #[test]
 fn same_seed_same_bytes_for_any_thread_count() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let pts = write(
         dir.path(),
         "p.csv",
@@ -183,21 +168,21 @@ fn same_seed_same_bytes_for_any_thread_count() {
 
 #[test]
 fn empty_file_is_refused() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let p = write(dir.path(), "empty.csv", "");
     assert_refused(&[p.to_str().unwrap()], dir.path(), &["empty.csv"]);
 }
 
 #[test]
 fn a_single_point_is_refused() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let p = write(dir.path(), "one.csv", "x,y\n3,4\n");
     assert_refused(&[p.to_str().unwrap()], dir.path(), &["one.csv", "two"]);
 }
 
 #[test]
 fn non_numeric_and_nan_coordinates_name_the_line() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let p = write(dir.path(), "bad.csv", "x,y\n1,2\n3,abc\n5,6\n");
     assert_refused(&[p.to_str().unwrap()], dir.path(), &["bad.csv", "line 3"]);
     let q = write(dir.path(), "nan.csv", "x,y\n1,2\n3,4\nNaN,6\n");
@@ -206,7 +191,7 @@ fn non_numeric_and_nan_coordinates_name_the_line() {
 
 #[test]
 fn lonlat_out_of_range_suggests_projected() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let p = write(dir.path(), "ll.csv", "lon,lat\n10,50\n200,50\n11,51\n");
     assert_refused(
         &[p.to_str().unwrap()],
@@ -217,7 +202,7 @@ fn lonlat_out_of_range_suggests_projected() {
 
 #[test]
 fn identical_or_collinear_points_are_refused_without_a_window() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let planar = ["--coords", "projected"];
     let p = write(dir.path(), "same.csv", "x,y\n1,1\n1,1\n1,1\n");
     assert_refused(
@@ -254,7 +239,7 @@ fn identical_or_collinear_points_are_refused_without_a_window() {
 
 #[test]
 fn duplicates_are_counted_kept_or_dropped() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let mut text = grid_csv(5);
     text.push_str("10,10\n20,20\n");
     let p = write(dir.path(), "dup.csv", &text);
@@ -289,7 +274,7 @@ fn duplicates_are_counted_kept_or_dropped() {
 
 #[test]
 fn invalid_boundary_is_refused() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let p = write(dir.path(), "g.csv", &grid_csv(4));
     let b = write(
         dir.path(),
@@ -311,7 +296,7 @@ fn invalid_boundary_is_refused() {
 
 #[test]
 fn points_outside_a_boundary_are_counted_and_flagged() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let p = write(dir.path(), "g.csv", &grid_csv(6));
     // Count by hand: grid values 0..50 step 10; inside [−1, 35] are 0, 10,
     // 20, 30 → 4 × 4 = 16 inside, 36 − 16 = 20 outside.
@@ -369,7 +354,7 @@ fn points_outside_a_boundary_are_counted_and_flagged() {
     );
     let md = std::fs::read_to_string(out.join("verdict.md")).unwrap();
     assert!(md.contains(caution), "{md}");
-    let terminal = String::from_utf8_lossy(&o.stdout);
+    let terminal = stdout(&o);
     assert!(terminal.contains(caution), "{terminal}");
 }
 
@@ -377,7 +362,7 @@ fn points_outside_a_boundary_are_counted_and_flagged() {
 /// no caution of its own.
 #[test]
 fn a_boundary_missing_a_few_points_gets_no_caution() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     // 21 × 21 = 441 points; the boundary misses the column x = 200 (21
     // points, 4.8 %).
     let p = write(dir.path(), "g.csv", &grid_csv(21));
@@ -408,7 +393,7 @@ fn a_boundary_missing_a_few_points_gets_no_caution() {
         .unwrap()
         .clone();
     assert_eq!(w["points_outside"], 21);
-    let terminal = String::from_utf8_lossy(&o.stdout);
+    let terminal = stdout(&o);
     assert!(!terminal.contains("leaves out"), "{terminal}");
 }
 
@@ -416,7 +401,7 @@ fn a_boundary_missing_a_few_points_gets_no_caution() {
 /// points), only simulation rows, and the headline says "small sample".
 #[test]
 fn tiny_samples_get_no_closed_form_rows_and_a_headline_caution() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let p = write(
         dir.path(),
         "three.csv",
@@ -445,7 +430,7 @@ fn tiny_samples_get_no_closed_form_rows_and_a_headline_caution() {
     }
     let verdict = j["summary"]["verdict"].as_str().unwrap();
     assert!(verdict.starts_with("small sample (n = 3)"), "{verdict}");
-    let terminal = String::from_utf8_lossy(&o.stdout);
+    let terminal = stdout(&o);
     assert!(
         terminal.contains("Verdict: small sample (n = 3)"),
         "{terminal}"
@@ -468,7 +453,7 @@ fn tiny_samples_get_no_closed_form_rows_and_a_headline_caution() {
     let out = dir.path().join("rep20");
     let o = audit(&[p.to_str().unwrap(), "--sims", "19"], &out);
     assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
-    let terminal = String::from_utf8_lossy(&o.stdout);
+    let terminal = stdout(&o);
     assert!(
         terminal.contains("Verdict: small sample (n = 20)"),
         "{terminal}"
@@ -487,7 +472,7 @@ fn tiny_samples_get_no_closed_form_rows_and_a_headline_caution() {
 
 #[test]
 fn geojson_without_crs_but_planar_values_asks_for_coords() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let p = write(
         dir.path(),
         "planar.geojson",
@@ -505,7 +490,7 @@ fn geojson_without_crs_but_planar_values_asks_for_coords() {
 
 #[test]
 fn a_foreign_out_folder_is_not_overwritten() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let p = write(dir.path(), "g.csv", &grid_csv(4));
     let mine = dir.path().join("mine");
     std::fs::create_dir(&mine).unwrap();
@@ -524,7 +509,7 @@ fn a_foreign_out_folder_is_not_overwritten() {
 
 #[test]
 fn bad_flags_exit_2() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let p = write(dir.path(), "g.csv", &grid_csv(4));
     assert_refused(
         &[p.to_str().unwrap(), "--alpha", "1.5"],
@@ -549,7 +534,7 @@ fn bad_flags_exit_2() {
 /// and the report names the filter beside the file.
 #[test]
 fn where_on_a_csv_equals_the_filtered_file() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let demo = std::fs::read_to_string(repo().join("demo-data/meadow-burrows.csv")).unwrap();
     let mut mixed = String::from("burrow,x,y,year\n");
     for (k, line) in demo.lines().skip(1).enumerate() {
@@ -591,7 +576,7 @@ fn shuffled_rows_give_the_same_report() {
     assert_ne!(shuffled, lines);
     let boundary = repo().join("demo-data/meadow-boundary.geojson");
     let run = |rows: &[&str], name: &str| {
-        let dir = tempfile::tempdir().unwrap();
+        let dir = tmp();
         let pts = write(
             dir.path(),
             "burrows.csv",
@@ -630,7 +615,7 @@ fn shuffled_rows_give_the_same_report() {
 /// parser's "unexpected argument '-1'", for every command.
 #[test]
 fn negative_numbers_reach_the_tools_own_checks() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let meadow = repo().join("demo-data/meadow-burrows.csv");
     let hare = repo().join("demo-data/marsh-hare-track.csv");
     let (meadow, hare) = (meadow.to_str().unwrap(), hare.to_str().unwrap());
@@ -737,7 +722,7 @@ fn negative_numbers_reach_the_tools_own_checks() {
 /// nothing but errors.
 #[test]
 fn every_command_says_how_it_read_the_points() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let meadow = repo().join("demo-data/meadow-burrows.csv");
     let meadow = meadow.to_str().unwrap();
     let plots = repo().join("demo-data/plots/plot-c.csv");
@@ -836,7 +821,7 @@ fn every_command_says_how_it_read_the_points() {
 /// available and the largest `--sims` that fits (no timing involved).
 #[test]
 fn a_billion_simulations_are_refused_up_front() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let points = repo().join("demo-data/meadow-burrows.csv");
     let args = [points.to_str().unwrap(), "--sims", "1000000000"];
     assert_refused(

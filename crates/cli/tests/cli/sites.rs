@@ -1,39 +1,19 @@
 //! End-to-end: `protocol new|show` and `sites` on the invented demo plots.
 
-#![allow(clippy::unwrap_used, missing_docs)]
-
+use crate::util::{bin, repo_arg, run, stderr, stdout, tmp};
 use serde_json::Value;
 use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
-
-fn bin(args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_patternproof"))
-        .args(args)
-        .output()
-        .expect("binary runs")
-}
-
-fn repo() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("../..")
-}
+use std::process::Output;
 
 fn plots() -> Vec<String> {
     ["a", "b", "c", "d", "e", "f"]
         .iter()
-        .map(|k| {
-            repo()
-                .join(format!("demo-data/plots/plot-{k}.csv"))
-                .display()
-                .to_string()
-        })
+        .map(|k| repo_arg(&format!("demo-data/plots/plot-{k}.csv")))
         .collect()
 }
 
 fn boundaries() -> String {
-    repo()
-        .join("demo-data/plots-boundaries.geojson")
-        .display()
-        .to_string()
+    repo_arg("demo-data/plots-boundaries.geojson")
 }
 
 fn new_protocol(dir: &Path, extra: &[&str]) -> PathBuf {
@@ -41,8 +21,8 @@ fn new_protocol(dir: &Path, extra: &[&str]) -> PathBuf {
     let p = dir.join("protocol.json");
     let mut args = vec!["protocol", "new", "--out", p.to_str().unwrap()];
     args.extend_from_slice(extra);
-    let o = bin(&args);
-    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let o = run(&args);
+    assert!(o.status.success(), "{}", stderr(&o));
     p
 }
 
@@ -59,25 +39,22 @@ fn sites(protocol: &Path, out: &Path, extra: &[&str]) -> Output {
     ];
     args.extend(extra.iter().map(|s| s.to_string()));
     args.extend(["--out".into(), out.display().to_string()]);
-    Command::new(env!("CARGO_BIN_EXE_patternproof"))
-        .args(&args)
-        .output()
-        .expect("binary runs")
+    bin().args(&args).output().expect("binary runs")
 }
 
 /// `show` verifies the hash; a hand edit is reported as a change (exit 2),
 /// and `sites` refuses the edited protocol without writing anything.
 #[test]
 fn protocol_show_detects_an_edit() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let p = new_protocol(dir.path(), &["--window", "hull+1nn", "--sims", "19"]);
-    let o = bin(&["protocol", "show", p.to_str().unwrap()]);
+    let o = run(&["protocol", "show", p.to_str().unwrap()]);
     assert!(o.status.success());
-    assert!(String::from_utf8_lossy(&o.stdout).contains("intact"));
+    assert!(stdout(&o).contains("intact"));
 
     // The same choices give the same hash in a second file.
     let q = dir.path().join("again.json");
-    let o = bin(&[
+    let o = run(&[
         "protocol",
         "new",
         "--window",
@@ -95,14 +72,14 @@ fn protocol_show_detects_an_edit() {
     assert_eq!(hash(&p), hash(&q));
 
     // Refuses to overwrite.
-    let o = bin(&["protocol", "new", "--out", p.to_str().unwrap()]);
+    let o = run(&["protocol", "new", "--out", p.to_str().unwrap()]);
     assert_eq!(o.status.code(), Some(2));
 
     let text = std::fs::read_to_string(&p).unwrap();
     std::fs::write(&p, text.replace("\"sims\": 19", "\"sims\": 18")).unwrap();
-    let o = bin(&["protocol", "show", p.to_str().unwrap()]);
+    let o = run(&["protocol", "show", p.to_str().unwrap()]);
     assert_eq!(o.status.code(), Some(2));
-    let e = String::from_utf8_lossy(&o.stderr);
+    let e = stderr(&o);
     assert!(e.contains("CHANGED") && e.contains("what to do"), "{e}");
 
     let out = dir.path().join("run");
@@ -128,7 +105,7 @@ fn protocol_show_detects_an_edit() {
     let refs: Vec<&str> = args.iter().map(String::as_str).collect();
     let o = sites(&few, &dir.path().join("few-run"), &refs);
     assert!(o.status.success());
-    assert!(String::from_utf8_lossy(&o.stdout).contains("no site can be significant"));
+    assert!(stdout(&o).contains("no site can be significant"));
 }
 
 /// The demo plots under a boundary protocol: the two plots built to be
@@ -136,7 +113,7 @@ fn protocol_show_detects_an_edit() {
 /// plot is listed with its reason, and every output carries the hash.
 #[test]
 fn demo_plots_flag_the_window_sensitive_ones() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let p = new_protocol(dir.path(), &["--window", "boundary", "--sims", "499"]);
     let hash = {
         let v: Value = serde_json::from_str(&std::fs::read_to_string(&p).unwrap()).unwrap();
@@ -152,7 +129,7 @@ fn demo_plots_flag_the_window_sensitive_ones() {
     ]);
     let refs: Vec<&str> = args.iter().map(String::as_str).collect();
     let o = sites(&p, &out, &refs);
-    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    assert!(o.status.success(), "{}", stderr(&o));
     let doc: Value =
         serde_json::from_str(&std::fs::read_to_string(out.join("sites.json")).unwrap()).unwrap();
     assert_eq!(doc["schema"], "patternproof.sites/1");
@@ -209,7 +186,7 @@ fn demo_plots_flag_the_window_sensitive_ones() {
 /// One file with a site column gives the same rows as one file per site.
 #[test]
 fn site_field_matches_one_file_per_site() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let p = new_protocol(
         dir.path(),
         &["--window", "hull", "--edge", "none", "--sims", "9"],
@@ -227,7 +204,7 @@ fn site_field_matches_one_file_per_site() {
     let run = |args: Vec<String>, out: &Path| -> Value {
         let refs: Vec<&str> = args.iter().map(String::as_str).collect();
         let o = sites(&p, out, &refs);
-        assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+        assert!(o.status.success(), "{}", stderr(&o));
         serde_json::from_str(&std::fs::read_to_string(out.join("sites.json")).unwrap()).unwrap()
     };
     let one = run(
@@ -270,7 +247,7 @@ fn site_field_matches_one_file_per_site() {
 /// A hostile site name is escaped in the run's page and gets a safe folder.
 #[test]
 fn hostile_site_name_is_escaped() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let p = new_protocol(
         dir.path(),
         &["--window", "hull", "--edge", "none", "--sims", "9"],
@@ -301,7 +278,7 @@ fn hostile_site_name_is_escaped() {
             "0",
         ],
     );
-    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    assert!(o.status.success(), "{}", stderr(&o));
     let html = std::fs::read_to_string(out.join("index.html")).unwrap();
     assert!(!html.contains("<script"));
     assert!(html.contains("&lt;script&gt;x&lt;/script&gt;"));
@@ -327,7 +304,7 @@ fn hostile_site_name_is_escaped() {
 /// cut and hashed, the full name stays in the outputs.
 #[test]
 fn a_very_long_site_name_gets_a_short_folder() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let p = new_protocol(
         dir.path(),
         &["--window", "hull", "--edge", "none", "--sims", "9"],
@@ -356,7 +333,7 @@ fn a_very_long_site_name_gets_a_short_folder() {
             "0",
         ],
     );
-    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    assert!(o.status.success(), "{}", stderr(&o));
     let mut folders: Vec<String> = std::fs::read_dir(out.join("site"))
         .unwrap()
         .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
@@ -388,7 +365,7 @@ fn a_very_long_site_name_gets_a_short_folder() {
 /// no output folder, instead of "0 site(s) tested" and exit 0.
 #[test]
 fn boundary_protocol_without_matching_boundaries_is_refused() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let p = new_protocol(dir.path(), &["--window", "boundary", "--sims", "19"]);
     let mut args = plots();
     args.truncate(3);
@@ -396,7 +373,7 @@ fn boundary_protocol_without_matching_boundaries_is_refused() {
     let out = dir.path().join("none");
     let o = sites(&p, &out, &refs);
     assert_eq!(o.status.code(), Some(2));
-    let e = String::from_utf8_lossy(&o.stderr);
+    let e = stderr(&o);
     assert!(
         e.contains("no --boundaries file") && e.contains("what to do"),
         "{e}"
@@ -415,7 +392,7 @@ fn boundary_protocol_without_matching_boundaries_is_refused() {
     let out = dir.path().join("unmatched");
     let o = sites(&p, &out, &refs);
     assert_eq!(o.status.code(), Some(2));
-    let e = String::from_utf8_lossy(&o.stderr);
+    let e = stderr(&o);
     assert!(
         e.contains("--boundary-field") && e.contains("what to do"),
         "{e}"
@@ -428,7 +405,7 @@ fn boundary_protocol_without_matching_boundaries_is_refused() {
 /// recomputed so that it looks intact, is still refused on every read.
 #[test]
 fn protocol_content_is_validated_on_read() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let p = new_protocol(dir.path(), &["--edge", "none", "--sims", "0"]);
     let text = std::fs::read_to_string(&p).unwrap();
     let mut v: Value = serde_json::from_str(&text).unwrap();
@@ -444,16 +421,16 @@ fn protocol_content_is_validated_on_read() {
         .insert("sha256".into(), Value::String(hash));
     let edited = dir.path().join("edited.json");
     std::fs::write(&edited, serde_json::to_string_pretty(&v).unwrap()).unwrap();
-    let o = bin(&["protocol", "show", edited.to_str().unwrap()]);
+    let o = run(&["protocol", "show", edited.to_str().unwrap()]);
     assert_eq!(o.status.code(), Some(2));
-    assert!(String::from_utf8_lossy(&o.stderr).contains("needs sims above 0"));
+    assert!(stderr(&o).contains("needs sims above 0"));
     let mut args = plots();
     args.truncate(2);
     let refs: Vec<&str> = args.iter().map(String::as_str).collect();
     let out = dir.path().join("run");
     let o = sites(&edited, &out, &refs);
     assert_eq!(o.status.code(), Some(2));
-    assert!(String::from_utf8_lossy(&o.stderr).contains("needs sims above 0"));
+    assert!(stderr(&o).contains("needs sims above 0"));
     assert!(!out.exists());
 }
 
@@ -469,7 +446,7 @@ fn sha2_hex(bytes: &[u8]) -> String {
 /// the numbers look like and which flag answers; no folder is written.
 #[test]
 fn degree_like_plots_ask_how_to_read_them() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let p = new_protocol(dir.path(), &["--sims", "9"]);
     let out = dir.path().join("run");
     let mut args = vec![
@@ -479,11 +456,8 @@ fn degree_like_plots_ask_how_to_read_them() {
     ];
     args.extend(plots());
     args.extend(["--out".into(), out.display().to_string()]);
-    let o = Command::new(env!("CARGO_BIN_EXE_patternproof"))
-        .args(&args)
-        .output()
-        .unwrap();
-    let e = String::from_utf8_lossy(&o.stderr);
+    let o = bin().args(&args).output().unwrap();
+    let e = stderr(&o);
     assert_eq!(o.status.code(), Some(2), "{e}");
     for want in [
         "plot-a.csv",
@@ -504,7 +478,7 @@ fn degree_like_plots_ask_how_to_read_them() {
 /// fits, before any site runs.
 #[test]
 fn a_billion_sweep_simulations_are_refused_up_front() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let p = new_protocol(dir.path(), &["--window", "boundary", "--sims", "99"]);
     let out = dir.path().join("run");
     let mut args = plots();
@@ -516,7 +490,7 @@ fn a_billion_sweep_simulations_are_refused_up_front() {
     ]);
     let refs: Vec<&str> = args.iter().map(String::as_str).collect();
     let o = sites(&p, &out, &refs);
-    let e = String::from_utf8_lossy(&o.stderr);
+    let e = stderr(&o);
     assert_eq!(o.status.code(), Some(2), "{e}");
     for words in [
         "--sweep-sims 1000000000: the run needs about",
@@ -535,20 +509,20 @@ fn a_billion_sweep_simulations_are_refused_up_front() {
 /// last value (the one a JSON reader keeps) leaves the hash unchanged.
 #[test]
 fn protocol_with_a_bom_reads_and_a_repeated_key_is_refused() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let p = new_protocol(dir.path(), &["--window", "hull", "--sims", "19"]);
     let text = std::fs::read_to_string(&p).unwrap();
     std::fs::write(&p, format!("\u{feff}{text}")).unwrap();
-    let o = bin(&["protocol", "show", p.to_str().unwrap()]);
-    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
-    assert!(String::from_utf8_lossy(&o.stdout).contains("intact"));
+    let o = run(&["protocol", "show", p.to_str().unwrap()]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert!(stdout(&o).contains("intact"));
 
     let twice = text.replacen("\"alpha\": 0.05", "\"alpha\": 0.5,\n  \"alpha\": 0.05", 1);
     assert_ne!(twice, text);
     std::fs::write(&p, twice).unwrap();
-    let o = bin(&["protocol", "show", p.to_str().unwrap()]);
+    let o = run(&["protocol", "show", p.to_str().unwrap()]);
     assert_eq!(o.status.code(), Some(2));
-    let e = String::from_utf8_lossy(&o.stderr);
+    let e = stderr(&o);
     assert!(
         e.contains("line 8, column 9: the key `alpha` appears twice") && e.contains("what to do"),
         "{e}"
@@ -561,7 +535,7 @@ fn protocol_with_a_bom_reads_and_a_repeated_key_is_refused() {
 /// points repeats an earlier one.
 #[test]
 fn sites_prints_the_warnings_of_each_input() {
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     let p = new_protocol(dir.path(), &["--window", "hull", "--sims", "19"]);
     let text = std::fs::read_to_string(&plots()[2]).unwrap();
     let mut lines = text.lines();
@@ -580,8 +554,8 @@ fn sites_prints_the_warnings_of_each_input() {
         &out,
         &[a.as_str(), twice.to_str().unwrap(), "--sweep-sims", "0"],
     );
-    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
-    let e = String::from_utf8_lossy(&o.stderr);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let e = stderr(&o);
     let want = format!(
         "patternproof: warning: {}: {} point(s) repeat an earlier point exactly",
         twice.display(),

@@ -6,8 +6,8 @@
 //! sets themselves are stored there too, so both sides see the same
 //! coordinates. Rebuild with `reference/regenerate.sh`.
 
-#![allow(clippy::unwrap_used, missing_docs)]
-
+use crate::util::{assert_rel, read, repo, tmp};
+use approx::abs_diff_eq;
 use std::f64::consts::PI;
 
 use patternproof_audit::window::{WindowOptions, build_windows};
@@ -16,9 +16,7 @@ use patternproof_core::Xy;
 use serde_json::Value;
 
 fn values() -> Value {
-    let path = concat!(env!("CARGO_MANIFEST_DIR"), "/../../reference/values.json");
-    let text = std::fs::read_to_string(path).unwrap_or_else(|e| panic!("read {path}: {e}"));
-    serde_json::from_str(&text).unwrap()
+    serde_json::from_str(&read(&repo().join("reference/values.json"))).unwrap()
 }
 
 fn f(v: &Value) -> f64 {
@@ -32,14 +30,6 @@ fn points(set: &Value) -> Vec<Xy> {
         .iter()
         .map(|p| [f(&p[0]), f(&p[1])])
         .collect()
-}
-
-fn assert_rel(what: &str, got: f64, want: f64, rel: f64) {
-    let err = (got - want).abs() / want.abs().max(f64::MIN_POSITIVE);
-    assert!(
-        err <= rel,
-        "{what}: got {got}, reference {want}, relative error {err:e} > {rel:e}"
-    );
 }
 
 fn mean_nn(pts: &[Xy]) -> f64 {
@@ -150,7 +140,7 @@ fn buffered_hull_matches_steiner_and_shapely() {
             // (reference library, version in values.json).
             let shapely_area = f(&b["shapely_area"]);
             assert!(
-                (w.area - shapely_area).abs() <= slack + 1e-9,
+                abs_diff_eq!(w.area, shapely_area, epsilon = slack + 1e-9),
                 "{name} hull+{d}: area {} vs shapely {shapely_area}, slack {slack}",
                 w.area
             );
@@ -177,7 +167,7 @@ fn normal_p_values_match_scipy() {
     // Reference: scipy.stats.norm.isf(0.025) (reference library, version in values.json).
     let crit = patternproof_core::normal::two_sided_critical(f(&n["critical_alpha"])).unwrap();
     assert!(
-        (crit - f(&n["critical"])).abs() <= 1e-9,
+        abs_diff_eq!(crit, f(&n["critical"]), epsilon = 1e-9),
         "critical value: got {crit}, scipy {}",
         f(&n["critical"])
     );
@@ -281,18 +271,18 @@ fn simulated_null_matches_numpy_in_a_holed_window() {
     let want = f(&s["mean_of_means"]);
     eprintln!("mean of simulated means: ours {ours}, numpy {want}, tolerance {tol}");
     assert!(
-        (ours - want).abs() < tol,
+        abs_diff_eq!(ours, want, epsilon = tol),
         "ours {ours}, numpy {want}, tolerance {tol}"
     );
     let below = means.iter().filter(|&&x| x <= f(&s["q025"])).count() as f64 / k as f64;
     let above = means.iter().filter(|&&x| x >= f(&s["q975"])).count() as f64 / k as f64;
     let btol = 4.0 * (2.0 * 0.025 * 0.975 / k as f64).sqrt();
     assert!(
-        (below - 0.025).abs() < btol,
+        abs_diff_eq!(below, 0.025, epsilon = btol),
         "share below numpy's 2.5 % quantile: {below}"
     );
     assert!(
-        (above - 0.025).abs() < btol,
+        abs_diff_eq!(above, 0.025, epsilon = btol),
         "share above numpy's 97.5 % quantile: {above}"
     );
 }
@@ -311,7 +301,10 @@ fn multitest_adjustment_matches_statsmodels() {
         let got = adjust.apply(&p);
         assert_eq!(got.len(), want.len());
         for (g, w) in got.iter().zip(&want) {
-            assert!((g - w).abs() <= 1e-12, "{key}: {got:?} vs {want:?}");
+            assert!(
+                abs_diff_eq!(g, w, epsilon = 1e-12),
+                "{key}: {got:?} vs {want:?}"
+            );
         }
     }
 }
@@ -352,7 +345,7 @@ fn lonlat_patterns_match_geodesic_distances_and_areas() {
     use geo::{Area, ConvexHull, MultiPoint, Point};
     const R: f64 = 6_371_008.8;
     let v = values();
-    let dir = tempfile::tempdir().unwrap();
+    let dir = tmp();
     for pattern in v["geodesic_patterns"].as_array().unwrap() {
         let name = pattern["name"].as_str().unwrap();
         let pts = points(pattern);
