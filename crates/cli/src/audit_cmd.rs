@@ -82,10 +82,7 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
         a.quiet,
         "simulating CSR",
     );
-    let audit =
-        run_audit(&data.points, &shapes, &options, &|| progress.tick()).ok_or_else(|| {
-            Failure::Internal("the sweep could not start although the input was checked".into())
-        })?;
+    let audit = run_audit(&data.points, &shapes, &options, &|| progress.tick())?;
     progress.finish();
     if !audit.results.iter().any(|r| r.p.is_some()) {
         let hint = if !audit.windows.is_empty()
@@ -378,8 +375,7 @@ pub fn gpkg_choice(
         boundary_layer,
         filter: filter
             .map(patternproof_io::geopackage::parse_filter)
-            .transpose()
-            .map_err(Failure::Input)?,
+            .transpose()?,
     })
 }
 

@@ -223,22 +223,8 @@ pub fn run(a: &DensityArgs) -> Result<(), Failure> {
             "pass a study area with --boundary, or check the coordinates",
         ));
     }
-    let analysis = analyse(&data.points, &window, &config).map_err(|e| {
-        let todo = match e {
-            patternproof_density::DensityError::TooManyCells(_)
-            | patternproof_density::DensityError::EmptyWindow => {
-                "choose a --cell suited to the window's size"
-            }
-            patternproof_density::DensityError::LcvFailed(_) => {
-                "drop lcv from --bandwidths for this kernel, or use the gaussian kernel"
-            }
-            patternproof_density::DensityError::NoMass { .. } => {
-                "pass a --cell of at most half the bandwidth, or drop that bandwidth"
-            }
-            _ => "check the point file and the window",
-        };
-        bad(&points_name, e.to_string(), todo)
-    })?;
+    let analysis = analyse(&data.points, &window, &config)
+        .map_err(|e| bad(&points_name, e.to_string(), crate::fail::density_hint(&e)))?;
     let mut command = vec!["patternproof".to_string()];
     command.extend(
         std::env::args_os()

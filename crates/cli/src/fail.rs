@@ -43,8 +43,37 @@ impl fmt::Display for Failure {
     }
 }
 
+/// Every kind of input error is a problem with the user's files or
+/// options: exit 2, with the file, the place and the hint the reader wrote.
 impl From<patternproof_io::InputError> for Failure {
     fn from(e: patternproof_io::InputError) -> Self {
         Failure::Input(e.to_string())
+    }
+}
+
+/// The readers refuse too few points and non-finite coordinates with the
+/// file and line, and the flags refuse α outside (0, 1): a sweep that
+/// still refuses its input means a check is missing, so every kind is a
+/// bug (exit 1).
+impl From<patternproof_audit::AuditError> for Failure {
+    fn from(e: patternproof_audit::AuditError) -> Self {
+        use patternproof_audit::AuditError as E;
+        match e {
+            E::Alpha { .. } | E::TooFewPoints { .. } | E::NotFinite { .. } => Failure::Internal(
+                format!("the sweep could not start although the input was checked ({e})"),
+            ),
+        }
+    }
+}
+
+/// What to do about a density analysis that cannot be done (exit 2: each
+/// kind follows from the points, the window or the flags).
+pub fn density_hint(e: &patternproof_density::DensityError) -> &'static str {
+    use patternproof_density::DensityError as E;
+    match e {
+        E::TooManyCells(_) | E::EmptyWindow => "choose a --cell suited to the window's size",
+        E::LcvFailed(_) => "drop lcv from --bandwidths for this kernel, or use the gaussian kernel",
+        E::NoMass { .. } => "pass a --cell of at most half the bandwidth, or drop that bandwidth",
+        E::TooFewPoints(_) | E::Degenerate => "check the point file and the window",
     }
 }

@@ -126,13 +126,7 @@ pub fn run(a: &RecheckArgs) -> Result<(), Failure> {
                 .get(Quantity::Area)
                 .filter(|r| r.bound == Bound::Rounded)
                 .map(|r| r.value);
-            let audit = run_audit(&d.points, &named_shapes(d), &sweep_options(area), &|| {})
-                .ok_or_else(|| {
-                    Failure::Input(format!(
-                        "{}: the sweep needs at least two points\n  what to do: check the point file",
-                        d.points_file.display()
-                    ))
-                })?;
+            let audit = run_audit(&d.points, &named_shapes(d), &sweep_options(area), &|| {})?;
             let n = d.points.len();
             if n < MIN_N_ANALYTIC && !audit.results.iter().any(|r| r.p.is_some()) {
                 // A boundary would not help here (and recheck runs no
