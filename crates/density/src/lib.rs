@@ -440,6 +440,57 @@ mod tests {
         );
     }
 
+    /// Two refusals that follow from the window and the kernel: a band
+    /// 0.001 wide along the diagonal, on 1-unit cells whose centres lie
+    /// at y − x = j − i − 0.4995 (the raster is centred on the band's
+    /// box), holds no cell centre; and a uniform disc kernel gives the one
+    /// point 3000 units from a 5 × 4 cluster no neighbour at any bandwidth
+    /// of the cross-validation grid: Scott's σ·n^(−1/6) is 278.5 (by hand
+    /// from the 21 points), 557 as a disc radius (canonical ratio
+    /// (16/π)^(1/6) / (1/4π)^(1/6) = 2), and the grid ends at 2² × 557 ≈
+    /// 2230 < 3000.
+    #[test]
+    fn an_empty_raster_and_a_failed_cross_validation_name_their_kind() {
+        let ring = |c: Vec<(f64, f64)>| {
+            MultiPolygon::new(vec![geo::Polygon::new(geo::LineString::from(c), vec![])])
+        };
+        let config = |kernel: Kernel, bandwidth: BandwidthSpec, cell: f64| Config {
+            kernels: vec![kernel],
+            bandwidths: vec![bandwidth],
+            edges: vec![Edge::None],
+            levels: vec![0.5],
+            cell: Some(cell),
+            reference: (kernel, bandwidth, Edge::None),
+            unit: "m".into(),
+        };
+        let band = ring(vec![
+            (0.0, 0.0),
+            (100.0, 100.0),
+            (100.0, 100.001),
+            (0.0, 0.001),
+            (0.0, 0.0),
+        ]);
+        let on_band = [[10.0, 10.0005], [50.0, 50.0005]];
+        let fixed = BandwidthSpec::Fixed(2.0);
+        let e = analyse(&on_band, &band, &config(Kernel::Gaussian, fixed, 1.0)).unwrap_err();
+        assert_eq!(e, DensityError::EmptyWindow);
+
+        let field = ring(vec![
+            (0.0, 0.0),
+            (4000.0, 0.0),
+            (4000.0, 4000.0),
+            (0.0, 4000.0),
+            (0.0, 0.0),
+        ]);
+        let mut points: Vec<Xy> = (0..20)
+            .map(|k| [10.0 + (k % 5) as f64, 10.0 + (k / 5) as f64])
+            .collect();
+        points.push([3010.0, 10.0]);
+        let lcv = config(Kernel::Uniform, BandwidthSpec::Lcv, 10.0);
+        let e = analyse(&points, &field, &lcv).unwrap_err();
+        assert_eq!(e, DensityError::LcvFailed(Kernel::Uniform));
+    }
+
     /// Issue 20: a kernel whose height 1/h² overflows (h = 10⁻³⁰⁰) or
     /// underflows (h = 10³⁰⁰) leaves no finite mass on the raster; the run
     /// stops naming the surface instead of reporting isopleth areas of 0.
