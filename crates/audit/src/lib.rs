@@ -6,6 +6,7 @@
 //! | [`window`] | builds the study-area variants (`bbox`, `hull`, `hull+D`, `concave`, `boundary`, `area`) |
 //! | [`cover`] | which points a window covers: geo's point-in-polygon answer from edges bucketed by height |
 //! | [`edge`] | the edge-handling choices as one enum |
+//! | [`error`] | why the sweep cannot start, with the number involved |
 //! | [`sampling`] | exact uniform points in a polygon with holes (for simulations) |
 //! | [`streams`] | per-simulation random streams derived from one seed |
 //! | [`simulation`] | CSR patterns in a window and the statistics taken on each |
@@ -21,6 +22,7 @@
 pub mod cover;
 pub mod curves;
 pub mod edge;
+pub mod error;
 pub mod flip;
 pub mod robustness;
 pub mod sampling;
@@ -32,5 +34,6 @@ mod test_shapes;
 pub mod window;
 
 pub use edge::Edge;
+pub use error::AuditError;
 pub use sweep::{Audit, AuditOptions, ResultRow, run_audit};
 pub use window::{BufferRule, Window, WindowKind};

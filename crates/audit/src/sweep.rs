@@ -8,6 +8,7 @@
 //! number that does not mean anything.
 
 use crate::edge::Edge;
+use crate::error::AuditError;
 use crate::flip::{FlipEntry, flip_entries};
 use crate::robustness::{Summary, summarise};
 use crate::sampling::Sampler;
@@ -210,15 +211,27 @@ impl Audit {
     }
 }
 
-/// Run the sweep. `None` when fewer than two points are given or α is not
-/// in (0, 1). `tick` is called once per simulated pattern (progress bars).
+/// Run the sweep. Refused ([`AuditError`]) when α is not in (0, 1), fewer
+/// than two points are given or a coordinate is not finite. `tick` is
+/// called once per simulated pattern (progress bars).
 pub fn run_audit(
     points: &[Xy],
     boundaries: &[NamedShape],
     options: &AuditOptions,
     tick: &(dyn Fn() + Sync),
-) -> Option<Audit> {
-    let z_crit = two_sided_critical(options.alpha)?;
+) -> Result<Audit, AuditError> {
+    let alpha = options.alpha;
+    let z_crit = two_sided_critical(alpha).ok_or(AuditError::Alpha { alpha })?;
+    let n = points.len();
+    if n < 2 {
+        return Err(AuditError::TooFewPoints { n });
+    }
+    if let Some(index) = points
+        .iter()
+        .position(|p| !(p[0].is_finite() && p[1].is_finite()))
+    {
+        return Err(AuditError::NotFinite { index });
+    }
     // Work in coordinates centred on the data: UTM-sized values (~5·10⁶ m)
     // would otherwise cost digits in areas, buffers and outline distances.
     // The origin is a whole number near the data, so the shift is exact.
@@ -235,8 +248,9 @@ pub fn run_audit(
         })
         .collect();
     let points = &local[..];
-    let all_distances = nearest_distances(points)?;
-    let all_nn = mean(&all_distances)?;
+    // Two finite points or more always have distances: the checks above.
+    let all_distances = nearest_distances(points).ok_or(AuditError::TooFewPoints { n })?;
+    let all_nn = mean(&all_distances).ok_or(AuditError::TooFewPoints { n })?;
     let (mut windows, notes) = build_windows(points, all_nn, &local_boundaries, &options.windows);
     let guard = options.guard.unwrap_or(all_nn);
     let mut results = Vec::new();
@@ -265,7 +279,7 @@ pub fn run_audit(
         }
     }
     let summary = summarise(&results, &windows, points.len(), options.alpha);
-    Some(Audit {
+    Ok(Audit {
         n: points.len(),
         mean_nn: all_nn,
         z_crit,

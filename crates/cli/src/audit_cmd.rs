@@ -310,8 +310,7 @@ pub fn gpkg_choice(
         boundary_layer,
         filter: filter
             .map(patternproof_io::geopackage::parse_filter)
-            .transpose()
-            .map_err(Failure::Input)?,
+            .transpose()?,
     })
 }
 

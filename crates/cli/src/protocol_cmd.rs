@@ -87,7 +87,7 @@ fn new(a: &NewArgs) -> Result<(), Failure> {
     let window = WindowRule::parse(&a.window).map_err(|e| {
         usage(
             "--window",
-            e,
+            e.to_string(),
             "use hull, hull+25, hull+1nn, bbox, boundary or concave",
         )
     })?;

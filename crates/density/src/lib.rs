@@ -52,21 +52,37 @@ pub struct Config {
     pub unit: String,
 }
 
-/// Why an analysis cannot be done.
-#[derive(Debug, Clone, PartialEq)]
+/// Why an analysis cannot be done. Each variant is one kind of problem,
+/// with the numbers involved.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
 pub enum DensityError {
     /// Fewer than two points inside the window.
+    #[error("only {0} point(s) inside the window; a density surface needs at least 2")]
     TooFewPoints(usize),
     /// The window has no area or no cell centre inside it.
+    #[error("the window has no area at this cell size (no cell centre inside it)")]
     EmptyWindow,
     /// The raster would be too large.
+    #[error("the raster would have {0} cells (at most {max} allowed)", max = grid::MAX_CELLS)]
     TooManyCells(usize),
     /// The points do not spread in both directions.
+    #[error(
+        "the points have no spread (all at one place or on one line through a single coordinate), so Scott's rule gives no bandwidth"
+    )]
     Degenerate,
     /// Cross-validation found no bandwidth with a finite likelihood.
+    #[error(
+        "likelihood cross-validation with the {} kernel found no bandwidth on its grid at which every point has a neighbour",
+        .0.name()
+    )]
     LcvFailed(Kernel),
     /// A surface puts no mass on any cell: its kernel falls between the
     /// cell centres, so it has no isopleths.
+    #[error(
+        "the {surface} surface (bandwidth {}) puts no mass on any cell of {}: the kernel falls between the cell centres, so it has no isopleths and its areas would read 0",
+        sig(*bandwidth, 4),
+        sig(*cell, 4)
+    )]
     NoMass {
         /// `kernel bandwidth-spec`, as the warnings name it.
         surface: String,
@@ -76,47 +92,6 @@ pub enum DensityError {
         cell: f64,
     },
 }
-
-impl std::fmt::Display for DensityError {
-    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        match self {
-            DensityError::TooFewPoints(n) => write!(
-                f,
-                "only {n} point(s) inside the window; a density surface needs at least 2"
-            ),
-            DensityError::EmptyWindow => write!(
-                f,
-                "the window has no area at this cell size (no cell centre inside it)"
-            ),
-            DensityError::TooManyCells(n) => write!(
-                f,
-                "the raster would have {n} cells (at most {} allowed)",
-                grid::MAX_CELLS
-            ),
-            DensityError::Degenerate => write!(
-                f,
-                "the points have no spread (all at one place or on one line through a single coordinate), so Scott's rule gives no bandwidth"
-            ),
-            DensityError::LcvFailed(k) => write!(
-                f,
-                "likelihood cross-validation with the {} kernel found no bandwidth on its grid at which every point has a neighbour",
-                k.name()
-            ),
-            DensityError::NoMass {
-                surface,
-                bandwidth,
-                cell,
-            } => write!(
-                f,
-                "the {surface} surface (bandwidth {}) puts no mass on any cell of {}: the kernel falls between the cell centres, so it has no isopleths and its areas would read 0",
-                sig(*bandwidth, 4),
-                sig(*cell, 4)
-            ),
-        }
-    }
-}
-
-impl std::error::Error for DensityError {}
 
 /// One isopleth level of one surface.
 #[derive(Debug, Clone)]
@@ -426,6 +401,95 @@ pub fn analyse(
 #[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
     use super::*;
+
+    /// The refusals that follow from the points or the flags, each from a
+    /// natural input: one point inside, every point at one place (Scott's
+    /// σ is 0), and a cell so small that the 30 × 30 window needs
+    /// (30 / 0.001 + 2)² = 900 120 004 cells.
+    #[test]
+    fn refusals_name_their_kind_and_numbers() {
+        let square = MultiPolygon::new(vec![geo::Polygon::new(
+            geo::LineString::from(vec![
+                (0.0, 0.0),
+                (30.0, 0.0),
+                (30.0, 30.0),
+                (0.0, 30.0),
+                (0.0, 0.0),
+            ]),
+            vec![],
+        )]);
+        let config = |cell: f64| Config {
+            kernels: vec![Kernel::Gaussian],
+            bandwidths: vec![BandwidthSpec::Fixed(2.0)],
+            edges: vec![Edge::None],
+            levels: vec![0.5],
+            cell: Some(cell),
+            reference: (Kernel::Gaussian, BandwidthSpec::Fixed(2.0), Edge::None),
+            unit: "m".into(),
+        };
+        let e = analyse(&[[5.0, 5.0], [50.0, 5.0]], &square, &config(1.0)).unwrap_err();
+        assert_eq!(e, DensityError::TooFewPoints(1));
+        let e = analyse(&[[5.0, 5.0], [5.0, 5.0]], &square, &config(1.0)).unwrap_err();
+        assert_eq!(e, DensityError::Degenerate);
+        let spread = [[5.0, 5.0], [12.0, 20.0], [25.0, 9.0]];
+        let e = analyse(&spread, &square, &config(0.001)).unwrap_err();
+        assert_eq!(e, DensityError::TooManyCells(900_120_004));
+        assert_eq!(
+            e.to_string(),
+            "the raster would have 900120004 cells (at most 16000000 allowed)"
+        );
+    }
+
+    /// Two refusals that follow from the window and the kernel: a band
+    /// 0.001 wide along the diagonal, on 1-unit cells whose centres lie
+    /// at y − x = j − i − 0.4995 (the raster is centred on the band's
+    /// box), holds no cell centre; and a uniform disc kernel gives the one
+    /// point 3000 units from a 5 × 4 cluster no neighbour at any bandwidth
+    /// of the cross-validation grid: Scott's σ·n^(−1/6) is 278.5 (by hand
+    /// from the 21 points), 557 as a disc radius (canonical ratio
+    /// (16/π)^(1/6) / (1/4π)^(1/6) = 2), and the grid ends at 2² × 557 ≈
+    /// 2230 < 3000.
+    #[test]
+    fn an_empty_raster_and_a_failed_cross_validation_name_their_kind() {
+        let ring = |c: Vec<(f64, f64)>| {
+            MultiPolygon::new(vec![geo::Polygon::new(geo::LineString::from(c), vec![])])
+        };
+        let config = |kernel: Kernel, bandwidth: BandwidthSpec, cell: f64| Config {
+            kernels: vec![kernel],
+            bandwidths: vec![bandwidth],
+            edges: vec![Edge::None],
+            levels: vec![0.5],
+            cell: Some(cell),
+            reference: (kernel, bandwidth, Edge::None),
+            unit: "m".into(),
+        };
+        let band = ring(vec![
+            (0.0, 0.0),
+            (100.0, 100.0),
+            (100.0, 100.001),
+            (0.0, 0.001),
+            (0.0, 0.0),
+        ]);
+        let on_band = [[10.0, 10.0005], [50.0, 50.0005]];
+        let fixed = BandwidthSpec::Fixed(2.0);
+        let e = analyse(&on_band, &band, &config(Kernel::Gaussian, fixed, 1.0)).unwrap_err();
+        assert_eq!(e, DensityError::EmptyWindow);
+
+        let field = ring(vec![
+            (0.0, 0.0),
+            (4000.0, 0.0),
+            (4000.0, 4000.0),
+            (0.0, 4000.0),
+            (0.0, 0.0),
+        ]);
+        let mut points: Vec<Xy> = (0..20)
+            .map(|k| [10.0 + (k % 5) as f64, 10.0 + (k / 5) as f64])
+            .collect();
+        points.push([3010.0, 10.0]);
+        let lcv = config(Kernel::Uniform, BandwidthSpec::Lcv, 10.0);
+        let e = analyse(&points, &field, &lcv).unwrap_err();
+        assert_eq!(e, DensityError::LcvFailed(Kernel::Uniform));
+    }
 
     /// Issue 20: a kernel whose height 1/h² overflows (h = 10⁻³⁰⁰) or
     /// underflows (h = 10³⁰⁰) leaves no finite mass on the raster; the run

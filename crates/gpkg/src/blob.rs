@@ -27,7 +27,6 @@ use geo_traits::{
     CoordTrait, GeometryTrait, GeometryType, LineStringTrait, MultiPointTrait, MultiPolygonTrait,
     PointTrait, PolygonTrait,
 };
-use std::fmt;
 
 /// The two magic bytes, "GP".
 pub const MAGIC: [u8; 2] = *b"GP";
@@ -47,10 +46,12 @@ pub struct Header {
     pub wkb_offset: usize,
 }
 
-/// Why a blob could not be read.
-#[derive(Debug, Clone, PartialEq)]
+/// Why a blob could not be read. Each variant is one kind of problem,
+/// with the bytes or numbers involved.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
 pub enum BlobError {
     /// Fewer bytes than the header needs.
+    #[error("the geometry blob has {len} bytes, its header alone needs {need}")]
     TooShort {
         /// Bytes present.
         len: usize,
@@ -58,49 +59,30 @@ pub enum BlobError {
         need: usize,
     },
     /// The first two bytes are not "GP".
+    #[error(
+        "the geometry blob starts with bytes {:#04x} {:#04x}, not the GeoPackage magic \"GP\"",
+        .0[0],
+        .0[1]
+    )]
     Magic([u8; 2]),
     /// A version other than 0 (version 1).
+    #[error(
+        "the geometry blob has header version {0}; only version 0 (GeoPackage binary version 1) is defined"
+    )]
     Version(u8),
     /// Envelope code 5, 6 or 7.
+    #[error("the geometry blob's envelope code is {0}; the GeoPackage standard defines 0 to 4")]
     EnvelopeCode(u8),
     /// The X flag: an extension's binary format, not WKB.
+    #[error("the geometry blob uses an extension's own binary format (flag X set), not WKB")]
     Extended,
     /// The WKB after the header is malformed.
+    #[error("the WKB geometry is malformed ({0})")]
     Wkb(String),
     /// Bytes left over after the WKB geometry.
+    #[error("{0} byte(s) follow the end of the WKB geometry")]
     Trailing(usize),
 }
-
-impl fmt::Display for BlobError {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        match self {
-            BlobError::TooShort { len, need } => write!(
-                f,
-                "the geometry blob has {len} bytes, its header alone needs {need}"
-            ),
-            BlobError::Magic(m) => write!(
-                f,
-                "the geometry blob starts with bytes {:#04x} {:#04x}, not the GeoPackage magic \"GP\"",
-                m[0], m[1]
-            ),
-            BlobError::Version(v) => write!(
-                f,
-                "the geometry blob has header version {v}; only version 0 (GeoPackage binary version 1) is defined"
-            ),
-            BlobError::EnvelopeCode(c) => write!(
-                f,
-                "the geometry blob's envelope code is {c}; the GeoPackage standard defines 0 to 4"
-            ),
-            BlobError::Extended => f.write_str(
-                "the geometry blob uses an extension's own binary format (flag X set), not WKB",
-            ),
-            BlobError::Wkb(e) => write!(f, "the WKB geometry is malformed ({e})"),
-            BlobError::Trailing(n) => write!(f, "{n} byte(s) follow the end of the WKB geometry"),
-        }
-    }
-}
-
-impl std::error::Error for BlobError {}
 
 /// Decode the header (not the WKB).
 pub fn header(bytes: &[u8]) -> Result<Header, BlobError> {
@@ -543,7 +525,7 @@ mod tests {
         assert!(matches!(decode(&b).unwrap().shape, Some(Shape::Points(p)) if p.len() == 2));
         // A member in big-endian order inside a little-endian MultiPoint.
         b[38] = 0;
-        assert!(decode(&b).is_err());
+        assert!(matches!(decode(&b), Err(BlobError::Wkb(_))));
     }
 
     #[test]

@@ -141,18 +141,27 @@ pub struct Feature {
     pub value: Option<String>,
 }
 
-/// Why a GeoPackage could not be read.
-#[derive(Debug, Clone, PartialEq)]
+/// Why a GeoPackage could not be read. Each variant is one kind of
+/// problem, with the names and numbers involved.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
 pub enum GpkgError {
+    /// The file does not exist.
+    #[error("cannot read the file ({0})")]
+    NotFound(String),
     /// The file could not be read at all.
+    #[error("cannot read the file ({0})")]
     Io(String),
     /// The file is not an SQLite database.
+    #[error("not a GeoPackage: {0}")]
     NotSqlite(String),
     /// SQLite could open it but it lacks the GeoPackage tables.
+    #[error("not a GeoPackage: {0}")]
     NotGeoPackage(String),
     /// A query failed (a damaged file, usually).
+    #[error("the GeoPackage could not be read ({0})")]
     Sql(String),
     /// No feature layer has this name.
+    #[error("there is no feature layer named `{name}`{}", layers_note(layers))]
     NoSuchLayer {
         /// The name asked for.
         name: String,
@@ -160,6 +169,7 @@ pub enum GpkgError {
         layers: Vec<Layer>,
     },
     /// The layer has no column of this name.
+    #[error("layer `{layer}` has no column named `{column}` (columns: {})", columns.join(", "))]
     NoSuchColumn {
         /// The layer.
         layer: String,
@@ -169,6 +179,7 @@ pub enum GpkgError {
         columns: Vec<String>,
     },
     /// The catalogue names something the file does not hold.
+    #[error("layer `{layer}`: {problem}")]
     BrokenLayer {
         /// The layer.
         layer: String,
@@ -177,6 +188,11 @@ pub enum GpkgError {
     },
     /// The queries on the file used up their step budget: a layer is a
     /// view over an endless (or very slow) query.
+    #[error(
+        "{} did not finish within {} million SQLite steps, far more than reading a plain table of this file's size needs (the query may never end)",
+        step_subject(layer.as_deref(), *view),
+        budget / 1_000_000
+    )]
     TooManySteps {
         /// The layer being read, when known.
         layer: Option<String>,
@@ -186,6 +202,7 @@ pub enum GpkgError {
         budget: u64,
     },
     /// One feature's geometry blob is malformed.
+    #[error("layer `{layer}`, feature fid {fid}: {problem}")]
     Geometry {
         /// The layer.
         layer: String,
@@ -196,57 +213,23 @@ pub enum GpkgError {
     },
 }
 
-impl fmt::Display for GpkgError {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        match self {
-            GpkgError::Io(e) => write!(f, "cannot read the file ({e})"),
-            GpkgError::NotSqlite(why) => write!(f, "not a GeoPackage: {why}"),
-            GpkgError::NotGeoPackage(why) => write!(f, "not a GeoPackage: {why}"),
-            GpkgError::Sql(e) => write!(f, "the GeoPackage could not be read ({e})"),
-            GpkgError::NoSuchLayer { name, layers } => {
-                write!(f, "there is no feature layer named `{name}`")?;
-                if layers.is_empty() {
-                    write!(f, " (the file holds no feature layer)")
-                } else {
-                    write!(f, "; the layers are {}", list(layers))
-                }
-            }
-            GpkgError::NoSuchColumn {
-                layer,
-                column,
-                columns,
-            } => write!(
-                f,
-                "layer `{layer}` has no column named `{column}` (columns: {})",
-                columns.join(", ")
-            ),
-            GpkgError::BrokenLayer { layer, problem } => write!(f, "layer `{layer}`: {problem}"),
-            GpkgError::TooManySteps {
-                layer,
-                view,
-                budget,
-            } => {
-                match (layer, view) {
-                    (Some(l), true) => write!(f, "layer `{l}` is a view whose query")?,
-                    (Some(l), false) => write!(f, "reading layer `{l}`")?,
-                    (None, _) => write!(f, "reading the file's catalogue")?,
-                }
-                write!(
-                    f,
-                    " did not finish within {} million SQLite steps, far more than reading a plain table of this file's size needs (the query may never end)",
-                    budget / 1_000_000
-                )
-            }
-            GpkgError::Geometry {
-                layer,
-                fid,
-                problem,
-            } => write!(f, "layer `{layer}`, feature fid {fid}: {problem}"),
-        }
+/// The end of the missing-layer message: what the file holds instead.
+fn layers_note(layers: &[Layer]) -> String {
+    if layers.is_empty() {
+        " (the file holds no feature layer)".to_string()
+    } else {
+        format!("; the layers are {}", list(layers))
     }
 }
 
-impl std::error::Error for GpkgError {}
+/// What ran out of steps, as the message's subject.
+fn step_subject(layer: Option<&str>, view: bool) -> String {
+    match (layer, view) {
+        (Some(l), true) => format!("layer `{l}` is a view whose query"),
+        (Some(l), false) => format!("reading layer `{l}`"),
+        (None, _) => "reading the file's catalogue".to_string(),
+    }
+}
 
 /// The layers as one line for messages.
 pub fn list(layers: &[Layer]) -> String {
@@ -305,7 +288,10 @@ pub fn looks_like_sqlite(path: &Path) -> bool {
 impl GeoPackage {
     /// Open read-only and check that the GeoPackage tables are there.
     pub fn open(path: &Path) -> Result<Self, GpkgError> {
-        let meta = std::fs::metadata(path).map_err(|e| GpkgError::Io(e.to_string()))?;
+        let meta = std::fs::metadata(path).map_err(|e| match e.kind() {
+            std::io::ErrorKind::NotFound => GpkgError::NotFound(e.to_string()),
+            _ => GpkgError::Io(e.to_string()),
+        })?;
         if !meta.is_file() {
             return Err(GpkgError::Io("not a regular file".into()));
         }
@@ -651,6 +637,23 @@ mod tests {
         .unwrap();
         conn.execute_batch(sql_text).unwrap();
         f
+    }
+
+    /// A missing path, a folder and a text file each stop with their own
+    /// kind before SQLite is asked, in the words the readers print.
+    #[test]
+    fn files_that_are_not_geopackages_name_their_kind() {
+        let dir = tempfile::tempdir().unwrap();
+        let e = GeoPackage::open(&dir.path().join("missing.gpkg")).unwrap_err();
+        assert!(matches!(&e, GpkgError::NotFound(_)), "{e:?}");
+        assert!(e.to_string().starts_with("cannot read the file ("), "{e}");
+        let e = GeoPackage::open(dir.path()).unwrap_err();
+        assert_eq!(e, GpkgError::Io("not a regular file".into()));
+        assert_eq!(e.to_string(), "cannot read the file (not a regular file)");
+        let text = dir.path().join("points.gpkg");
+        std::fs::write(&text, "x,y\n1,2\n").unwrap();
+        let e = GeoPackage::open(&text).unwrap_err();
+        assert!(matches!(&e, GpkgError::NotSqlite(_)), "{e:?}");
     }
 
     /// Issue 20: a feature layer that is a view over an endless recursive

@@ -6,7 +6,7 @@
 //! `name` property of a single feature, else the file stem.
 
 use crate::coords::CoordSystem;
-use crate::error::{InputError, read_text};
+use crate::error::{InputError, InputErrorKind, read_text};
 use crate::points::{declared_lonlat, is_geojson, legacy_crs};
 use geo::{Geometry, MultiPolygon, Polygon};
 use geojson::GeoJson;
@@ -34,6 +34,7 @@ pub fn read_boundary(path: &Path) -> Result<RawBoundary, InputError> {
     let text = read_text(path)?;
     if text.trim().is_empty() {
         return Err(InputError::new(
+            InputErrorKind::Empty,
             path,
             "the boundary file is empty",
             "give a GeoJSON Polygon/MultiPolygon or WKT POLYGON text",
@@ -70,6 +71,7 @@ fn polygons_of(
                 _ => "another geometry type",
             };
             return Err(InputError::new(
+                InputErrorKind::BadGeometry,
                 path,
                 format!("a boundary must be polygons, this holds {kind}"),
                 "give the study area as a Polygon or MultiPolygon (close the ring: first point = last point)",
@@ -89,6 +91,7 @@ fn geojson_polygons(
 ) -> Result<(), InputError> {
     let g: Geometry<f64> = Geometry::try_from(geometry).map_err(|e| {
         InputError::new(
+            InputErrorKind::BadGeometry,
             path,
             format!("cannot read the geometry ({e})"),
             "check the polygon's rings",
@@ -100,6 +103,7 @@ fn geojson_polygons(
 
 fn no_geometry(path: &Path, place: &str) -> InputError {
     InputError::new(
+        InputErrorKind::BadGeometry,
         path,
         "the feature has no geometry",
         "remove it or give it a Polygon",
@@ -177,6 +181,7 @@ fn first_unclosed<'a, P: PartialEq + 'a>(
 
 fn unclosed_error(path: &Path, place: &str, (p, r, n): (usize, usize, usize)) -> InputError {
     InputError::new(
+        InputErrorKind::BadGeometry,
         path,
         unclosed_ring(p, r, n),
         "repeat the first position at the end of the ring; if the export was cut short, export it again",
@@ -236,7 +241,7 @@ fn check_wkt_rings(path: &Path, w: &wkt::Wkt<f64>) -> Result<(), InputError> {
 
 fn read_geojson(path: &Path, text: &str, stem: String) -> Result<RawBoundary, InputError> {
     let gj: GeoJson = text.parse().map_err(|e| {
-        InputError::new(path, format!("not valid GeoJSON ({e})"), "check the file against RFC 7946; polygon rings need at least four positions, first = last")
+        InputError::new(InputErrorKind::Malformed, path, format!("not valid GeoJSON ({e})"), "check the file against RFC 7946; polygon rings need at least four positions, first = last")
     })?;
     crate::points::refuse_repeated_keys(path, text)?;
     let declared = declared_system(legacy_crs(&gj));
@@ -273,6 +278,7 @@ fn read_geojson(path: &Path, text: &str, stem: String) -> Result<RawBoundary, In
     }
     if polys.is_empty() {
         return Err(InputError::new(
+            InputErrorKind::Empty,
             path,
             "the file holds no polygon",
             "give at least one Polygon or MultiPolygon feature",
@@ -294,6 +300,7 @@ fn read_geojson(path: &Path, text: &str, stem: String) -> Result<RawBoundary, In
 fn read_wkt(path: &Path, text: &str, stem: String) -> Result<RawBoundary, InputError> {
     let unreadable = |e: &dyn std::fmt::Display| {
         InputError::new(
+            InputErrorKind::Malformed,
             path,
             format!("not readable as WKT ({e})"),
             "write the boundary as POLYGON ((x y, x y, ...)) or MULTIPOLYGON (...), or use GeoJSON",
@@ -308,6 +315,7 @@ fn read_wkt(path: &Path, text: &str, stem: String) -> Result<RawBoundary, InputE
             let line = text[..end].matches('\n').count() + 1;
             let shown: String = rest.chars().take(40).collect();
             return Err(InputError::new(
+                InputErrorKind::Malformed,
                 path,
                 format!("text follows the first geometry, which ends on line {line}: `{shown}`"),
                 "a WKT boundary file holds one geometry: put several polygons into one MULTIPOLYGON (or give each its own --boundary file), and remove anything else",
@@ -362,6 +370,7 @@ pub fn read_named_boundaries(path: &Path, field: &str) -> Result<Vec<RawBoundary
     let text = read_text(path)?;
     let gj: GeoJson = text.parse().map_err(|e| {
         InputError::new(
+            InputErrorKind::Malformed,
             path,
             format!("not valid GeoJSON ({e})"),
             "give a FeatureCollection of Polygon/MultiPolygon features, each with the site's name in a property",
@@ -370,6 +379,7 @@ pub fn read_named_boundaries(path: &Path, field: &str) -> Result<Vec<RawBoundary
     crate::points::refuse_repeated_keys(path, &text)?;
     let GeoJson::FeatureCollection(fc) = gj else {
         return Err(InputError::new(
+            InputErrorKind::Malformed,
             path,
             "site boundaries must be a FeatureCollection",
             "put one Polygon/MultiPolygon feature per site in a FeatureCollection",
@@ -385,6 +395,7 @@ pub fn read_named_boundaries(path: &Path, field: &str) -> Result<Vec<RawBoundary
             Some(serde_json::Value::Number(n)) => n.to_string(),
             _ => {
                 return Err(InputError::new(
+                    InputErrorKind::MissingValue,
                     path,
                     format!("the feature has no `{field}` property naming its site"),
                     format!("give every feature a `{field}` property, or choose another with --boundary-field"),
@@ -400,6 +411,7 @@ pub fn read_named_boundaries(path: &Path, field: &str) -> Result<Vec<RawBoundary
     }
     if out.is_empty() {
         return Err(InputError::new(
+            InputErrorKind::Empty,
             path,
             "the file holds no site boundary",
             "add one Polygon feature per site",
@@ -440,7 +452,9 @@ mod tests {
     #[test]
     fn lines_are_not_boundaries() {
         let f = file(".wkt", "LINESTRING (0 0, 1 1)");
-        assert!(read_boundary(f.path()).unwrap_err().what.contains("lines"));
+        let e = read_boundary(f.path()).unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::BadGeometry, "{e}");
+        assert!(e.what.contains("lines"), "{e}");
     }
 
     /// Site boundaries refuse an unclosed ring as a single boundary does
@@ -456,6 +470,7 @@ mod tests {
               {"type":"Feature","properties":{"name":"b"},"geometry":{"type":"Polygon","coordinates":[[[5,0],[9,0],[9,4],[5,4]]]}}]}"#,
         );
         let e = read_named_boundaries(f.path(), "name").unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::BadGeometry, "{e}");
         assert!(e.what.contains("not closed"), "{}", e.what);
         assert_eq!(e.location.as_deref(), Some("feature 2"));
     }
@@ -467,6 +482,7 @@ mod tests {
     fn wkt_refuses_unclosed_rings_like_geojson() {
         let f = file(".wkt", "POLYGON ((0 0, 10 0, 10 10, 0 10))");
         let e = read_boundary(f.path()).unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::BadGeometry, "{e}");
         assert_eq!(e.location.as_deref(), Some("WKT text"));
         assert!(
             e.what
@@ -479,6 +495,7 @@ mod tests {
             "MULTIPOLYGON (((0 0, 10 0, 10 10, 0 10, 0 0)), ((20 0, 30 0, 30 10, 20 10, 20 0), (22 2, 24 2, 24 4, 22 4)))",
         );
         let e = read_boundary(f.path()).unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::BadGeometry, "{e}");
         assert!(
             e.what.contains("polygon 2, ring 2 (hole 1) is not closed"),
             "{}",
@@ -486,18 +503,16 @@ mod tests {
         );
         // Closed but with three positions: not a ring either.
         let f = file(".wkt", "POLYGON ((0 0, 10 0, 0 0))");
-        assert!(
-            read_boundary(f.path())
-                .unwrap_err()
-                .what
-                .contains("at least four")
-        );
+        let e = read_boundary(f.path()).unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::BadGeometry, "{e}");
+        assert!(e.what.contains("at least four"), "{e}");
         // The same ring as GeoJSON gets the same words.
         let g = file(
             ".geojson",
             r#"{"type":"Polygon","coordinates":[[[0,0],[10,0],[10,10],[0,10]]]}"#,
         );
         let e = read_boundary(g.path()).unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::BadGeometry, "{e}");
         assert!(
             e.what
                 .contains("polygon 1, ring 1 (the outer ring) is not closed (4 positions"),
@@ -517,6 +532,7 @@ mod tests {
             &format!("{square}\nPOLYGON ((20 0, 30 0, 30 10, 20 0))\n"),
         );
         let e = read_boundary(f.path()).unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::Malformed, "{e}");
         assert!(
             e.what
                 .contains("text follows the first geometry, which ends on line 1: `POLYGON ((20 0"),
@@ -525,12 +541,9 @@ mod tests {
         );
         assert!(e.hint.contains("MULTIPOLYGON"));
         let f = file(".wkt", "POLYGON EMPTY the meadow");
-        assert!(
-            read_boundary(f.path())
-                .unwrap_err()
-                .what
-                .contains("`the meadow`")
-        );
+        let e = read_boundary(f.path()).unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::Malformed, "{e}");
+        assert!(e.what.contains("`the meadow`"), "{e}");
         let f = file(".wkt", &format!("  {square}  \n\n"));
         assert_eq!(read_boundary(f.path()).unwrap().shape.0.len(), 1);
         let f = file(

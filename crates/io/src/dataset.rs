@@ -10,7 +10,7 @@ use crate::coords::{
     Basis, CoordChoice, CoordSystem, MEAN_RADIUS_M, Projection, in_lat_range, in_lon_range,
     plane_distortion, spherical_centre,
 };
-use crate::error::InputError;
+use crate::error::{InputError, InputErrorKind};
 use crate::geopackage::{self, GpkgChoice, is_geopackage};
 use crate::points::read_points;
 use geo::Intersects;
@@ -122,6 +122,7 @@ impl Dataset {
         } else {
             if options.gpkg.layer.is_some() {
                 return Err(InputError::new(
+                    InputErrorKind::Option,
                     points_file,
                     "--layer applies to GeoPackage (.gpkg) input only",
                     "leave it out for CSV and GeoJSON point files",
@@ -153,6 +154,7 @@ impl Dataset {
         let n_read = raw.coords.len();
         if n_read == 0 {
             return Err(InputError::new(
+                InputErrorKind::Empty,
                 points_file,
                 "the file holds no points",
                 "add at least two points (the nearest-neighbour test needs pairs)",
@@ -188,6 +190,7 @@ impl Dataset {
                 for (c, place) in raw.coords.iter().zip(&raw.places) {
                     if !in_lon_range(c[0]) || !in_lat_range(c[1]) {
                         return Err(InputError::new(
+                            InputErrorKind::BadCoordinate,
                             points_file,
                             format!("({}, {}) is outside the lon/lat range (lon −180..180, lat −90..90)", c[0], c[1]),
                             "if these are planar coordinates (metres on a local grid, UTM…), pass --coords projected",
@@ -199,7 +202,7 @@ impl Dataset {
                 let mut planar = Vec::with_capacity(n_read);
                 for (c, place) in raw.coords.iter().zip(&raw.places) {
                     planar.push(projection.forward(c[0], c[1]).ok_or_else(|| {
-                        InputError::new(points_file, format!("cannot project ({}, {})", c[0], c[1]), "check the coordinate; points near the antipode of the data centre cannot be projected").at(place.to_string())
+                        InputError::new(InputErrorKind::Projection, points_file, format!("cannot project ({}, {})", c[0], c[1]), "check the coordinate; points near the antipode of the data centre cannot be projected").at(place.to_string())
                     })?);
                 }
                 if options.unit != "m" {
@@ -243,6 +246,7 @@ impl Dataset {
         };
         if points.len() < 2 {
             return Err(InputError::new(
+                InputErrorKind::TooFewPoints,
                 points_file,
                 format!("only {} distinct point(s) to analyse", points.len()),
                 "the nearest-neighbour test needs at least two points",
@@ -263,6 +267,7 @@ impl Dataset {
         if options.gpkg.boundary_layer.is_some() && !boundary_files.iter().any(|f| is_geopackage(f))
         {
             return Err(InputError::new(
+                InputErrorKind::Option,
                 points_file,
                 "--boundary-layer was given but no --boundary file is a GeoPackage",
                 "give the boundary as --boundary FILE.gpkg --boundary-layer NAME, or leave --boundary-layer out",
@@ -280,6 +285,7 @@ impl Dataset {
                     && !geopackage::same_system(a, b)
                 {
                     return Err(InputError::new(
+                        InputErrorKind::CoordSystem,
                         file,
                         format!(
                             "layer `{}` is in {} but the points are in {}",
@@ -309,6 +315,7 @@ impl Dataset {
                 .any(|p| b.shape.intersects(&geo::Point::new(p[0], p[1])))
             {
                 return Err(InputError::new(
+                    InputErrorKind::NoOverlap,
                     file,
                     format!("the boundary covers none of the {} points", points.len()),
                     "check that the boundary and the points use the same coordinate system and belong to the same site",
@@ -362,6 +369,7 @@ impl Dataset {
 fn check_unit_name(unit: &str) -> Result<(), InputError> {
     if unit.trim().is_empty() || unit.chars().any(char::is_control) || unit.chars().count() > 40 {
         return Err(InputError::new(
+            InputErrorKind::Option,
             Path::new("--unit"),
             format!(
                 "`{}` is not a unit name (it is printed beside every distance and area)",
@@ -455,6 +463,7 @@ fn equal_area_plane(
     let split = "analyse each region on its own (split the file), or project the points to a planar system that suits them and pass --coords projected";
     let Some(centre) = spherical_centre(coords) else {
         return Err(InputError::new(
+            InputErrorKind::Projection,
             file,
             "the points are spread evenly around the globe, so no single equal-area plane can be centred on them",
             split,
@@ -471,6 +480,7 @@ fn equal_area_plane(
     );
     if centre.reach > 90.0 {
         return Err(InputError::new(
+            InputErrorKind::Projection,
             file,
             format!(
                 "the points spread over more than a hemisphere: one lies {at}, where the equal-area plane would distort distances by {:.0} %",
@@ -494,6 +504,7 @@ fn equal_area_plane(
     }
     Projection::centred_at(centre.lon, centre.lat).ok_or_else(|| {
         InputError::new(
+            InputErrorKind::Projection,
             file,
             "cannot set up the equal-area projection for these points",
             "check that the coordinates are lon/lat in degrees",
@@ -546,6 +557,7 @@ fn check_not_degrees(file: &Path, basis: &Basis, points: &[[f64; 2]]) -> Result<
         }
     }
     Err(InputError::new(
+        InputErrorKind::CoordSystem,
         file,
         format!(
             "the coordinates are read as projected metres because {}, but every x lies within −180..180 and every y within −90..90 (x {}..{}, y {}..{}), as longitude and latitude do",
@@ -584,10 +596,10 @@ fn planar_boundary(
 ) -> Result<Boundary, InputError> {
     match (raw.declared, system) {
         (Some(CoordSystem::Projected), CoordSystem::LonLat) => {
-            return Err(InputError::new(file, "the boundary declares projected coordinates but the points are lon/lat", "give the boundary in the same coordinates as the points"));
+            return Err(InputError::new(InputErrorKind::CoordSystem, file, "the boundary declares projected coordinates but the points are lon/lat", "give the boundary in the same coordinates as the points"));
         }
         (Some(CoordSystem::LonLat), CoordSystem::Projected) if choice == CoordChoice::Auto && raw.stated => {
-            return Err(InputError::new(file, "the boundary declares lon/lat coordinates but the points are projected", "give the boundary in the same coordinates as the points (reproject it in a GIS), or say how to read both with --coords"));
+            return Err(InputError::new(InputErrorKind::CoordSystem, file, "the boundary declares lon/lat coordinates but the points are projected", "give the boundary in the same coordinates as the points (reproject it in a GIS), or say how to read both with --coords"));
         }
         (Some(CoordSystem::LonLat), CoordSystem::Projected) if choice == CoordChoice::Auto => warnings.push(format!(
             "{}: GeoJSON without a 'crs' member is lon/lat by RFC 7946, but the points are projected; the boundary is read in the points' planar coordinates",
@@ -620,6 +632,7 @@ fn planar_boundary(
             });
             if let Some((x, y)) = bad.get() {
                 return Err(InputError::new(
+                    InputErrorKind::Projection,
                     file,
                     format!("vertex ({x}, {y}) is not a projectable lon/lat"),
                     "give the boundary in lon/lat degrees like the points",
@@ -630,6 +643,7 @@ fn planar_boundary(
     };
     if let Err(problem) = crate::validity::check(&shape) {
         return Err(InputError::new(
+            InputErrorKind::BadGeometry,
             file,
             format!("the boundary is not a valid polygon: {problem}"),
             "repair it in a GIS (close rings, remove self-intersections, keep holes inside their shell) and try again",
@@ -637,6 +651,7 @@ fn planar_boundary(
     }
     if !(shape.unsigned_area() > 0.0) {
         return Err(InputError::new(
+            InputErrorKind::BadGeometry,
             file,
             "the boundary has zero area",
             "give a polygon that encloses the study area",
@@ -714,6 +729,7 @@ mod reading_tests {
     fn degree_like_numbers_under_planar_names_ask_how_to_read_them() {
         let small = file(".csv", "x,y\n12.5,45.1\n12.6,45.2\n12.7,45.0\n");
         let e = load(&small, CoordChoice::Auto, "m").unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::CoordSystem, "{e}");
         assert!(
             e.what.contains("because the CSV columns are named x,y"),
             "{}",
@@ -734,12 +750,9 @@ mod reading_tests {
         let d = load(&small, CoordChoice::LonLat, "m").unwrap();
         assert_eq!(d.system, CoordSystem::LonLat);
         let en = file(".csv", "easting;northing\n1;2\n3;4\n");
-        assert!(
-            load(&en, CoordChoice::Auto, "m")
-                .unwrap_err()
-                .what
-                .contains("named easting,northing")
-        );
+        let e = load(&en, CoordChoice::Auto, "m").unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::CoordSystem, "{e}");
+        assert!(e.what.contains("named easting,northing"), "{e}");
         // One number out of range is enough to read them as planar.
         let far = file(".csv", "x,y\n12.5,45.1\n12.6,95.2\n");
         assert!(load(&far, CoordChoice::Auto, "m").is_ok());
@@ -767,6 +780,7 @@ mod reading_tests {
         );
         for bad in ["", "  ", "m\nfake", &"u".repeat(41)] {
             let e = load(&f, CoordChoice::Auto, bad).unwrap_err();
+            assert_eq!(e.kind, InputErrorKind::Option, "{e}");
             assert_eq!(e.file, Path::new("--unit"));
             assert!(e.what.contains("is not a unit name"), "{}", e.what);
         }
@@ -838,6 +852,7 @@ mod reading_tests {
             )
         };
         let e = load(&stated).unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::CoordSystem, "{e}");
         assert!(
             e.what
                 .contains("declares lon/lat coordinates but the points are projected"),
@@ -909,9 +924,11 @@ mod reading_tests {
 
         let globe = file(".csv", "lon,lat\n0,0\n120,0\n-120,0\n0,60\n");
         let e = load(&globe, CoordChoice::Auto, "m").unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::Projection, "{e}");
         assert!(e.what.contains("more than a hemisphere"), "{}", e.what);
         let even = file(".csv", "lon,lat\n0,0\n180,0\n");
         let e = load(&even, CoordChoice::Auto, "m").unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::Projection, "{e}");
         assert!(
             e.what.contains("spread evenly around the globe"),
             "{}",

@@ -22,7 +22,7 @@
 
 use crate::boundary::{RawBoundary, add_part};
 use crate::coords::{Basis, CoordChoice, CoordSystem, Projection};
-use crate::error::InputError;
+use crate::error::{InputError, InputErrorKind};
 use crate::points::{Place, RawPoints, epsg_is_lonlat};
 use geo::MultiPolygon;
 use patternproof_gpkg::blob::Shape;
@@ -49,15 +49,19 @@ impl GpkgChoice {
 }
 
 /// Parse `--where FIELD=VALUE` (split at the first `=`; the value may be
-/// empty, the field may not).
-pub fn parse_filter(text: &str) -> Result<Filter, String> {
+/// empty, the field may not). The error, of kind
+/// [`InputErrorKind::Filter`], names the option as given in place of a file.
+pub fn parse_filter(text: &str) -> Result<Filter, InputError> {
     match text.split_once('=') {
         Some((field, value)) if !field.trim().is_empty() => Ok(Filter {
             field: field.trim().to_string(),
             value: value.to_string(),
         }),
-        _ => Err(format!(
-            "--where {text}: expected FIELD=VALUE, e.g. --where year=2024\n  what to do: name a column of the point layer, then '=', then the value to keep"
+        _ => Err(InputError::new(
+            InputErrorKind::Filter,
+            Path::new(&format!("--where {text}")),
+            "expected FIELD=VALUE, e.g. --where year=2024",
+            "name a column of the point layer, then '=', then the value to keep",
         )),
     }
 }
@@ -107,7 +111,9 @@ struct Decision {
 
 fn gpkg_error(path: &Path, e: GpkgError, flag: &str) -> InputError {
     let hint = match &e {
-        GpkgError::Io(_) => "check the path and that the file is readable".to_string(),
+        GpkgError::NotFound(_) | GpkgError::Io(_) => {
+            "check the path and that the file is readable".to_string()
+        }
         GpkgError::NotSqlite(_) | GpkgError::NotGeoPackage(_) => {
             "give a GeoPackage (.gpkg) file, or export the layer again; CSV, GeoJSON and WKT files need another extension".to_string()
         }
@@ -136,7 +142,18 @@ fn gpkg_error(path: &Path, e: GpkgError, flag: &str) -> InputError {
         GpkgError::Geometry { problem, .. } => problem.to_string(),
         other => other.to_string(),
     };
-    let err = InputError::new(path, what, hint);
+    let kind = match &e {
+        GpkgError::NotFound(_) => InputErrorKind::NotFound,
+        GpkgError::Io(_) => InputErrorKind::Unreadable,
+        GpkgError::NotSqlite(_)
+        | GpkgError::NotGeoPackage(_)
+        | GpkgError::Sql(_)
+        | GpkgError::BrokenLayer { .. } => InputErrorKind::Malformed,
+        GpkgError::NoSuchLayer { .. } | GpkgError::NoSuchColumn { .. } => InputErrorKind::Layer,
+        GpkgError::TooManySteps { .. } => InputErrorKind::TooLarge,
+        GpkgError::Geometry { .. } => InputErrorKind::BadGeometry,
+    };
+    let err = InputError::new(kind, path, what, hint);
     match location {
         Some(l) => err.at(l),
         None => err,
@@ -156,12 +173,14 @@ fn choose_layer(
     let mut layers = gpkg.layers().map_err(|e| gpkg_error(path, e, flag))?;
     match layers.len() {
         0 => Err(InputError::new(
+            InputErrorKind::Empty,
             path,
             "the GeoPackage holds no feature layer",
             "export the points (or the boundary) into it as a feature layer first",
         )),
         1 => Ok(layers.remove(0)),
         n => Err(InputError::new(
+            InputErrorKind::Layer,
             path,
             format!(
                 "the GeoPackage holds {n} feature layers: {}",
@@ -193,6 +212,7 @@ fn decide(
     }
     let unknown = |what: String| {
         InputError::new(
+            InputErrorKind::CoordSystem,
             path,
             what,
             "say how to read the coordinates: --coords projected (with --unit, e.g. --unit m) or --coords lonlat",
@@ -242,6 +262,7 @@ fn decide(
     match kind_of(&srs.definition) {
         Some(CrsKind::Geographic { degrees: true, .. }) => Ok(named(CoordSystem::LonLat)),
         Some(CrsKind::Geographic { degrees: false, unit }) => Err(InputError::new(
+            InputErrorKind::CoordSystem,
             path,
             format!(
                 "the layer is in {}, a geographic system measured in {} rather than degrees",
@@ -319,6 +340,7 @@ pub fn read_points(
         && features.is_empty()
     {
         return Err(InputError::new(
+            InputErrorKind::Filter,
             path,
             format!(
                 "--where {}={}: no feature of layer `{}` has this value (the layer holds {} features)",
@@ -344,6 +366,7 @@ pub fn read_points(
             Shape::Points(p) => p,
             other => {
                 return Err(InputError::new(
+                    InputErrorKind::BadGeometry,
                     path,
                     format!("the feature is a {}, not a point", other.type_name()),
                     "choose a point layer with --layer; give study-area polygons as --boundary FILE.gpkg --boundary-layer NAME",
@@ -356,6 +379,7 @@ pub fn read_points(
             (Some(_), Some(v)) if !v.trim().is_empty() => Some(crate::points::one_line(v)),
             (Some(name), _) => {
                 return Err(InputError::new(
+                    InputErrorKind::MissingValue,
                     path,
                     format!("the feature has no value in column `{name}`"),
                     "give every feature a value in that column, or filter it out with --where",
@@ -366,6 +390,7 @@ pub fn read_points(
         for c in pts {
             if !c.x.is_finite() || !c.y.is_finite() {
                 return Err(InputError::new(
+                    InputErrorKind::BadCoordinate,
                     path,
                     format!("the point ({}, {}) is not finite", c.x, c.y),
                     "fix or delete the feature in a GIS",
@@ -459,6 +484,7 @@ impl BoundaryLayer {
 
     fn not_polygons(&self, path: &Path, fid: i64, shape: &Shape) -> InputError {
         InputError::new(
+            InputErrorKind::BadGeometry,
             path,
             format!(
                 "a boundary must be polygons, this feature is a {}",
@@ -471,6 +497,7 @@ impl BoundaryLayer {
 
     fn no_polygon(&self, path: &Path, features: usize) -> InputError {
         InputError::new(
+            InputErrorKind::Empty,
             path,
             format!(
                 "layer `{}` holds no polygon ({features} feature(s), all empty or without geometry)",
@@ -538,6 +565,7 @@ pub fn read_named_boundaries(
     let b = open_boundary_layer(path, layer_name, choice)?;
     if !b.columns.iter().any(|c| c == field) {
         return Err(InputError::new(
+            InputErrorKind::Layer,
             path,
             format!(
                 "layer `{}` has no column `{field}` naming the sites (its columns: {})",
@@ -557,6 +585,7 @@ pub fn read_named_boundaries(
         };
         let Some(name) = f.value.clone() else {
             return Err(InputError::new(
+                InputErrorKind::MissingValue,
                 path,
                 format!("the feature has no value in column `{field}` naming its site"),
                 "give every boundary feature its site's name, or choose another column with --boundary-field",
@@ -634,8 +663,16 @@ mod tests {
         assert_eq!((f.field.as_str(), f.value.as_str()), ("year", "2024"));
         let f = parse_filter("note=a=b").unwrap();
         assert_eq!(f.value, "a=b");
-        assert!(parse_filter("=3").is_err());
-        assert!(parse_filter("year").is_err());
+        for bad in ["=3", "year"] {
+            let e = parse_filter(bad).unwrap_err();
+            assert_eq!(e.kind, InputErrorKind::Filter);
+            assert_eq!(
+                e.to_string(),
+                format!(
+                    "--where {bad}: expected FIELD=VALUE, e.g. --where year=2024\n  what to do: name a column of the point layer, then '=', then the value to keep"
+                )
+            );
+        }
     }
 
     /// The written definition reads back as a projected system in metres

@@ -4,7 +4,7 @@
 //!
 //! | module | job |
 //! |---|---|
-//! | [`error`] | one error type that names the file, the place, what is wrong and what to do |
+//! | [`error`] | one error type with a kind, naming the file, the place, what is wrong and what to do |
 //! | [`points`] | CSV and GeoJSON point readers |
 //! | [`boundary`] | GeoJSON and WKT polygon readers, with validity checks |
 //! | [`validity`] | geo's polygon validity rules, with the pairwise searches pruned so that dense outlines check fast |
@@ -31,6 +31,6 @@ pub mod validity;
 
 pub use coords::{CoordChoice, CoordSystem, Projection};
 pub use dataset::{Boundary, Dataset, LoadOptions};
-pub use error::InputError;
+pub use error::{InputError, InputErrorKind};
 pub use geopackage::GpkgChoice;
 pub use patternproof_gpkg::{Filter, SpatialRef};

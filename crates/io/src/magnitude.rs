@@ -10,7 +10,7 @@
 //! with the numbers involved and what to do, for points and boundary
 //! vertices alike.
 
-use crate::error::InputError;
+use crate::error::{InputError, InputErrorKind};
 use crate::points::Place;
 use std::path::Path;
 
@@ -120,6 +120,7 @@ fn first_too_large<'a>(coords: impl Iterator<Item = &'a [f64; 2]>) -> Option<(us
 fn too_large(file: &Path, what: &str, axis: usize, value: f64) -> InputError {
     if !value.is_finite() {
         return InputError::new(
+            InputErrorKind::BadCoordinate,
             file,
             format!(
                 "{what} {} is {value}, not a finite number",
@@ -129,6 +130,7 @@ fn too_large(file: &Path, what: &str, axis: usize, value: f64) -> InputError {
         );
     }
     InputError::new(
+        InputErrorKind::Magnitude,
         file,
         format!(
             "{what} {} = {value:e} lies beyond ±{MAX_COORDINATE:e}, farther out than any map position in any unit (the Earth's circumference is 4·10⁷ m, 4·10¹⁰ mm); distances and areas this large cannot be computed reliably",
@@ -149,6 +151,7 @@ fn check_spread(file: &Path, what: &str, b: &Bounds) -> Result<(), InputError> {
     }
     if spread < MIN_SPREAD {
         return Err(InputError::new(
+            InputErrorKind::Magnitude,
             file,
             format!(
                 "{what} spread over only {spread:e} ({}): below {MIN_SPREAD:e}, areas and intensities leave the range floating point can hold",
@@ -160,6 +163,7 @@ fn check_spread(file: &Path, what: &str, b: &Bounds) -> Result<(), InputError> {
     let steps = spread / ulp(b.largest());
     if steps < MIN_STEPS {
         return Err(InputError::new(
+            InputErrorKind::Magnitude,
             file,
             format!(
                 "{what} spread over only {spread:e} at coordinates as large as {:e} ({}): floating point holds just {:.0} distinct values across that spread, so every distance would be rounded to 1/{:.0} of it",
@@ -244,13 +248,16 @@ mod tests {
         assert!(check_points(file, &ok, &places(2), true).is_ok());
         let huge = [[1.0, 2.0], [1.06e303, 3.0], [4.0, 5.0]];
         let e = check_points(file, &huge, &places(3), true).unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::Magnitude, "{e}");
         assert_eq!(e.location.as_deref(), Some("line 3"));
         assert!(e.what.contains("x = 1.06e303"), "{}", e.what);
         let far = [[1.0, -2e13], [3.0, 4.0]];
         let e = check_points(file, &far, &places(2), true).unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::Magnitude, "{e}");
         assert!(e.what.contains("y = -2e13"), "{}", e.what);
         assert!(check_points(file, &[[1.0, 1e13], [3.0, 4.0]], &places(2), true).is_ok());
         let e = check_points(file, &[[1.0, 2.0], [f64::NAN, 4.0]], &places(2), true).unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::BadCoordinate, "{e}");
         assert!(
             e.what.contains("x is NaN, not a finite number"),
             "{}",
@@ -265,6 +272,7 @@ mod tests {
         let file = Path::new("p.csv");
         let sub = [[0.0, 0.0], [2e-308, 1e-308]];
         let e = check_points(file, &sub, &places(2), true).unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::Magnitude, "{e}");
         assert!(
             e.what
                 .contains("spread over only 2e-308 (x 0..2e-308, y 0..1e-308)"),
@@ -273,6 +281,7 @@ mod tests {
         );
         assert!(e.hint.contains("smaller unit"));
         let e = check_points(file, &[[0.0, 0.0], [1e-13, 0.0]], &places(2), true).unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::Magnitude, "{e}");
         assert!(e.what.contains("1e-13"), "{}", e.what);
         assert!(check_points(file, &[[0.0, 0.0], [1e-11, 0.0]], &places(2), true).is_ok());
         assert!(check_points(file, &[[5.0, 5.0], [5.0, 5.0]], &places(2), true).is_ok());
@@ -285,6 +294,7 @@ mod tests {
         let file = Path::new("p.csv");
         let narrow = [[1e6, 1e6], [1e6 + 1e-7, 1e6 + 0.5e-7]];
         let e = check_points(file, &narrow, &places(2), true).unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::Magnitude, "{e}");
         assert!(e.what.contains("just 859 distinct values"), "{}", e.what);
         assert!(e.hint.contains("subtract a local origin"));
         let fine = [[1e6, 1e6], [1e6 + 1e-3, 1e6]];
@@ -302,8 +312,10 @@ mod tests {
         };
         assert!(check_boundary(file, &square(0.0, 10.0), true).is_ok());
         let e = check_boundary(file, &square(-1e300, 1e300), true).unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::Magnitude, "{e}");
         assert!(e.what.contains("a vertex's x = -1e300"), "{}", e.what);
         let e = check_boundary(file, &square(0.0, 1e-309), true).unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::Magnitude, "{e}");
         assert!(e.what.contains("boundary's vertices spread"), "{}", e.what);
     }
 }

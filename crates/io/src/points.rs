@@ -8,7 +8,7 @@
 //! back into the file.
 
 use crate::coords::{Basis, CoordChoice, CoordSystem};
-use crate::error::{InputError, cannot_read, read_text};
+use crate::error::{InputError, InputErrorKind, cannot_read, read_text};
 use geojson::{GeoJson, GeometryValue};
 use patternproof_gpkg::Filter;
 use std::path::Path;
@@ -128,6 +128,7 @@ pub fn read_points(
     let start = String::from_utf8_lossy(&head);
     if full && start.trim().is_empty() {
         return Err(InputError::new(
+            InputErrorKind::Empty,
             path,
             "the file is empty",
             "give a CSV with a header row (x,y / easting,northing / lon,lat) or a GeoJSON FeatureCollection of points",
@@ -168,6 +169,7 @@ pub fn one_line(name: &str) -> String {
 /// The error of a `--where` that kept nothing.
 fn nothing_kept(path: &Path, f: &Filter, rows: usize, what: &str) -> InputError {
     InputError::new(
+        InputErrorKind::Filter,
         path,
         format!(
             "--where {}={}: no {what} has this value (the file holds {rows})",
@@ -199,6 +201,7 @@ pub(crate) fn refuse_repeated_keys(path: &Path, text: &str) -> Result<(), InputE
     match crate::json_keys::first_repeated_key(text) {
         None => Ok(()),
         Some((key, line, column)) => Err(InputError::new(
+            InputErrorKind::Malformed,
             path,
             format!(
                 "the key `{key}` appears twice in one object, so which value holds cannot be told"
@@ -280,6 +283,7 @@ fn read_csv_points<R: std::io::Read>(
         (CoordChoice::Auto, None, Some(l)) => (l, CoordSystem::LonLat),
         (CoordChoice::Auto, Some(_), Some(_)) => {
             return Err(InputError::new(
+                InputErrorKind::CoordSystem,
                 path,
                 format!("the header has both projected and lon/lat columns ({shown})"),
                 "say which to use with --coords projected or --coords lonlat",
@@ -291,6 +295,7 @@ fn read_csv_points<R: std::io::Read>(
         (CoordChoice::LonLat, Some(p), None) => (p, CoordSystem::LonLat),
         (CoordChoice::Projected, None, Some(_)) => {
             return Err(InputError::new(
+                InputErrorKind::CoordSystem,
                 path,
                 format!("--coords projected was given but the columns are named as lon/lat ({shown})"),
                 "rename the columns to x,y (or easting,northing) if they really are planar, or use --coords lonlat",
@@ -299,6 +304,7 @@ fn read_csv_points<R: std::io::Read>(
         }
         (_, None, None) => {
             return Err(InputError::new(
+                InputErrorKind::BadHeader,
                 path,
                 format!("no coordinate columns found in the header ({shown})"),
                 "name the columns x,y or easting,northing (projected) or lon,lat / longitude,latitude (geographic)",
@@ -317,6 +323,7 @@ fn read_csv_points<R: std::io::Read>(
         Some(name) => Some(
             find(&headers, &[name.to_ascii_lowercase().as_str()]).ok_or_else(|| {
                 InputError::new(
+                    InputErrorKind::BadHeader,
                     path,
                     format!("there is no column named '{name}' (columns: {shown})"),
                     "check the field name",
@@ -331,6 +338,7 @@ fn read_csv_points<R: std::io::Read>(
         Some(f) => Some((
             find(&headers, &[f.field.to_ascii_lowercase().as_str()]).ok_or_else(|| {
                 InputError::new(
+                    InputErrorKind::Filter,
                     path,
                     format!(
                         "--where {}={}: there is no column named '{}' (columns: {shown})",
@@ -348,6 +356,7 @@ fn read_csv_points<R: std::io::Read>(
     used.extend(filter_col.map(|(c, _)| c));
     if let Some((name, first, second)) = repeated_name(&headers, &used) {
         return Err(InputError::new(
+            InputErrorKind::BadHeader,
             path,
             format!(
                 "the column name '{name}' appears twice (columns {first} and {second}), so which one to read cannot be told"
@@ -399,6 +408,7 @@ fn read_csv_points<R: std::io::Read>(
             // called "" would analyse them together without a word.
             if v.trim().is_empty() {
                 return Err(InputError::new(
+                    InputErrorKind::MissingValue,
                     path,
                     format!("column '{}' is empty: the row names no site", headers[c]),
                     "give every row the name of its site, or leave the row out with --where",
@@ -436,11 +446,13 @@ fn csv_error(path: &Path, e: csv::Error, line: u64) -> InputError {
         csv::ErrorKind::Io(io) => {
             match io.get_ref().and_then(|r| r.downcast_ref::<LineTooLong>()) {
                 Some(long) => InputError::new(
+                    InputErrorKind::TooLarge,
                     path,
                     format!("{long}: not a table of coordinates"),
                     "check that this is the right file; a coordinate row is a few dozen bytes",
                 ),
                 None => InputError::new(
+                    InputErrorKind::Unreadable,
                     path,
                     format!("cannot read the file ({io})"),
                     "check the path and that the file is readable",
@@ -448,12 +460,14 @@ fn csv_error(path: &Path, e: csv::Error, line: u64) -> InputError {
             }
         }
         csv::ErrorKind::Utf8 { pos, .. } => InputError::new(
+            InputErrorKind::Unreadable,
             path,
             "the file is not UTF-8 text",
             "save it as UTF-8 (plain CSV, GeoJSON or WKT text)",
         )
         .at(format!("line {}", pos.as_ref().map_or(line, |p| p.line()))),
         _ => InputError::new(
+            InputErrorKind::Malformed,
             path,
             format!("malformed row ({e})"),
             "every row needs as many fields as the header",
@@ -484,18 +498,21 @@ fn parse_number(
     match parsed {
         Some(v) if v.is_finite() => Ok((v, comma)),
         Some(_) => Err(InputError::new(
+            InputErrorKind::BadCoordinate,
             path,
             format!("column '{column}' holds '{raw}', which is not a finite number"),
             "remove or fix the row; missing or infinite coordinates cannot be placed",
         )
         .at(place.to_string())),
         None if raw.contains(',') && raw.replace(',', ".").parse::<f64>().is_ok() => Err(InputError::new(
+            InputErrorKind::BadCoordinate,
             path,
             format!("column '{column}' holds '{raw}': a decimal comma in a comma-separated file"),
             "write decimals with a point (512.25), or separate the columns with ';' so that decimal commas can be read",
         )
         .at(place.to_string())),
         None => Err(InputError::new(
+            InputErrorKind::BadCoordinate,
             path,
             format!("column '{column}' holds '{raw}', which is not a number"),
             "coordinates must be plain decimal numbers (e.g. 512.25); fix or remove the row",
@@ -599,6 +616,7 @@ fn read_geojson_points(
 ) -> Result<RawPoints, InputError> {
     let gj: GeoJson = text.parse().map_err(|e| {
         InputError::new(
+            InputErrorKind::Malformed,
             path,
             format!("not valid GeoJSON ({e})"),
             "check the file against RFC 7946 (a FeatureCollection of Point or MultiPoint features)",
@@ -618,6 +636,7 @@ fn read_geojson_points(
         (CoordChoice::Auto, Some(false)) => CoordSystem::Projected,
         (CoordChoice::Auto, None) => {
             return Err(InputError::new(
+                InputErrorKind::CoordSystem,
                 path,
                 format!(
                     "the legacy 'crs' member names `{}`, which patternproof cannot identify as lon/lat or projected",
@@ -652,6 +671,7 @@ fn read_geojson_points(
         })
     {
         return Err(InputError::new(
+            InputErrorKind::Filter,
             path,
             format!(
                 "--where {}={}: no feature has a property named '{}'",
@@ -687,6 +707,7 @@ fn read_geojson_points(
                     .filter(|t| !t.trim().is_empty())
                     .ok_or_else(|| {
                         InputError::new(
+                            InputErrorKind::MissingValue,
                             path,
                             format!("the feature has no value in property '{name}'"),
                             "give every feature that property, with the name of its site",
@@ -705,6 +726,7 @@ fn read_geojson_points(
             GeometryValue::MultiPoint { coordinates } => coordinates.iter().collect(),
             other => {
                 return Err(InputError::new(
+                    InputErrorKind::BadGeometry,
                     path,
                     format!("the feature is a {}, not a point", other.type_name()),
                     "point files may hold only Point and MultiPoint features; put study-area polygons in a --boundary file",
@@ -716,6 +738,7 @@ fn read_geojson_points(
             let s = pos.as_slice();
             if s.len() < 2 || !s[0].is_finite() || !s[1].is_finite() {
                 return Err(InputError::new(
+                    InputErrorKind::BadCoordinate,
                     path,
                     "a position needs two finite numbers",
                     "fix the coordinates",
@@ -768,6 +791,7 @@ mod tests {
     fn csv_refuses_a_repeated_coordinate_or_filter_column() {
         let dup = file(".csv", "x,X,y\n1,2,3\n4,5,6\n");
         let e = read_points(dup.path(), CoordChoice::Auto, None, None).unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::BadHeader, "{e}");
         assert_eq!(e.location.as_deref(), Some("line 1"));
         assert!(
             e.what.contains("'x' appears twice (columns 1 and 2)"),
@@ -782,6 +806,7 @@ mod tests {
             Some(&keep("year", "2024")),
         )
         .unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::BadHeader, "{e}");
         assert!(e.what.contains("'year' appears twice (columns 3 and 4)"));
         assert!(read_points(year.path(), CoordChoice::Auto, None, None).is_ok());
     }
@@ -793,6 +818,7 @@ mod tests {
     fn a_missing_site_name_is_refused() {
         let csv = file(".csv", "x,y,site\n1,2,north\n3,4, \n5,6,south\n");
         let e = read_points(csv.path(), CoordChoice::Projected, Some("site"), None).unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::MissingValue, "{e}");
         assert_eq!(e.location.as_deref(), Some("line 3"));
         assert!(e.what.contains("column 'site' is empty"), "{}", e.what);
         for missing in ["null", "\"\""] {
@@ -805,6 +831,7 @@ mod tests {
                 ),
             );
             let e = read_points(gj.path(), CoordChoice::Projected, Some("site"), None).unwrap_err();
+            assert_eq!(e.kind, InputErrorKind::MissingValue, "{e}");
             assert_eq!(e.location.as_deref(), Some("feature 2"), "{missing}");
             assert!(e.what.contains("no value in property 'site'"), "{}", e.what);
         }
@@ -848,14 +875,17 @@ mod tests {
         };
         let empty = fc(r#"{"type":"name","properties":{"name":" "}}"#);
         let e = read_points(empty.path(), CoordChoice::Auto, None, None).unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::CoordSystem, "{e}");
         assert!(e.what.contains("cannot identify"), "{}", e.what);
         let bare = fc(r#""EPSG:4326""#);
         let e = read_points(bare.path(), CoordChoice::Auto, None, None).unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::CoordSystem, "{e}");
         assert!(e.what.contains("names `\"EPSG:4326\"`"), "{}", e.what);
         let p = read_points(empty.path(), CoordChoice::LonLat, None, None).unwrap();
         assert_eq!((p.coords.len(), p.skipped_empty), (1, 1));
         let zw = file(".csv", "x\u{200b},y\n1,2\n");
         let e = read_points(zw.path(), CoordChoice::Auto, None, None).unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::BadHeader, "{e}");
         assert!(e.what.contains("(x\\u{200b}, y)"), "{}", e.what);
     }
 
@@ -898,6 +928,7 @@ not-a-number,6,2023
             Some(&keep("season", "dry")),
         )
         .unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::Filter, "{e}");
         assert!(e.what.contains("no column named 'season'"), "{}", e.what);
         assert!(e.what.contains("x, y, year"), "{}", e.what);
         let e = read_points(
@@ -907,13 +938,16 @@ not-a-number,6,2023
             Some(&keep("year", "1999")),
         )
         .unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::Filter, "{e}");
         assert!(
             e.what.contains("no row has this value (the file holds 5)"),
             "{}",
             e.what
         );
         // Without the filter the bad number stops the run, as before.
-        assert!(read_points(f.path(), CoordChoice::Auto, None, None).is_err());
+        let e = read_points(f.path(), CoordChoice::Auto, None, None).unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::BadCoordinate, "{e}");
+        assert_eq!(e.location.as_deref(), Some("line 4"));
     }
 
     /// `--where` on GeoJSON compares the property as text: a string as it
@@ -939,12 +973,14 @@ not-a-number,6,2023
             vec![[1.0, 2.0], [5.0, 6.0]]
         );
         let e = read(keep("season", "dry")).unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::Filter, "{e}");
         assert!(
             e.what.contains("no feature has a property named 'season'"),
             "{}",
             e.what
         );
         let e = read(keep("kind", "den")).unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::Filter, "{e}");
         assert!(
             e.what
                 .contains("no feature has this value (the file holds 4)"),
@@ -976,28 +1012,25 @@ not-a-number,6,2023
     fn bad_number_names_line_and_column() {
         let f = file(".csv", "x,y\n1,2\n3,abc\n");
         let e = read_points(f.path(), CoordChoice::Auto, None, None).unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::BadCoordinate, "{e}");
         assert_eq!(e.location.as_deref(), Some("line 3"));
         assert!(e.what.contains("'y'") && e.what.contains("abc"), "{e}");
         let f = file(".csv", "x,y\n1,NaN\n");
-        assert!(
-            read_points(f.path(), CoordChoice::Auto, None, None)
-                .unwrap_err()
-                .what
-                .contains("not a finite number")
-        );
+        let e = read_points(f.path(), CoordChoice::Auto, None, None).unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::BadCoordinate, "{e}");
+        assert!(e.what.contains("not a finite number"), "{e}");
     }
 
     #[test]
     fn ambiguous_or_unknown_headers_stop() {
         let f = file(".csv", "x,y,lon,lat\n1,2,3,4\n");
-        assert!(
-            read_points(f.path(), CoordChoice::Auto, None, None)
-                .unwrap_err()
-                .hint
-                .contains("--coords")
-        );
+        let e = read_points(f.path(), CoordChoice::Auto, None, None).unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::CoordSystem, "{e}");
+        assert!(e.hint.contains("--coords"), "{e}");
         let f = file(".csv", "a,b\n1,2\n");
-        assert!(read_points(f.path(), CoordChoice::Auto, None, None).is_err());
+        let e = read_points(f.path(), CoordChoice::Auto, None, None).unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::BadHeader, "{e}");
+        assert_eq!(e.location.as_deref(), Some("line 1"));
     }
 
     #[test]
@@ -1016,6 +1049,7 @@ not-a-number,6,2023
         let body = r#"{"type":"FeatureCollection","features":[{"type":"Feature","properties":null,"geometry":{"type":"Polygon","coordinates":[[[0,0],[1,0],[1,1],[0,0]]]}}]}"#;
         let f = file(".geojson", body);
         let e = read_points(f.path(), CoordChoice::Auto, None, None).unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::BadGeometry, "{e}");
         assert_eq!(e.location.as_deref(), Some("feature 1"));
     }
 }
@@ -1036,6 +1070,7 @@ mod streaming {
         text.push_str(",1\n");
         std::fs::write(&path, text).unwrap();
         let e = read_points(&path, CoordChoice::Auto, None, None).unwrap_err();
+        assert_eq!(e.kind, InputErrorKind::TooLarge, "{e}");
         assert!(e.what.contains("line 3 is longer than"), "{}", e.what);
     }
 

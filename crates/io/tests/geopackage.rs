@@ -176,10 +176,12 @@ fn where_keeps_one_year() {
 #[test]
 fn more_than_one_layer_needs_a_name() {
     let e = Dataset::load(&survey(), &[], &LoadOptions::default()).unwrap_err();
+    assert_eq!(e.kind, patternproof_io::InputErrorKind::Layer, "{e}");
     assert!(e.what.contains("4 feature layers"), "{e}");
     assert!(e.what.contains("`plots_utm` (POINT, 42 features)"), "{e}");
     assert!(e.hint.contains("--layer"), "{e}");
     let e = Dataset::load(&survey(), &[], &options(Some("area_utm"), None)).unwrap_err();
+    assert_eq!(e.kind, patternproof_io::InputErrorKind::BadGeometry, "{e}");
     assert!(e.what.contains("MultiPolygon, not a point"), "{e}");
 }
 
@@ -288,6 +290,7 @@ fn a_hostile_layer_name_is_read_and_changes_nothing() {
     // from --unit. Under the default `m` these small numbers would read as
     // metres by default only, and they fit the lon/lat ranges: a stop.
     let e = Dataset::load(&path, &[], &options(Some(HOSTILE), None)).unwrap_err();
+    assert_eq!(e.kind, patternproof_io::InputErrorKind::CoordSystem, "{e}");
     assert!(
         e.what.contains("undefined Cartesian system (srs_id -1)")
             && e.what.contains("as longitude and latitude do"),
@@ -301,6 +304,7 @@ fn a_hostile_layer_name_is_read_and_changes_nothing() {
     assert!(d.warnings.iter().any(|w| w.contains("undefined Cartesian")));
     // A name that merely contains SQL is not a layer.
     let e = Dataset::load(&path, &[], &options(Some("pts\" OR 1=1 --"), None)).unwrap_err();
+    assert_eq!(e.kind, patternproof_io::InputErrorKind::Layer, "{e}");
     assert!(e.what.contains("no feature layer named"), "{e}");
     assert_eq!(
         std::fs::read(&path).unwrap(),
@@ -338,11 +342,14 @@ fn sql_in_a_where_value_is_only_a_value() {
         "year= 1 OR 1=1; --=2021",
     ] {
         let e = run(hostile).unwrap_err();
+        assert_eq!(e.kind, patternproof_io::InputErrorKind::Filter, "{e}");
         assert!(e.what.contains("no feature"), "{hostile}: {e}");
     }
     let e = run("year OR 1=2021").unwrap_err();
+    assert_eq!(e.kind, patternproof_io::InputErrorKind::Layer, "{e}");
     assert!(e.what.contains("has no column named"), "{e}");
     let e = run("\"year\"=2021").unwrap_err();
+    assert_eq!(e.kind, patternproof_io::InputErrorKind::Layer, "{e}");
     assert!(e.what.contains("has no column named"), "{e}");
     assert_eq!(
         std::fs::read(&path).unwrap(),
@@ -381,6 +388,7 @@ fn unknown_or_unusable_systems_stop_unless_forced() {
     point_layer(&c, "pts", 5001, &grid(5001));
     drop(c);
     let e = Dataset::load(&path, &[], &LoadOptions::default()).unwrap_err();
+    assert_eq!(e.kind, patternproof_io::InputErrorKind::CoordSystem, "{e}");
     assert!(e.what.contains("LOCAL:1"), "{e}");
     assert!(
         e.hint.contains("--coords projected") && e.hint.contains("--unit"),
@@ -401,6 +409,7 @@ fn unknown_or_unusable_systems_stop_unless_forced() {
     point_layer(&c, "pts", 7001, &grid(7001));
     drop(c);
     let e = Dataset::load(&path, &[], &LoadOptions::default()).unwrap_err();
+    assert_eq!(e.kind, patternproof_io::InputErrorKind::CoordSystem, "{e}");
     assert!(e.what.contains("grad"), "{e}");
 }
 
@@ -437,6 +446,7 @@ fn boundary_in_another_projected_system_is_refused() {
         .unwrap();
     drop(c);
     let e = Dataset::load(&survey(), &[path], &options(Some("plots_utm"), None)).unwrap_err();
+    assert_eq!(e.kind, patternproof_io::InputErrorKind::CoordSystem, "{e}");
     assert!(
         e.what.contains("EPSG:32632") && e.what.contains("EPSG:32633"),
         "{e}"
@@ -451,6 +461,7 @@ fn layer_options_need_a_geopackage() {
         &options(Some("x"), None),
     )
     .unwrap_err();
+    assert_eq!(e.kind, patternproof_io::InputErrorKind::Option, "{e}");
     assert!(e.what.contains("GeoPackage"), "{e}");
 }
 
@@ -487,6 +498,7 @@ fn multipoint_member_with_an_srid_flag_is_an_error_at_its_feature() {
         },
     )
     .unwrap_err();
+    assert_eq!(e.kind, patternproof_io::InputErrorKind::BadGeometry, "{e}");
     assert_eq!(
         e.location.as_deref(),
         Some("layer `pts`, feature fid 4"),

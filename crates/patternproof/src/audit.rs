@@ -2,7 +2,7 @@
 //! sensitivity curves and the report document.
 
 use crate::document::AuditReport;
-use crate::error::{Error, Refusal};
+use crate::error::{Error, Refusal, sweep_refused};
 use crate::input::Input;
 use crate::progress::Progress;
 use patternproof_audit::{AuditOptions, run_audit};
@@ -36,14 +36,7 @@ pub fn audit(
         progress.step()
     });
     progress.finish();
-    let audit = audit.ok_or_else(|| {
-        Error::refused(
-            Refusal::TooFewPoints,
-            input.subject.clone(),
-            "the sweep needs at least two points",
-            "check the point file",
-        )
-    })?;
+    let audit = audit.map_err(|e| sweep_refused(&input.subject, e))?;
     if !audit.results.iter().any(|r| r.p.is_some()) {
         let hint = if !audit.windows.is_empty() && audit.n < MIN_N_ANALYTIC {
             "with so few points only the simulation test applies, and it needs an outline: give the surveyed outline with --boundary (and --sims above 0)"

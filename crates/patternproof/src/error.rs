@@ -50,6 +50,9 @@ pub enum Refusal {
     Setting,
     /// An input file could not be read again for its checksum.
     InputGone,
+    /// A coordinate is not a finite number (points given in memory; the
+    /// readers refuse such files first).
+    NotFinite,
 }
 
 /// What kind of error, in one word: the command line maps it to an exit
@@ -98,5 +101,30 @@ fn refused_text(subject: &str, what: &str, hint: &str) -> String {
         format!("{what}\n  what to do: {hint}")
     } else {
         format!("{subject}: {what}\n  what to do: {hint}")
+    }
+}
+
+/// The sweep's refusal as the facade's, about `subject`.
+pub(crate) fn sweep_refused(subject: &str, e: patternproof_audit::AuditError) -> Error {
+    use patternproof_audit::AuditError as E;
+    match e {
+        E::TooFewPoints { .. } => Error::refused(
+            Refusal::TooFewPoints,
+            subject,
+            "the sweep needs at least two points",
+            "check the point file",
+        ),
+        E::Alpha { .. } => Error::refused(
+            Refusal::Setting,
+            subject,
+            e.to_string(),
+            "use a significance level strictly between 0 and 1, e.g. 0.05",
+        ),
+        E::NotFinite { .. } => Error::refused(
+            Refusal::NotFinite,
+            subject,
+            e.to_string(),
+            "remove or repair the points whose coordinates are missing or infinite",
+        ),
     }
 }

@@ -2,7 +2,7 @@
 //! study area do they imply, and (given the points) which window
 //! reproduces them.
 
-use crate::error::{Error, Refusal};
+use crate::error::{Error, Refusal, sweep_refused};
 use crate::input::Input;
 use patternproof_audit::run_audit;
 use patternproof_core::clark_evans::MIN_N_ANALYTIC;
@@ -26,14 +26,7 @@ pub fn recheck(figures: &Figures, points: Option<&Input>) -> Result<Recheck, Err
         &sweep_options(area),
         &|| {},
     )
-    .ok_or_else(|| {
-        Error::refused(
-            Refusal::TooFewPoints,
-            input.subject.clone(),
-            "the sweep needs at least two points",
-            "check the point file",
-        )
-    })?;
+    .map_err(|e| sweep_refused(&input.subject, e))?;
     let n = input.points.len();
     let tested = audit.results.iter().any(|r| r.p.is_some());
     if n < MIN_N_ANALYTIC && !tested {

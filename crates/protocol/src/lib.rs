@@ -17,7 +17,7 @@ pub mod adjust;
 pub mod rule;
 
 pub use adjust::Adjust;
-pub use rule::WindowRule;
+pub use rule::{RuleError, WindowRule};
 
 use patternproof_audit::Edge;
 use serde::{Deserialize, Serialize};
@@ -69,50 +69,75 @@ pub enum Check {
     },
 }
 
-/// Why a protocol file could not be used.
+/// Which choice of a protocol is refused, with its value.
 #[derive(Debug, Clone, PartialEq)]
+pub enum ProtocolErrorKind {
+    /// The text is not a protocol file: not JSON, no `sha256`, an
+    /// unknown or missing field.
+    NotProtocol,
+    /// The schema identifier is not [`SCHEMA`].
+    Schema(String),
+    /// α is not strictly between 0 and 1.
+    Alpha(f64),
+    /// The smallest site size is below 2.
+    MinN(usize),
+    /// The simulation edge handling with no simulations.
+    NoSimulations,
+    /// The guard width is negative or not finite.
+    Guard(f64),
+    /// The concavity is not positive and finite.
+    Concavity(f64),
+    /// The window rule is refused.
+    Window(RuleError),
+}
+
+/// Why a protocol file could not be used: the kind, and the words the
+/// user reads (what is wrong, what to do).
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+#[error("{what}\n  what to do: {hint}")]
 pub struct ProtocolError {
+    /// Which choice is refused, with its value.
+    pub kind: ProtocolErrorKind,
     /// What is wrong.
     pub what: String,
     /// What to do.
     pub hint: String,
 }
 
-impl std::fmt::Display for ProtocolError {
-    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        write!(f, "{}\n  what to do: {}", self.what, self.hint)
-    }
-}
-
 impl Protocol {
     /// Check the choices; `Err` names the first one out of range.
     pub fn validate(&self) -> Result<(), ProtocolError> {
-        let bad = |what: String, hint: &str| {
+        let bad = |kind: ProtocolErrorKind, what: String, hint: &str| {
             Err(ProtocolError {
+                kind,
                 what,
                 hint: hint.to_string(),
             })
         };
         if self.schema != SCHEMA {
             return bad(
+                ProtocolErrorKind::Schema(self.schema.clone()),
                 format!("schema `{}` is not {SCHEMA}", self.schema),
                 "write the protocol again with `patternproof protocol new`",
             );
         }
         if !(self.alpha > 0.0 && self.alpha < 1.0) {
             return bad(
+                ProtocolErrorKind::Alpha(self.alpha),
                 format!("alpha {} is not strictly between 0 and 1", self.alpha),
                 "use e.g. 0.05",
             );
         }
         if self.min_n < 2 {
             return bad(
+                ProtocolErrorKind::MinN(self.min_n),
                 format!("min-n {} is below 2", self.min_n),
                 "the test needs at least two points per site",
             );
         }
         if self.edge == Edge::Simulation && self.sims == 0 {
             return bad(
+                ProtocolErrorKind::NoSimulations,
                 "the simulation edge handling needs sims above 0".into(),
                 "give --sims, e.g. 999",
             );
@@ -121,18 +146,21 @@ impl Protocol {
             && !(g >= 0.0 && g.is_finite())
         {
             return bad(
+                ProtocolErrorKind::Guard(g),
                 format!("guard {g} is not a non-negative distance"),
                 "give a width in the data's unit, or leave it out",
             );
         }
         if !(self.concavity > 0.0 && self.concavity.is_finite()) {
             return bad(
+                ProtocolErrorKind::Concavity(self.concavity),
                 format!("concavity {} is not positive", self.concavity),
                 "leave it at 2.0 unless there is a reason",
             );
         }
-        self.window.validate().map_err(|what| ProtocolError {
-            what,
+        self.window.validate().map_err(|e| ProtocolError {
+            what: e.to_string(),
+            kind: ProtocolErrorKind::Window(e),
             hint: "see `patternproof protocol new --help` for the window rules".into(),
         })
     }
@@ -169,6 +197,7 @@ impl Protocol {
     /// Unknown fields are refused, so nothing can be added unnoticed.
     pub fn from_file_text(text: &str) -> Result<(Protocol, Check), ProtocolError> {
         let not_protocol = |e: String| ProtocolError {
+            kind: ProtocolErrorKind::NotProtocol,
             what: format!("not a protocol file ({e})"),
             hint: "write one with `patternproof protocol new --out protocol.json`".into(),
         };
@@ -248,6 +277,45 @@ mod tests {
             concavity: 2.0,
             note: Some("fixed before the 2026 survey".into()),
         }
+    }
+
+    /// Each refused choice comes back as its own kind with the value
+    /// given, and the file reader refuses what is not a protocol.
+    #[test]
+    fn refused_choices_name_their_kind() {
+        let kind = |edit: &dyn Fn(&mut Protocol)| {
+            let mut p = example();
+            edit(&mut p);
+            p.validate().map_err(|e| e.kind)
+        };
+        assert_eq!(kind(&|_| {}), Ok(()));
+        assert_eq!(
+            kind(&|p| p.schema = "patternproof.protocol/0".into()),
+            Err(ProtocolErrorKind::Schema("patternproof.protocol/0".into()))
+        );
+        assert_eq!(kind(&|p| p.alpha = 1.5), Err(ProtocolErrorKind::Alpha(1.5)));
+        assert_eq!(kind(&|p| p.min_n = 1), Err(ProtocolErrorKind::MinN(1)));
+        assert_eq!(kind(&|p| p.sims = 0), Err(ProtocolErrorKind::NoSimulations));
+        assert_eq!(
+            kind(&|p| p.guard = Some(-2.0)),
+            Err(ProtocolErrorKind::Guard(-2.0))
+        );
+        assert_eq!(
+            kind(&|p| p.concavity = 0.0),
+            Err(ProtocolErrorKind::Concavity(0.0))
+        );
+        assert_eq!(
+            kind(&|p| p.window = WindowRule::HullPlus { distance: -5.0 }),
+            Err(ProtocolErrorKind::Window(RuleError::NotPositive {
+                value: -5.0
+            }))
+        );
+        let e = Protocol::from_file_text("{\"schema\": 1}").expect_err("no sha256");
+        assert_eq!(e.kind, ProtocolErrorKind::NotProtocol);
+        assert_eq!(
+            e.to_string(),
+            "not a protocol file (no `sha256` string)\n  what to do: write one with `patternproof protocol new --out protocol.json`"
+        );
     }
 
     /// The canonical bytes are pinned: a change of serialisation (field
@@ -335,6 +403,8 @@ mod tests {
         assert!(matches!(check, Check::Changed { .. }));
 
         let extra = text.replacen('{', "{\n  \"extra\": 1,", 1);
-        assert!(Protocol::from_file_text(&extra).is_err());
+        let e = Protocol::from_file_text(&extra).expect_err("unknown field");
+        assert_eq!(e.kind, ProtocolErrorKind::NotProtocol);
+        assert!(e.what.contains("unknown field `extra`"), "{}", e.what);
     }
 }

@@ -3,6 +3,39 @@
 use patternproof_audit::BufferRule;
 use serde::{Deserialize, Serialize};
 
+/// Why a window rule was refused, with the text or number involved.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum RuleError {
+    /// The word names no rule.
+    #[error("`{word}` is not a window rule (hull, hull+D, hull+kNN, bbox, boundary, concave)")]
+    Unknown {
+        /// The word given.
+        word: String,
+    },
+    /// `hull+…` without a number after the `+`.
+    #[error("`{word}`: `{number}` is not a number, a number + `nn`, or a number + `x`")]
+    NotANumber {
+        /// The word given.
+        word: String,
+        /// The part after `hull+`.
+        number: String,
+    },
+    /// A buffer that is zero, negative or not finite.
+    #[error("the buffer {value} must be a positive number")]
+    NotPositive {
+        /// The buffer given.
+        value: f64,
+    },
+    /// A buffer beyond any map or any pattern's own size.
+    #[error("the buffer {value:e} is {problem}")]
+    TooLarge {
+        /// The buffer given.
+        value: f64,
+        /// How far beyond, in words (from [`BufferRule::problem`]).
+        problem: String,
+    },
+}
+
 /// One window rule.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
 #[serde(tag = "rule", deny_unknown_fields)]
@@ -38,7 +71,7 @@ impl WindowRule {
     /// Parse the command-line form: `hull`, `hull+25` (a distance),
     /// `hull+1.5nn` or `hull+1.5x` (a multiple of the mean
     /// nearest-neighbour distance), `bbox`, `boundary`, `concave`.
-    pub fn parse(word: &str) -> Result<Self, String> {
+    pub fn parse(word: &str) -> Result<Self, RuleError> {
         let w = word.trim();
         let rule = match w {
             "hull" => WindowRule::Hull,
@@ -47,9 +80,7 @@ impl WindowRule {
             "concave" => WindowRule::Concave,
             _ => {
                 let Some(rest) = w.strip_prefix("hull+") else {
-                    return Err(format!(
-                        "`{w}` is not a window rule (hull, hull+D, hull+kNN, bbox, boundary, concave)"
-                    ));
+                    return Err(RuleError::Unknown { word: w.into() });
                 };
                 let lower = rest.to_ascii_lowercase();
                 let (num, multiple) =
@@ -57,8 +88,9 @@ impl WindowRule {
                         Some(n) => (n.to_string(), true),
                         None => (lower.clone(), false),
                     };
-                let v: f64 = num.parse().map_err(|_| {
-                    format!("`{w}`: `{rest}` is not a number, a number + `nn`, or a number + `x`")
+                let v: f64 = num.parse().map_err(|_| RuleError::NotANumber {
+                    word: w.into(),
+                    number: rest.into(),
                 })?;
                 if multiple {
                     WindowRule::HullPlusKnn { k: v }
@@ -72,7 +104,7 @@ impl WindowRule {
     }
 
     /// The numbers must be positive and finite.
-    pub fn validate(&self) -> Result<(), String> {
+    pub fn validate(&self) -> Result<(), RuleError> {
         let (v, rule) = match *self {
             WindowRule::HullPlus { distance } => (distance, BufferRule::Distance(distance)),
             WindowRule::HullPlusKnn { k } => (k, BufferRule::MeanNnMultiple(k)),
@@ -80,10 +112,8 @@ impl WindowRule {
         };
         match rule.problem() {
             None => Ok(()),
-            Some(_) if !(v > 0.0 && v.is_finite()) => {
-                Err(format!("the buffer {v} must be a positive number"))
-            }
-            Some(p) => Err(format!("the buffer {v:e} is {p}")),
+            Some(_) if !(v > 0.0 && v.is_finite()) => Err(RuleError::NotPositive { value: v }),
+            Some(problem) => Err(RuleError::TooLarge { value: v, problem }),
         }
     }
 
@@ -132,9 +162,32 @@ mod tests {
         assert_eq!(WindowRule::parse("bbox"), Ok(WindowRule::Bbox));
         assert_eq!(WindowRule::parse("boundary"), Ok(WindowRule::Boundary));
         assert_eq!(WindowRule::parse("concave"), Ok(WindowRule::Concave));
-        assert!(WindowRule::parse("hull+-3").is_err());
-        assert!(WindowRule::parse("hull+abc").is_err());
-        assert!(WindowRule::parse("circle").is_err());
+        assert_eq!(
+            WindowRule::parse("hull+-3"),
+            Err(RuleError::NotPositive { value: -3.0 })
+        );
+        assert_eq!(
+            WindowRule::parse("hull+0nn"),
+            Err(RuleError::NotPositive { value: 0.0 })
+        );
+        assert_eq!(
+            WindowRule::parse(" hull+abc "),
+            Err(RuleError::NotANumber {
+                word: "hull+abc".into(),
+                number: "abc".into()
+            })
+        );
+        let e = WindowRule::parse("circle").unwrap_err();
+        assert_eq!(
+            e,
+            RuleError::Unknown {
+                word: "circle".into()
+            }
+        );
+        assert_eq!(
+            e.to_string(),
+            "`circle` is not a window rule (hull, hull+D, hull+kNN, bbox, boundary, concave)"
+        );
     }
 
     /// Issue 20: buffers beyond any map (10¹³ units) or beyond any
@@ -147,12 +200,22 @@ mod tests {
             .validate()
             .unwrap_err();
         assert!(
-            far.contains("the buffer 1e300 is more than 1e13 units"),
+            matches!(far, RuleError::TooLarge { value, .. } if value == 1e300),
+            "{far:?}"
+        );
+        assert!(
+            far.to_string()
+                .contains("the buffer 1e300 is more than 1e13 units"),
             "{far}"
         );
         let many = WindowRule::HullPlusKnn { k: 2e6 }.validate().unwrap_err();
         assert!(
-            many.contains("the buffer 2e6 is more than 1e6 times"),
+            matches!(many, RuleError::TooLarge { value, .. } if value == 2e6),
+            "{many:?}"
+        );
+        assert!(
+            many.to_string()
+                .contains("the buffer 2e6 is more than 1e6 times"),
             "{many}"
         );
         assert!(WindowRule::HullPlus { distance: 1e13 }.validate().is_ok());

@@ -160,9 +160,29 @@ impl Reported {
     }
 }
 
+/// Which sort of problem a [`Problem`] is.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+pub enum ProblemKind {
+    /// The text is not a number (nor a bound such as `< 0.001`).
+    NotANumber,
+    /// A value the quantity cannot take: R or a distance not positive, p
+    /// outside 0..1, a bound below 0 or above 1.
+    Impossible,
+    /// A value beyond every study's figures, where floating point cannot
+    /// recompute from it.
+    OutOfRange,
+    /// The point count is not a whole number.
+    NotACount,
+    /// The point count is below 2.
+    TooFewPoints,
+}
+
 /// Why a text is not a usable figure, and what to do about it.
-#[derive(Debug, Clone, PartialEq, Eq)]
+#[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
+#[error("{what}\n  what to do: {advice}")]
 pub struct Problem {
+    /// Which sort of problem this is.
+    pub kind: ProblemKind,
     /// What is wrong.
     pub what: String,
     /// What to do.
@@ -170,8 +190,9 @@ pub struct Problem {
 }
 
 impl Problem {
-    fn new(what: impl Into<String>, advice: impl Into<String>) -> Self {
+    fn new(kind: ProblemKind, what: impl Into<String>, advice: impl Into<String>) -> Self {
         Self {
+            kind,
             what: what.into(),
             advice: advice.into(),
         }
@@ -238,6 +259,7 @@ pub fn parse(text: &str, q: Quantity) -> Result<Reported, Problem> {
     }
     let Some((value, decimals, exponent)) = parse_decimal(s) else {
         return Err(Problem::new(
+            ProblemKind::NotANumber,
             format!("`{}` is not a number", text.trim()),
             advice_format,
         ));
@@ -252,6 +274,7 @@ pub fn parse(text: &str, q: Quantity) -> Result<Reported, Problem> {
     validate(q, value, bound, text.trim())?;
     let interval = raw.intersect(&q.domain()).ok_or_else(|| {
         Problem::new(
+            ProblemKind::Impossible,
             format!("{} cannot take this value", q.words()),
             advice_format.clone(),
         )
@@ -267,7 +290,7 @@ pub fn parse(text: &str, q: Quantity) -> Result<Reported, Problem> {
 }
 
 fn validate(q: Quantity, v: f64, bound: Bound, text: &str) -> Result<(), Problem> {
-    let bad = |what: &str, advice: &str| Err(Problem::new(what, advice));
+    let bad = |what: &str, advice: &str| Err(Problem::new(ProblemKind::Impossible, what, advice));
     match q {
         Quantity::Ratio if v <= 0.0 => bad(
             "the ratio must be positive (it is a mean distance divided by its expectation)",
@@ -293,8 +316,9 @@ fn validate(q: Quantity, v: f64, bound: Bound, text: &str) -> Result<(), Problem
             "the area must be positive (in the unit squared)",
             "give the study area as printed, e.g. --area 10000",
         ),
-        _ if !(min_figure(q)..=max_figure(q)).contains(&v.abs()) && v != 0.0 => bad(
-            &format!(
+        _ if !(min_figure(q)..=max_figure(q)).contains(&v.abs()) && v != 0.0 => Err(Problem::new(
+            ProblemKind::OutOfRange,
+            format!(
                 "{} of {text} is out of range: it must lie {}, where every study's figure lies (beyond, floating point cannot recompute from it)",
                 q.words(),
                 if min_figure(q) > 0.0 {
@@ -303,11 +327,11 @@ fn validate(q: Quantity, v: f64, bound: Bound, text: &str) -> Result<(), Problem
                     format!("within ±{:e}", max_figure(q))
                 }
             ),
-            &format!(
+            format!(
                 "check the number and its unit: it is a misprint or a slip of the exponent; give it as printed, e.g. {}",
                 q.example()
             ),
-        ),
+        )),
         _ => Ok(()),
     }
 }
@@ -366,10 +390,12 @@ pub fn parse_count(text: &str) -> Result<usize, Problem> {
     match t.parse::<usize>() {
         Ok(n) if n >= 2 => Ok(n),
         Ok(_) => Err(Problem::new(
+            ProblemKind::TooFewPoints,
             "n must be at least 2: a nearest-neighbour distance needs two points",
             "give the number of points the analysis used, e.g. --n 64",
         )),
         Err(_) => Err(Problem::new(
+            ProblemKind::NotACount,
             format!("`{t}` is not a whole number of points"),
             "give the number of points the analysis used, e.g. --n 64",
         )),
@@ -431,17 +457,26 @@ mod tests {
 
     #[test]
     fn impossible_values_are_refused() {
-        assert!(parse("-0.3", Quantity::Ratio).is_err());
-        assert!(parse("0", Quantity::Ratio).is_err());
-        assert!(parse("1.2", Quantity::P).is_err());
-        assert!(parse("-0.01", Quantity::P).is_err());
-        assert!(parse("< 0", Quantity::P).is_err());
-        assert!(parse("0", Quantity::Area).is_err());
-        assert!(parse("-5", Quantity::MeanNn).is_err());
-        assert!(parse("abc", Quantity::Z).is_err());
-        assert!(parse("1.2.3", Quantity::Z).is_err());
-        assert!(parse("inf", Quantity::Z).is_err());
-        assert!(parse("", Quantity::Z).is_err());
+        let kind = |text: &str, q: Quantity| parse(text, q).map(|_| ()).map_err(|e| e.kind);
+        for (text, q) in [
+            ("-0.3", Quantity::Ratio),
+            ("0", Quantity::Ratio),
+            ("1.2", Quantity::P),
+            ("-0.01", Quantity::P),
+            ("< 0", Quantity::P),
+            ("> 1", Quantity::P),
+            ("0", Quantity::Area),
+            ("-5", Quantity::MeanNn),
+        ] {
+            assert_eq!(kind(text, q), Err(ProblemKind::Impossible), "{text}");
+        }
+        for text in ["abc", "1.2.3", "inf", ""] {
+            assert_eq!(
+                kind(text, Quantity::Z),
+                Err(ProblemKind::NotANumber),
+                "{text}"
+            );
+        }
         // Issue 20: figures beyond any study overflow the recomputation.
         let e = parse("1e308", Quantity::Z).unwrap_err();
         assert!(
@@ -452,16 +487,22 @@ mod tests {
         );
         let e = parse("1e300", Quantity::MeanNn).unwrap_err();
         assert!(e.what.contains("between 1e-12 and 1e13"), "{}", e.what);
-        assert!(parse("1e300", Quantity::MeanNn).is_err());
-        assert!(parse("2e26", Quantity::Area).is_err());
-        assert!(parse("1e-300", Quantity::MeanNn).is_err());
+        for (text, q) in [
+            ("1e308", Quantity::Z),
+            ("1e300", Quantity::MeanNn),
+            ("2e26", Quantity::Area),
+            ("1e-300", Quantity::MeanNn),
+        ] {
+            assert_eq!(kind(text, q), Err(ProblemKind::OutOfRange), "{text}");
+        }
         assert!(parse("1e26", Quantity::Area).is_ok());
         assert!(parse("0", Quantity::Z).is_ok());
         assert!(parse("< 1e-30", Quantity::P).is_ok());
         assert_eq!(parse_count("64").unwrap(), 64);
         assert_eq!(parse_count("n = 64").unwrap(), 64);
-        assert!(parse_count("1").is_err());
-        assert!(parse_count("64.5").is_err());
-        assert!(parse_count("-3").is_err());
+        let count = |text: &str| parse_count(text).map_err(|e| e.kind);
+        assert_eq!(count("1"), Err(ProblemKind::TooFewPoints));
+        assert_eq!(count("64.5"), Err(ProblemKind::NotACount));
+        assert_eq!(count("-3"), Err(ProblemKind::NotACount));
     }
 }

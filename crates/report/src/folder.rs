@@ -112,9 +112,10 @@ pub struct Written {
 
 /// Why the folder could not be written. Apart from [`FolderError::BadName`]
 /// (a bug), every case is the user's to act on.
-#[derive(Debug)]
+#[derive(Debug, thiserror::Error)]
 pub enum FolderError {
     /// The target may not be replaced: what it is, and what to do.
+    #[error("{}: {what}\n  what to do: {todo}", path.display())]
     Refused {
         /// The target as given.
         path: PathBuf,
@@ -124,9 +125,19 @@ pub enum FolderError {
         todo: String,
     },
     /// The target is an earlier report and `--force` was not given.
+    #[error(
+        "{}: the folder already holds a report\n  what to do: pass --force to replace it, or choose a new --out folder",
+        .0.display()
+    )]
     Exists(PathBuf),
     /// A file-system error: the path as the user will know it (never the
     /// staging folder), what was being done, and what the path belongs to.
+    #[error(
+        "{}: could not {action}{}: {error}\n  what to do: {}",
+        path.display(),
+        part.as_deref().map_or(String::new(), |w| format!(" ({w})")),
+        advice(error)
+    )]
     Io {
         /// The path involved.
         path: PathBuf,
@@ -139,6 +150,13 @@ pub enum FolderError {
     },
     /// The new report could not be moved into place and the earlier one
     /// could not be moved back: it is kept whole in `kept`.
+    #[error(
+        "{}: the new report could not be moved into place ({error}), and the earlier report could not be moved back; it is kept whole in {}\n  what to do: move {} back to {} (the next run beside it does so too), then check that the folder is writable",
+        path.display(),
+        kept.display(),
+        kept.display(),
+        path.display()
+    )]
     Stranded {
         /// The target.
         path: PathBuf,
@@ -148,51 +166,11 @@ pub enum FolderError {
         error: io::Error,
     },
     /// Stopped (a signal) before the report was in place; nothing changed.
+    #[error("stopped before the new report was in place; nothing was changed")]
     Interrupted,
     /// A file name that is not a plain relative path: a bug.
+    #[error("the report has a file named `{0}`, which is not a plain relative path")]
     BadName(String),
-}
-
-impl std::fmt::Display for FolderError {
-    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        match self {
-            FolderError::Refused { path, what, todo } => {
-                write!(f, "{}: {what}\n  what to do: {todo}", path.display())
-            }
-            FolderError::Exists(p) => write!(
-                f,
-                "{}: the folder already holds a report\n  what to do: pass --force to replace it, or choose a new --out folder",
-                p.display()
-            ),
-            FolderError::Io {
-                path,
-                action,
-                part,
-                error,
-            } => write!(
-                f,
-                "{}: could not {action}{}: {error}\n  what to do: {}",
-                path.display(),
-                part.as_deref().map_or(String::new(), |w| format!(" ({w})")),
-                advice(error)
-            ),
-            FolderError::Stranded { path, kept, error } => write!(
-                f,
-                "{}: the new report could not be moved into place ({error}), and the earlier report could not be moved back; it is kept whole in {}\n  what to do: move {} back to {} (the next run beside it does so too), then check that the folder is writable",
-                path.display(),
-                kept.display(),
-                kept.display(),
-                path.display()
-            ),
-            FolderError::Interrupted => {
-                f.write_str("stopped before the new report was in place; nothing was changed")
-            }
-            FolderError::BadName(n) => write!(
-                f,
-                "the report has a file named `{n}`, which is not a plain relative path"
-            ),
-        }
-    }
 }
 
 /// Advice for a file-system error, by its kind.
@@ -533,6 +511,7 @@ mod tests {
         std::fs::create_dir(&foreign).unwrap();
         std::fs::write(foreign.join("thesis.tex"), "x").unwrap();
         let e = write_folder_with(&foreign, &report(2), true).unwrap_err();
+        assert!(matches!(e, FolderError::Refused { .. }), "{e:?}");
         assert!(e.to_string().contains("no .patternproof file list"), "{e}");
         assert!(foreign.join("thesis.tex").exists());
         assert_eq!(
@@ -551,6 +530,7 @@ mod tests {
         write_folder(&out, &report(1)).unwrap();
         std::fs::write(out.join("site/a/my-notes.txt"), "mine").unwrap();
         let e = write_folder_with(&out, &report(2), true).unwrap_err();
+        assert!(matches!(e, FolderError::Refused { .. }), "{e:?}");
         let text = e.to_string();
         assert!(
             text.contains(
@@ -567,6 +547,7 @@ mod tests {
         std::fs::write(theirs.join("report.json"), "{}").unwrap();
         std::fs::write(theirs.join("data.csv"), "x,y").unwrap();
         let e = write_folder_with(&theirs, &report(2), true).unwrap_err();
+        assert!(matches!(e, FolderError::Refused { .. }), "{e:?}");
         assert!(e.to_string().contains("did not list its files"), "{e}");
         assert_eq!(names(&theirs), ["data.csv", "report.json"]);
         assert_eq!(names(root.path()), ["out", "theirs"]);
@@ -672,6 +653,7 @@ mod tests {
         f.nest("site/a", site);
         f.describe("site/a", "the report of site `a`, from a.csv");
         let e = write_folder(&out, &f).unwrap_err();
+        assert!(matches!(e, FolderError::Io { .. }), "{e:?}");
         let text = e.to_string();
         assert!(
             text.starts_with(&format!("{}/site/a/nnn", out.display())),
@@ -707,6 +689,7 @@ mod tests {
         let mut f = OutputFolder::default();
         f.add("report.json", b"{}".to_vec());
         let e = write_folder(&target, &f).unwrap_err();
+        assert!(matches!(e, FolderError::Refused { .. }), "{e:?}");
         assert!(e.to_string().contains("and back up with `..`"), "{e}");
         assert!(!root.path().join("a").exists());
         assert!(!root.path().join("b").exists());

@@ -336,7 +336,7 @@ pub fn run_site_with(
         seed,
     };
     let shapes: Vec<NamedShape> = input.boundary.iter().cloned().collect();
-    let Some(audit) = run_audit(&input.points, &shapes, &options, tick) else {
+    let Ok(audit) = run_audit(&input.points, &shapes, &options, tick) else {
         return not_tested(input, seed, "no sweep could run on these points".into());
     };
     let Some(w) = pick::protocol_window(&audit, &protocol.window) else {
