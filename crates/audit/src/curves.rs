@@ -240,8 +240,8 @@ impl FocalOrder {
 mod tests {
     use super::*;
     use crate::sweep::{AuditOptions, run_audit};
-    use crate::window::Outline;
     use geo::{Contains, Scale};
+    use patternproof_window::Outline;
     use rand::RngExt;
     use rand::SeedableRng;
 
