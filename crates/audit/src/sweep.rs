@@ -348,7 +348,10 @@ fn rows_of_window(
         return (rows, skips, Vec::new());
     }
     let wants = |e: Edge| options.edges.contains(&e);
-    let prepared = PreparedWindow::of(w);
+    // Prepared only when asked something: the guard zone or simulations.
+    let prepared = (wants(Edge::Border) || options.sims > 0)
+        .then(|| PreparedWindow::of(w))
+        .flatten();
     let outline = if wants(Edge::Border) {
         prepared.as_ref().map(|p| p.guard_zone(guard))
     } else {

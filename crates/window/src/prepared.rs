@@ -361,7 +361,11 @@ mod tests {
                 let want = ring_distance(&shape, p);
                 if want > 0.0 {
                     assert_eq!(w.contains(p), shape.contains(&c), "{p:?}");
-                    assert_eq!(w.contains_by_crossings(p), shape.contains(&c), "{p:?}");
+                    // The crossing rule is not robust within rounding of
+                    // an edge (a point placed on one may land either side).
+                    if want > 1e-9 {
+                        assert_eq!(w.contains_by_crossings(p), shape.contains(&c), "{p:?}");
+                    }
                 } else {
                     // On the outline as far as geo's distance can tell;
                     // Intersects (checked above) is the exact answer.
