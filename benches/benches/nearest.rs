@@ -5,8 +5,9 @@
 
 use criterion::{BenchmarkId, Criterion, Throughput, criterion_group, criterion_main};
 use patternproof_benches::{SIDE, SIZES, thomas, uniform};
+use patternproof_core::Rectangle;
 use patternproof_core::nearest::nearest_distances;
-use patternproof_core::toroidal::{Rect, torus_nearest_distances};
+use patternproof_core::toroidal::torus_nearest_distances;
 use std::hint::black_box;
 use std::time::Duration;
 
@@ -22,7 +23,7 @@ fn plane(c: &mut Criterion) {
                 b.iter(|| nearest_distances(black_box(p)))
             });
         }
-        let square = Rect {
+        let square = Rectangle {
             min: [0.0, 0.0],
             max: [SIDE, SIDE],
         };

@@ -3,9 +3,9 @@
 //! points per pattern.
 
 use criterion::{BenchmarkId, Criterion, Throughput, criterion_group, criterion_main};
-use patternproof_audit::sampling::Sampler;
 use patternproof_audit::streams::stream;
 use patternproof_benches::{SIZES, square_with_hole};
+use patternproof_window::Sampler;
 use std::hint::black_box;
 use std::time::Duration;
 

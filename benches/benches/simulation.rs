@@ -5,10 +5,10 @@
 //! full sweep does. Issue 10's goals: under 0.15 s and 1.5 s on two cores.
 
 use criterion::{BenchmarkId, Criterion, criterion_group, criterion_main};
-use patternproof_audit::sampling::Sampler;
 use patternproof_audit::simulation::{Measure, simulate};
-use patternproof_audit::window::Outline;
 use patternproof_benches::square_with_hole;
+use patternproof_window::Outline;
+use patternproof_window::Sampler;
 use std::hint::black_box;
 use std::time::Duration;
 

@@ -240,9 +240,9 @@ impl FocalOrder {
 mod tests {
     use super::*;
     use crate::sweep::{AuditOptions, run_audit};
-    use crate::window::Outline;
     use approx::{abs_diff_eq, relative_eq};
     use geo::{Contains, Scale};
+    use patternproof_window::Outline;
     use rand::RngExt;
     use rand::SeedableRng;
 

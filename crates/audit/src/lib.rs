@@ -3,11 +3,9 @@
 //!
 //! | module | job |
 //! |---|---|
-//! | [`window`] | builds the study-area variants (`bbox`, `hull`, `hull+D`, `concave`, `boundary`, `area`) |
-//! | [`cover`] | which points a window covers: geo's point-in-polygon answer from edges bucketed by height |
+//! | [`window`] | the study-area variants, built by `patternproof_window` (re-exported) |
 //! | [`edge`] | the edge-handling choices as one enum |
 //! | [`error`] | why the sweep cannot start, with the number involved |
-//! | [`sampling`] | exact uniform points in a polygon with holes (for simulations) |
 //! | [`streams`] | per-simulation random streams derived from one seed |
 //! | [`simulation`] | CSR patterns in a window and the statistics taken on each |
 //! | [`sweep`] | the loop over windows × edges that yields the verdict table |
@@ -17,21 +15,21 @@
 //!
 //! A new edge correction is one more [`edge::Edge`] variant, one arm in
 //! [`sweep`], and its tests; a new window kind is one more
-//! [`window::WindowKind`] and a builder in [`window`].
+//! [`window::WindowKind`] and a builder in `patternproof_window::build`.
 
-pub mod cover;
 pub mod curves;
 pub mod edge;
 pub mod error;
 pub mod flip;
 pub mod robustness;
-pub mod sampling;
 pub mod simulation;
 pub mod streams;
 pub mod sweep;
 #[cfg(test)]
 mod test_shapes;
-pub mod window;
+/// Window building and geometry live in `patternproof_window`; these
+/// paths stay for callers of the audit.
+pub use patternproof_window::{build as window, sampling};
 
 pub use edge::Edge;
 pub use error::AuditError;

@@ -3,16 +3,15 @@
 //!
 //! Conditional on n (Besag & Diggle 1977): each simulated pattern is n
 //! independent uniform points in the window, holes honoured
-//! ([`crate::sampling`]). The same [`PatternStats`] is computed for the
+//! (`patternproof_window::sampling`). The same [`PatternStats`] is computed for the
 //! observed pattern and for each simulation, so the simulation rows and the
 //! false-alarm rates of the analytic rows come from one pass.
 
-use crate::sampling::Sampler;
 use crate::streams::stream;
-use crate::window::Outline;
+use patternproof_core::Rectangle;
 use patternproof_core::Xy;
 use patternproof_core::nearest::{Distances, mean};
-use patternproof_core::toroidal::Rect;
+use patternproof_window::{Outline, Sampler};
 use rayon::prelude::*;
 
 /// What to measure on each pattern.
@@ -23,7 +22,7 @@ pub struct Measure<'a> {
     /// Guard width for the border method; `None` skips it.
     pub guard: Option<f64>,
     /// The rectangle, for torus distances; `None` skips them.
-    pub rectangle: Option<Rect>,
+    pub rectangle: Option<Rectangle>,
 }
 
 /// The statistics of one pattern.
@@ -197,7 +196,7 @@ pub fn trial_seconds(points: &[Xy], enough: f64, most: usize) -> Option<f64> {
     let m = Measure {
         outline: Some(&outline),
         guard: Some(guard),
-        rectangle: Some(Rect {
+        rectangle: Some(Rectangle {
             min: [0.0, 0.0],
             max: [w, h],
         }),
@@ -236,7 +235,7 @@ mod tests {
         let m = Measure {
             outline: Some(&Outline::new(&sq, Some(2.0))),
             guard: Some(2.0),
-            rectangle: Some(Rect {
+            rectangle: Some(Rectangle {
                 min: [0.0, 0.0],
                 max: [50.0, 20.0],
             }),
@@ -297,7 +296,7 @@ mod csr_sanity {
         let m = Measure {
             outline: None,
             guard: None,
-            rectangle: Some(Rect {
+            rectangle: Some(Rectangle {
                 min: [0.0, 0.0],
                 max: [30.0, 20.0],
             }),

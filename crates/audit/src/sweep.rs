@@ -11,15 +11,15 @@ use crate::edge::Edge;
 use crate::error::AuditError;
 use crate::flip::{FlipEntry, flip_entries};
 use crate::robustness::{Summary, summarise};
-use crate::sampling::Sampler;
 use crate::simulation::{Measure, PatternStats, measure, measure_known, simulate};
-use crate::window::{NamedShape, Outline, Window, WindowKind, WindowOptions, build_windows};
+use crate::window::{NamedShape, Window, WindowKind, WindowOptions, build_windows};
 use geo::Translate;
 use patternproof_core::clark_evans::MIN_N_ANALYTIC;
 use patternproof_core::monte_carlo::{quantile, two_sided_rank_p};
 use patternproof_core::nearest::{mean, nearest_distances};
 use patternproof_core::normal::two_sided_critical;
 use patternproof_core::{Call, NnRatioTest, Xy, donnelly, guard_zone};
+use patternproof_window::PreparedWindow;
 use serde::Serialize;
 
 /// Fewest focal points for which the guard-zone row is reported; below it
@@ -362,11 +362,12 @@ fn rows_of_window(
         return (rows, skips, Vec::new());
     }
     let wants = |e: Edge| options.edges.contains(&e);
+    // Prepared only when asked something: the guard zone or simulations.
+    let prepared = (wants(Edge::Border) || options.sims > 0)
+        .then(|| PreparedWindow::of(w))
+        .flatten();
     let outline = if wants(Edge::Border) {
-        w.shape.as_ref().map(|s| match (&w.hull, w.buffer) {
-            (Some(hull), Some(d)) => Outline::around_buffered_hull(s, hull, d, Some(guard)),
-            _ => Outline::new(s, Some(guard)),
-        })
+        prepared.as_ref().map(|p| p.guard_zone(guard))
     } else {
         None
     };
@@ -386,9 +387,9 @@ fn rows_of_window(
     let Some(observed) = observed else {
         return (rows, skips, Vec::new());
     };
-    let sims: Vec<PatternStats> = match (&w.shape, options.sims) {
-        (Some(shape), k) if k > 0 => match Sampler::new(shape) {
-            Some(sampler) => simulate(&sampler, n, k, options.seed, &w.id, m, tick),
+    let sims: Vec<PatternStats> = match (&prepared, options.sims) {
+        (Some(prepared), k) if k > 0 => match prepared.sampler() {
+            Some(sampler) => simulate(sampler, n, k, options.seed, &w.id, m, tick),
             None => Vec::new(),
         },
         _ => Vec::new(),
@@ -677,7 +678,7 @@ mod tests {
     #[test]
     fn csr_in_a_small_square_shows_the_edge_bias() {
         let sq = crate::test_shapes::rectangle(10.0, 10.0);
-        let sampler = Sampler::new(&sq).expect("square has area");
+        let sampler = patternproof_window::Sampler::new(&sq).expect("square has area");
         let m = Measure {
             outline: None,
             guard: None,
@@ -715,7 +716,7 @@ mod tests {
     #[test]
     fn simulation_test_holds_its_size() {
         let sq = crate::test_shapes::rectangle(10.0, 10.0);
-        let sampler = Sampler::new(&sq).expect("square has area");
+        let sampler = patternproof_window::Sampler::new(&sq).expect("square has area");
         let m = Measure {
             outline: None,
             guard: None,

@@ -13,14 +13,6 @@ pub fn rectangle(w: f64, h: f64) -> MultiPolygon<f64> {
     MultiPolygon::new(vec![Polygon::new(rect_ring(0.0, 0.0, w, h), vec![])])
 }
 
-/// The rectangle [0, w] × [0, h] with the rectangular hole `[x0, y0, x1, y1]`.
-pub fn rectangle_with_hole(w: f64, h: f64, hole: [f64; 4]) -> MultiPolygon<f64> {
-    MultiPolygon::new(vec![Polygon::new(
-        rect_ring(0.0, 0.0, w, h),
-        vec![rect_ring(hole[0], hole[1], hole[2], hole[3])],
-    )])
-}
-
 /// xorshift64*: a tiny self-contained generator for test data only.
 pub struct Gen(pub u64);
 

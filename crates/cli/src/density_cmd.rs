@@ -5,7 +5,7 @@
 use crate::fail::Failure;
 use clap::Args;
 use patternproof_density::bandwidth::{BandwidthSpec, FIXED_RANGE, MULTIPLE_RANGE};
-use patternproof_density::edge::Edge;
+use patternproof_density::edge::DensityEdge;
 use patternproof_density::kernels::{self, Kernel};
 use patternproof_density::render::RunInfo;
 use patternproof_density::{Config, render};
@@ -104,7 +104,7 @@ fn parse_config(a: &DensityArgs, unit: &str) -> Result<Config, Failure> {
     }
     let mut edges = Vec::new();
     for e in &a.edge {
-        let edge = Edge::parse(e).ok_or_else(|| {
+        let edge = DensityEdge::parse(e).ok_or_else(|| {
             bad(
                 "--edge",
                 format!("unknown edge handling {e:?}"),
@@ -150,8 +150,8 @@ fn parse_config(a: &DensityArgs, unit: &str) -> Result<Config, Failure> {
             let k = Kernel::parse(k);
             let b = BandwidthSpec::parse(b);
             let e = match parts.get(2) {
-                Some(e) => Edge::parse(e),
-                None => Some(edges.first().copied().unwrap_or(Edge::None)),
+                Some(e) => DensityEdge::parse(e),
+                None => Some(edges.first().copied().unwrap_or(DensityEdge::None)),
             };
             match (k, b, e) {
                 (Some(k), Some(b), Some(e)) => (k, b, e),

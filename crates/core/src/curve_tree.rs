@@ -44,9 +44,9 @@
 //! query. Memory: about 50 bytes per point while building (keys, sorted
 //! points, order, boxes), 30 after.
 
+use crate::Rectangle;
 use crate::Xy;
 use crate::grid_nearest::finite_bounds;
-use crate::toroidal::Rect;
 use rayon::prelude::*;
 
 /// Points per leaf. Sixteen keeps the leaf scan short while the tree stays
@@ -176,7 +176,7 @@ impl CurveTree {
     /// shifted by (−w, 0, w) × (−h, 0, h), `rect` of positive width and
     /// height. Returns `false`, with `out` empty, when the tree is not
     /// built for that many points or the rectangle is empty.
-    pub fn torus_distances_into(&mut self, n: usize, rect: Rect, out: &mut Vec<f64>) -> bool {
+    pub fn torus_distances_into(&mut self, n: usize, rect: Rectangle, out: &mut Vec<f64>) -> bool {
         let period = [rect.max[0] - rect.min[0], rect.max[1] - rect.min[1]];
         if !(period[0] > 0.0 && period[1] > 0.0 && period[0].is_finite() && period[1].is_finite()) {
             out.clear();
@@ -394,7 +394,7 @@ mod tests {
         assert!(t.plane_distances_into(3, &mut d));
         assert_eq!(d, vec![5.0, 1.0, 1.0]);
         // On a 10 × 10 torus 0.5 and 9.5 are 1 apart.
-        let r = Rect {
+        let r = Rectangle {
             min: [0.0, 0.0],
             max: [10.0, 10.0],
         };

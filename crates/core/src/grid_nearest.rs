@@ -14,7 +14,7 @@
 //! at least the distance from the query to that side (sides beyond which
 //! no cell exists do not count). That bound is shrunk by a margin that
 //! covers every rounding error of the bucketing and of the side positions
-//! (a few ulps of the largest coordinate; see [`Grid::guard`]), and the
+//! (a few ulps of the largest coordinate; see [`BucketGrid::guard`]), and the
 //! squared bound is shrunk by a few ulps more, so a rounding error can only
 //! make the search look one ring further, never stop early. The distance
 //! itself is the square root of `dx·dx + dy·dy`, the same expression
@@ -26,7 +26,7 @@
 //! evaluated exactly as [`crate::toroidal`] always has.
 //!
 //! Heavily clustered data would put many points in a few cells and make
-//! the scan quadratic. [`Grid::rebuild`] estimates the scan's work from the
+//! the scan quadratic. [`BucketGrid::rebuild`] estimates the scan's work from the
 //! cell counts; past `WORK_PER_POINT` candidate checks per point on average
 //! it tries cells 4 and then 16 times smaller (for large patterns a sample
 //! guesses the fineness first), and beyond that refuses (returns `false`).
@@ -40,8 +40,8 @@
 //! also built in parallel, in two passes (into rows, then into the cells
 //! of each row), which gives the serial build's order exactly.
 
+use crate::Rectangle;
 use crate::Xy;
-use crate::toroidal::Rect;
 use rayon::prelude::*;
 
 /// Target number of points per cell. About one keeps the 3 × 3 block that
@@ -73,10 +73,10 @@ const PARALLEL_BUILD_FROM: usize = 1 << 16;
 const BUILD_CHUNK: usize = 1 << 14;
 
 /// A uniform bucket grid over a set of points, reusable across patterns
-/// (its buffers keep their capacity between [`Grid::rebuild`] calls, so a
+/// (its buffers keep their capacity between [`BucketGrid::rebuild`] calls, so a
 /// simulation loop allocates nothing per pattern once warmed up).
 #[derive(Debug, Clone, Default)]
-pub struct Grid {
+pub struct BucketGrid {
     /// Lower-left corner of cell (0, 0).
     origin: Xy,
     /// Cell width and height.
@@ -108,20 +108,20 @@ pub struct Grid {
     n: usize,
 }
 
-impl Grid {
-    /// An empty grid; call [`Grid::rebuild`] before querying.
+impl BucketGrid {
+    /// An empty grid; call [`BucketGrid::rebuild`] before querying.
     pub fn new() -> Self {
         Self::default()
     }
 
     /// Bucket `points`. The grid spans `frame` when given (the torus
-    /// rectangle; enables [`Grid::torus_distances_into`] provided every
+    /// rectangle; enables [`BucketGrid::torus_distances_into`] provided every
     /// point lies in it) and the points' bounding box otherwise.
     ///
     /// Returns `false`, leaving the grid unusable, when the grid would not
     /// pay: fewer than two points, a non-finite coordinate or frame, or
     /// cells so full that the R*-tree is the better tool.
-    pub fn rebuild(&mut self, points: &[Xy], frame: Option<Rect>) -> bool {
+    pub fn rebuild(&mut self, points: &[Xy], frame: Option<Rectangle>) -> bool {
         let build = if points.len() >= PARALLEL_BUILD_FROM {
             Build::Rows { chunk: BUILD_CHUNK }
         } else {
@@ -130,9 +130,9 @@ impl Grid {
         self.rebuild_as(points, frame, build)
     }
 
-    /// [`Grid::rebuild`] with the build chosen by the caller (tests run
+    /// [`BucketGrid::rebuild`] with the build chosen by the caller (tests run
     /// both builds on the same small patterns).
-    fn rebuild_as(&mut self, points: &[Xy], frame: Option<Rect>, build: Build) -> bool {
+    fn rebuild_as(&mut self, points: &[Xy], frame: Option<Rectangle>, build: Build) -> bool {
         self.n = 0;
         self.cell_of.clear();
         self.period = None;
@@ -350,7 +350,7 @@ impl Grid {
             .unwrap_or(0)
     }
 
-    /// Parallel bucketing, second pass (after [`Grid::count_by_rows`]):
+    /// Parallel bucketing, second pass (after [`BucketGrid::count_by_rows`]):
     /// cell counts into cell starts, then each row's points into its cells,
     /// rows in parallel. The result is the same stable counting sort the
     /// serial build makes, bit for bit.
@@ -433,7 +433,7 @@ impl Grid {
     }
 
     /// Plane nearest-neighbour distance of every point (the same `points`
-    /// passed to [`Grid::rebuild`]) into `out`, in input order. Returns
+    /// passed to [`BucketGrid::rebuild`]) into `out`, in input order. Returns
     /// `false` (and leaves `out` empty) when the grid was not built for
     /// these points.
     pub fn plane_distances_into(&self, points: &[Xy], out: &mut Vec<f64>) -> bool {
@@ -623,7 +623,7 @@ impl Grid {
         self.torus_nearest_at(self.slot[i] as usize, p, ci, cj, period)
     }
 
-    /// [`Grid::torus_nearest`] for the point at sorted position `own`, in
+    /// [`BucketGrid::torus_nearest`] for the point at sorted position `own`, in
     /// cell (ci, cj).
     fn torus_nearest_at(&self, own: usize, p: Xy, ci: usize, cj: usize, period: [f64; 2]) -> f64 {
         let [w, h] = period;
@@ -794,7 +794,7 @@ fn min_square(v: f64, shifted: [f64; 3]) -> f64 {
     if c < ab { c } else { ab }
 }
 
-/// How [`Grid::rebuild`] sorts the points into cells.
+/// How [`BucketGrid::rebuild`] sorts the points into cells.
 #[derive(Debug, Clone, Copy)]
 enum Build {
     /// One pass in input order, each point's cell recorded.
@@ -1072,7 +1072,7 @@ mod tests {
 
     #[test]
     fn plane_distances_match_brute_force_bit_for_bit() {
-        let mut grid = Grid::new();
+        let mut grid = BucketGrid::new();
         let mut d = Vec::new();
         for (k, pts) in cases().iter().enumerate() {
             let want = brute_plane(pts);
@@ -1081,7 +1081,7 @@ mod tests {
                 assert!(grid.plane_distances_into(pts, &mut d));
                 assert_eq!(d, want, "case {k}");
             }
-            let bigger = Rect {
+            let bigger = Rectangle {
                 min: [-2e4, -2e4],
                 max: [6e6, 6e6],
             };
@@ -1098,10 +1098,10 @@ mod tests {
     /// grid they give answers as the brute-force scan does.
     #[test]
     fn both_builds_sort_alike_and_answer_alike() {
-        let mut serial = Grid::new();
-        let mut rows = Grid::new();
+        let mut serial = BucketGrid::new();
+        let mut rows = BucketGrid::new();
         let mut d = Vec::new();
-        let frame = Rect {
+        let frame = Rectangle {
             min: [-2e4, -2e4],
             max: [6e6, 6e6],
         };
@@ -1152,14 +1152,14 @@ mod tests {
             pts[k + 1000] = pts[k];
         }
         assert!(pts.len() >= PARALLEL_BUILD_FROM);
-        let mut grid = Grid::new();
-        let frame = Rect {
+        let mut grid = BucketGrid::new();
+        let frame = Rectangle {
             min: [-5.0, -5.0],
             max: [1010.0, 1010.0],
         };
         assert!(grid.rebuild(&pts, Some(frame)));
         assert!(grid.cell_of.is_empty(), "the row build records no cells");
-        let mut serial = Grid::new();
+        let mut serial = BucketGrid::new();
         assert!(serial.rebuild_as(&pts, Some(frame), Build::Serial));
         assert_eq!((grid.nx, grid.ny), (serial.nx, serial.ny));
         assert!(grid.start == serial.start && grid.sorted == serial.sorted);
@@ -1179,7 +1179,7 @@ mod tests {
 
     #[test]
     fn uniform_data_uses_the_grid_and_clustered_data_may_not() {
-        let mut grid = Grid::new();
+        let mut grid = BucketGrid::new();
         let c = cases();
         assert!(grid.rebuild(&c[4], None), "143 uniform points");
         // 500 identical points: 250 000 checks in one cell, so refused.
@@ -1193,23 +1193,23 @@ mod tests {
     #[test]
     fn torus_distances_match_brute_force_bit_for_bit() {
         let mut g = Gen(42);
-        let mut grid = Grid::new();
+        let mut grid = BucketGrid::new();
         let mut d = Vec::new();
         let rects = [
-            Rect {
+            Rectangle {
                 min: [0.0, 0.0],
                 max: [10.0, 10.0],
             },
-            Rect {
+            Rectangle {
                 min: [2.0, -1.0],
                 max: [12.0, 5.0],
             },
-            Rect {
+            Rectangle {
                 min: [5.3e6, 4.1e5],
                 max: [5.3e6 + 250.0, 4.1e5 + 90.0],
             },
             // Very thin: one cell across.
-            Rect {
+            Rectangle {
                 min: [0.0, 0.0],
                 max: [100.0, 0.5],
             },
@@ -1243,12 +1243,12 @@ mod tests {
 
     #[test]
     fn points_outside_the_frame_disable_the_torus_only() {
-        let r = Rect {
+        let r = Rectangle {
             min: [0.0, 0.0],
             max: [10.0, 10.0],
         };
         let pts = [[1.0, 1.0], [2.0, 3.0], [11.0, 5.0]];
-        let mut grid = Grid::new();
+        let mut grid = BucketGrid::new();
         assert!(grid.rebuild(&pts, Some(r)));
         assert!(!grid.wraps());
         let mut d = Vec::new();
@@ -1259,7 +1259,7 @@ mod tests {
 
     #[test]
     fn non_finite_or_tiny_inputs_are_refused() {
-        let mut grid = Grid::new();
+        let mut grid = BucketGrid::new();
         assert!(!grid.rebuild(&[[0.0, 0.0]], None));
         assert!(!grid.rebuild(&[[0.0, 0.0], [f64::NAN, 1.0]], None));
         assert!(!grid.rebuild(&[[0.0, 0.0], [f64::INFINITY, 1.0]], None));

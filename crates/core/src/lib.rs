@@ -43,3 +43,27 @@ pub use flip::FlipThresholds;
 
 /// A point in a projected plane, `[x, y]`.
 pub type Xy = [f64; 2];
+
+/// An axis-aligned rectangle `[min_x, min_y]`–`[max_x, max_y]`: a
+/// rectangular window, the frame a torus wraps, the extent a bucket grid
+/// covers. One type for all of them, so a window's rectangle goes to the
+/// torus and the edge weights as it is.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Rectangle {
+    /// Lower-left corner.
+    pub min: Xy,
+    /// Upper-right corner.
+    pub max: Xy,
+}
+
+impl Rectangle {
+    /// Extent along x.
+    pub fn width(&self) -> f64 {
+        self.max[0] - self.min[0]
+    }
+
+    /// Extent along y.
+    pub fn height(&self) -> f64 {
+        self.max[1] - self.min[1]
+    }
+}

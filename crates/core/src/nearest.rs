@@ -16,10 +16,11 @@
 //! patterns are queried in parallel with `rayon`; each result lands at its
 //! own index, so the output does not depend on the thread count.
 
+use crate::Rectangle;
 use crate::Xy;
 use crate::curve_tree::CurveTree;
-use crate::grid_nearest::Grid;
-use crate::toroidal::{Rect, torus_tree_distances};
+use crate::grid_nearest::BucketGrid;
+use crate::toroidal::torus_tree_distances;
 use rayon::prelude::*;
 use rstar::RTree;
 use rstar::primitives::GeomWithData;
@@ -86,7 +87,7 @@ pub fn nearest_distances_of(points: &[Xy], focal: &[usize]) -> Option<Vec<f64>> 
 /// per pattern, and the plane and torus searches share one grid.
 #[derive(Debug, Clone, Default)]
 pub struct Distances {
-    grid: Grid,
+    grid: BucketGrid,
     tree: CurveTree,
     /// Plane distances of the last pattern measured, input order.
     pub plane: Vec<f64>,
@@ -106,7 +107,7 @@ impl Distances {
     /// `torus` (otherwise `torus` is left empty). Returns `false`, with both
     /// empty, for fewer than two points. Same values as
     /// [`nearest_distances`] and [`crate::toroidal::torus_nearest_distances`].
-    pub fn measure(&mut self, points: &[Xy], torus: Option<Rect>) -> bool {
+    pub fn measure(&mut self, points: &[Xy], torus: Option<Rectangle>) -> bool {
         self.plane.clear();
         self.torus.clear();
         if points.len() < 2 {
@@ -264,7 +265,7 @@ mod tests {
                 want,
                 "case {case} (Z-order tree)"
             );
-            if Grid::new().rebuild(&pts, None) {
+            if BucketGrid::new().rebuild(&pts, None) {
                 on_grid += 1;
             }
         }
@@ -290,7 +291,7 @@ mod tests {
                 }
             }
             let grow = if g.unit() < 0.5 { 0.0 } else { g.unit() };
-            let r = Rect {
+            let r = Rectangle {
                 min: [lo[0] - grow, lo[1] - grow],
                 max: [hi[0] + grow, hi[1] + grow],
             };
@@ -319,7 +320,7 @@ mod tests {
             assert!(ws.measure(&raw, Some(r)));
             assert_eq!(ws.torus, want, "case {case}");
             assert_eq!(ws.plane, brute_plane(&raw), "case {case}");
-            let mut grid = Grid::new();
+            let mut grid = BucketGrid::new();
             if grid.rebuild(&raw, Some(r)) && grid.wraps() {
                 wrapped += 1;
             }
@@ -374,7 +375,7 @@ mod tests {
                 [c[0] + 1e-9 * g.unit(), c[1] + 1e-9 * g.unit()]
             })
             .collect();
-        let mut grid = Grid::new();
+        let mut grid = BucketGrid::new();
         for (name, pts, on_grid) in [
             ("uniform", &uniform, true),
             ("clustered", &clustered, true),
@@ -395,7 +396,7 @@ mod tests {
         }
         // Torus distances of the uniform pattern in its 300 × 200 frame, on
         // the grid and on the Z-order tree.
-        let r = Rect {
+        let r = Rectangle {
             min: [0.0, 0.0],
             max: [300.0, 200.0],
         };
@@ -428,7 +429,7 @@ mod tests {
         assert!(curve.torus_distances_into(uniform.len(), r, &mut d));
         assert_eq!(d, want, "uniform torus (tree)");
         // The tight clusters' torus distances come from the tree as well.
-        let rt = Rect {
+        let rt = Rectangle {
             min: [-1.0, -1.0],
             max: [1e6 + 1.0, 1e6 + 1.0],
         };

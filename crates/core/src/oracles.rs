@@ -2,8 +2,8 @@
 //! seeded generator for test patterns and the brute-force oracles every
 //! indexed search is checked against, bit for bit.
 
+use crate::Rectangle;
 use crate::Xy;
-use crate::toroidal::Rect;
 
 /// xorshift64*: a tiny self-contained generator for test data only.
 pub(crate) struct Gen(pub(crate) u64);
@@ -32,7 +32,7 @@ pub(crate) fn brute_plane(points: &[Xy]) -> Vec<f64> {
 
 /// Brute-force torus oracle: every other point against the nine shifted
 /// copies of the query (the definition of the flat torus distance).
-pub(crate) fn brute_torus(points: &[Xy], r: Rect) -> Vec<f64> {
+pub(crate) fn brute_torus(points: &[Xy], r: Rectangle) -> Vec<f64> {
     let (w, h) = (r.max[0] - r.min[0], r.max[1] - r.min[1]);
     brute(points, &[-w, 0.0, w], &[-h, 0.0, h])
 }

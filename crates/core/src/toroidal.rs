@@ -15,32 +15,24 @@
 //! shortest of the nine answers is the torus distance. Both give the same
 //! bits.
 
-use crate::Xy;
 use crate::nearest::Distances;
+use crate::{Rectangle, Xy};
 use rayon::prelude::*;
 use rstar::RTree;
 use rstar::primitives::GeomWithData;
-
-/// An axis-aligned rectangle `[min_x, min_y]`–`[max_x, max_y]`.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct Rect {
-    /// Lower-left corner.
-    pub min: Xy,
-    /// Upper-right corner.
-    pub max: Xy,
-}
 
 /// Torus nearest-neighbour distance of every point in `rect`, input order.
 /// `None` for fewer than two points or an empty rectangle.
 ///
 /// ```
-/// use patternproof_core::toroidal::{Rect, torus_nearest_distances};
-/// let r = Rect { min: [0.0, 0.0], max: [10.0, 10.0] };
+/// use patternproof_core::Rectangle;
+/// use patternproof_core::toroidal::torus_nearest_distances;
+/// let r = Rectangle { min: [0.0, 0.0], max: [10.0, 10.0] };
 /// // 0.5 and 9.5 are 1 apart across the wrap, 9 apart in the plane.
 /// let d = torus_nearest_distances(&[[0.5, 5.0], [9.5, 5.0]], r).unwrap();
 /// assert!((d[0] - 1.0).abs() < 1e-12 && (d[1] - 1.0).abs() < 1e-12);
 /// ```
-pub fn torus_nearest_distances(points: &[Xy], rect: Rect) -> Option<Vec<f64>> {
+pub fn torus_nearest_distances(points: &[Xy], rect: Rectangle) -> Option<Vec<f64>> {
     let (w, h) = (rect.max[0] - rect.min[0], rect.max[1] - rect.min[1]);
     if points.len() < 2 || !(w > 0.0 && h > 0.0) {
         return None;
@@ -53,7 +45,7 @@ pub fn torus_nearest_distances(points: &[Xy], rect: Rect) -> Option<Vec<f64>> {
 /// The R*-tree engine alone: same answers as [`torus_nearest_distances`],
 /// kept public as the fallback and for comparing the two engines. `None`
 /// for fewer than two points or an empty rectangle.
-pub fn torus_tree_distances(points: &[Xy], rect: Rect) -> Option<Vec<f64>> {
+pub fn torus_tree_distances(points: &[Xy], rect: Rectangle) -> Option<Vec<f64>> {
     let (w, h) = (rect.max[0] - rect.min[0], rect.max[1] - rect.min[1]);
     if points.len() < 2 || !(w > 0.0 && h > 0.0) {
         return None;
@@ -100,7 +92,7 @@ mod tests {
     /// (10, −10) is (11, −1), 2 from (11, 1).
     #[test]
     fn a_point_outside_falls_back_to_the_tree() {
-        let r = Rect {
+        let r = Rectangle {
             min: [0.0, 0.0],
             max: [10.0, 10.0],
         };
@@ -114,7 +106,7 @@ mod tests {
     /// min(|dx|, w − |dx|) (definition of the flat torus; common practice).
     #[test]
     fn agrees_with_brute_force() {
-        let rect = Rect {
+        let rect = Rectangle {
             min: [2.0, -1.0],
             max: [12.0, 5.0],
         };

@@ -22,7 +22,7 @@ use serde::Serialize;
 /// An edge handling.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize)]
 #[serde(rename_all = "lowercase")]
-pub enum Edge {
+pub enum DensityEdge {
     /// No correction.
     None,
     /// Divide by the kernel mass inside the window at each cell.
@@ -31,13 +31,13 @@ pub enum Edge {
     Diggle,
 }
 
-impl Edge {
+impl DensityEdge {
     /// Parse a name.
-    pub fn parse(s: &str) -> Option<Edge> {
+    pub fn parse(s: &str) -> Option<DensityEdge> {
         match s.trim().to_ascii_lowercase().as_str() {
-            "none" => Some(Edge::None),
-            "uniform" => Some(Edge::Uniform),
-            "diggle" => Some(Edge::Diggle),
+            "none" => Some(DensityEdge::None),
+            "uniform" => Some(DensityEdge::Uniform),
+            "diggle" => Some(DensityEdge::Diggle),
             _ => None,
         }
     }
@@ -45,9 +45,9 @@ impl Edge {
     /// The name used in outputs.
     pub fn name(self) -> &'static str {
         match self {
-            Edge::None => "none",
-            Edge::Uniform => "uniform",
-            Edge::Diggle => "diggle",
+            DensityEdge::None => "none",
+            DensityEdge::Uniform => "uniform",
+            DensityEdge::Diggle => "diggle",
         }
     }
 }
@@ -72,7 +72,7 @@ pub fn estimate(
     mask: &[bool],
     kernel: Kernel,
     h: f64,
-    edge: Edge,
+    edge: DensityEdge,
 ) -> Estimate {
     let n = points.len().max(1) as f64;
     let a = grid.cell_area();
@@ -94,14 +94,14 @@ pub fn estimate(
         e
     };
     let mut values = match edge {
-        Edge::None => {
+        DensityEdge::None => {
             let mut bins = grid.bin(points, None);
             for b in &mut bins {
                 *b /= n;
             }
             convolve(&bins, grid.nx, grid.ny, grid.cell, kernel, h)
         }
-        Edge::Uniform => {
+        DensityEdge::Uniform => {
             let e = kernel_mass_inside();
             let mut bins = grid.bin(points, None);
             for b in &mut bins {
@@ -113,7 +113,7 @@ pub fn estimate(
             }
             f
         }
-        Edge::Diggle => {
+        DensityEdge::Diggle => {
             let e = kernel_mass_inside();
             let w: Vec<f64> = points
                 .iter()
@@ -133,7 +133,7 @@ pub fn estimate(
     }
     let mass_inside = inside_mass(&values);
     Estimate {
-        mass_outside: (edge == Edge::None).then_some((1.0 - mass_inside).max(0.0)),
+        mass_outside: (edge == DensityEdge::None).then_some((1.0 - mass_inside).max(0.0)),
         values,
         mass_inside,
     }

@@ -5,8 +5,8 @@
 //! row `j = 0` is the southern edge; values are stored row by row,
 //! index `j·nx + i`.
 
-use geo::{BoundingRect, MultiPolygon};
 use patternproof_core::Xy;
+use patternproof_window::PreparedWindow;
 use serde::Serialize;
 
 /// A raster geometry.
@@ -33,8 +33,8 @@ pub const MAX_CELLS: usize = 16_000_000;
 impl Grid {
     /// The raster over `window` with cells of side `cell` (default: the
     /// long side of the bounding box over [`DEFAULT_LONG_SIDE_CELLS`]).
-    pub fn over(window: &MultiPolygon<f64>, cell: Option<f64>) -> Option<Grid> {
-        let r = window.bounding_rect()?;
+    pub fn over(window: &PreparedWindow, cell: Option<f64>) -> Option<Grid> {
+        let r = window.bounds()?;
         let (w, h) = (r.width(), r.height());
         let cell = cell.unwrap_or(w.max(h) / DEFAULT_LONG_SIDE_CELLS);
         if !(cell.is_finite() && cell > 0.0) {
@@ -43,8 +43,8 @@ impl Grid {
         let nx = (w / cell).ceil().max(1.0) as usize + 2;
         let ny = (h / cell).ceil().max(1.0) as usize + 2;
         // Centre the raster on the box.
-        let x0 = r.min().x - ((nx as f64) * cell - w) / 2.0;
-        let y0 = r.min().y - ((ny as f64) * cell - h) / 2.0;
+        let x0 = r.min[0] - ((nx as f64) * cell - w) / 2.0;
+        let y0 = r.min[1] - ((ny as f64) * cell - h) / 2.0;
         Some(Grid {
             x0,
             y0,
@@ -77,42 +77,11 @@ impl Grid {
         ]
     }
 
-    /// Which cells have their centre inside the window (even–odd rule, so
-    /// holes and several parts are handled), by scanlines through the
-    /// cell-centre rows.
-    pub fn mask(&self, window: &MultiPolygon<f64>) -> Vec<bool> {
-        let mut edges: Vec<(f64, f64, f64, f64)> = Vec::new();
-        for poly in &window.0 {
-            for ring in std::iter::once(poly.exterior()).chain(poly.interiors()) {
-                for l in ring.lines() {
-                    edges.push((l.start.x, l.start.y, l.end.x, l.end.y));
-                }
-            }
-        }
-        let mut mask = vec![false; self.len()];
-        let mut xs: Vec<f64> = Vec::new();
-        for j in 0..self.ny {
-            let y = self.y0 + (j as f64 + 0.5) * self.cell;
-            xs.clear();
-            for &(ax, ay, bx, by) in &edges {
-                if (ay <= y) != (by <= y) {
-                    xs.push(ax + (y - ay) / (by - ay) * (bx - ax));
-                }
-            }
-            xs.sort_by(f64::total_cmp);
-            for pair in xs.chunks_exact(2) {
-                let from = ((pair[0] - self.x0) / self.cell - 0.5).ceil().max(0.0) as usize;
-                let to = ((pair[1] - self.x0) / self.cell - 0.5).floor();
-                if to < 0.0 {
-                    continue;
-                }
-                let to = (to as usize).min(self.nx - 1);
-                for i in from..=to {
-                    mask[j * self.nx + i] = true;
-                }
-            }
-        }
-        mask
+    /// Which cells have their centre inside the window
+    /// ([`PreparedWindow::lattice_inside`]: the even–odd rule along the
+    /// rows of centres, so holes and several parts are handled).
+    pub fn mask(&self, window: &PreparedWindow) -> Vec<bool> {
+        window.lattice_inside([self.x0, self.y0], self.cell, self.nx, self.ny)
     }
 
     /// Bilinear weights of a location over the four surrounding cell
@@ -166,7 +135,7 @@ impl Grid {
 mod tests {
     use super::*;
     use approx::assert_abs_diff_eq;
-    use geo::polygon;
+    use geo::{MultiPolygon, polygon};
 
     #[test]
     fn mask_of_a_square_with_a_hole() {
@@ -174,6 +143,7 @@ mod tests {
             exterior: [(x: 0.0, y: 0.0), (x: 10.0, y: 0.0), (x: 10.0, y: 10.0), (x: 0.0, y: 10.0)],
             interiors: [[(x: 4.0, y: 4.0), (x: 6.0, y: 4.0), (x: 6.0, y: 6.0), (x: 4.0, y: 6.0)]],
         ]]);
+        let w = PreparedWindow::new(w, None);
         let g = Grid::over(&w, Some(1.0)).unwrap();
         assert_eq!((g.nx, g.ny), (12, 12));
         let inside = g.mask(&w).iter().filter(|m| **m).count();

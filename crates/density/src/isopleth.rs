@@ -150,7 +150,7 @@ mod tests {
             &mask,
             crate::kernels::Kernel::Gaussian,
             sigma,
-            crate::edge::Edge::None,
+            crate::edge::DensityEdge::None,
         );
         for (p, tol) in [(0.95, 0.01), (0.5, 0.02)] {
             let r = region(&e.values, &mask, g.cell_area(), p);

@@ -22,12 +22,13 @@ pub mod render;
 pub mod verdict;
 
 use bandwidth::{BandwidthSpec, Lcv, Scott};
-use edge::Edge;
-use geo::{Contains, Intersects, MultiPolygon, Point};
+use edge::DensityEdge;
+use geo::MultiPolygon;
 use grid::Grid;
 use kernels::Kernel;
 use patternproof_core::Xy;
 use patternproof_report::numbers::sig;
+use patternproof_window::PreparedWindow;
 use rayon::prelude::*;
 
 /// Jaccard overlap at or above which the main hotspot counts as staying in place.
@@ -41,13 +42,13 @@ pub struct Config {
     /// Bandwidths.
     pub bandwidths: Vec<BandwidthSpec>,
     /// Edge handlings.
-    pub edges: Vec<Edge>,
+    pub edges: Vec<DensityEdge>,
     /// Isopleth levels as shares in (0, 1), ascending.
     pub levels: Vec<f64>,
     /// Cell side (default: about 250 cells on the long side).
     pub cell: Option<f64>,
     /// The reference surface.
-    pub reference: (Kernel, BandwidthSpec, Edge),
+    pub reference: (Kernel, BandwidthSpec, DensityEdge),
     /// Name of the distance unit (areas are in its square).
     pub unit: String,
 }
@@ -112,7 +113,7 @@ pub struct Surface {
     /// The bandwidth as asked for.
     pub spec: BandwidthSpec,
     /// Edge handling.
-    pub edge: Edge,
+    pub edge: DensityEdge,
     /// The bandwidth used, in the kernel's own parametrisation.
     pub bandwidth: f64,
     /// The Gaussian standard deviation with the same canonical smoothing.
@@ -176,7 +177,7 @@ pub struct Analysis {
 struct Raw {
     kernel: Kernel,
     spec: BandwidthSpec,
-    edge: Edge,
+    edge: DensityEdge,
     bandwidth: f64,
     rule: String,
     estimate: edge::Estimate,
@@ -236,13 +237,12 @@ pub fn analyse(
     config: &Config,
 ) -> Result<Analysis, DensityError> {
     let mut warnings = Vec::new();
+    // Points on the outline are in the window (PreparedWindow::contains).
+    let window = PreparedWindow::new(window.clone(), None);
     let inside: Vec<Xy> = points
         .iter()
         .copied()
-        .filter(|p| {
-            let q = Point::new(p[0], p[1]);
-            window.contains(&q) || window.intersects(&q)
-        })
+        .filter(|&p| window.contains(p))
         .collect();
     let outside = points.len() - inside.len();
     if outside > 0 {
@@ -253,11 +253,11 @@ pub fn analyse(
     if inside.len() < 2 {
         return Err(DensityError::TooFewPoints(inside.len()));
     }
-    let grid = Grid::over(window, config.cell).ok_or(DensityError::EmptyWindow)?;
+    let grid = Grid::over(&window, config.cell).ok_or(DensityError::EmptyWindow)?;
     if grid.len() > grid::MAX_CELLS {
         return Err(DensityError::TooManyCells(grid.len()));
     }
-    let mask = grid.mask(window);
+    let mask = grid.mask(&window);
     if !mask.iter().any(|m| *m) {
         return Err(DensityError::EmptyWindow);
     }
@@ -421,10 +421,14 @@ mod tests {
         let config = |cell: f64| Config {
             kernels: vec![Kernel::Gaussian],
             bandwidths: vec![BandwidthSpec::Fixed(2.0)],
-            edges: vec![Edge::None],
+            edges: vec![DensityEdge::None],
             levels: vec![0.5],
             cell: Some(cell),
-            reference: (Kernel::Gaussian, BandwidthSpec::Fixed(2.0), Edge::None),
+            reference: (
+                Kernel::Gaussian,
+                BandwidthSpec::Fixed(2.0),
+                DensityEdge::None,
+            ),
             unit: "m".into(),
         };
         let e = analyse(&[[5.0, 5.0], [50.0, 5.0]], &square, &config(1.0)).unwrap_err();
@@ -457,10 +461,10 @@ mod tests {
         let config = |kernel: Kernel, bandwidth: BandwidthSpec, cell: f64| Config {
             kernels: vec![kernel],
             bandwidths: vec![bandwidth],
-            edges: vec![Edge::None],
+            edges: vec![DensityEdge::None],
             levels: vec![0.5],
             cell: Some(cell),
-            reference: (kernel, bandwidth, Edge::None),
+            reference: (kernel, bandwidth, DensityEdge::None),
             unit: "m".into(),
         };
         let band = ring(vec![
@@ -514,10 +518,10 @@ mod tests {
         let config = |h: f64| Config {
             kernels: vec![Kernel::Gaussian],
             bandwidths: vec![BandwidthSpec::Fixed(h)],
-            edges: vec![Edge::None],
+            edges: vec![DensityEdge::None],
             levels: vec![0.5],
             cell: Some(1.0),
-            reference: (Kernel::Gaussian, BandwidthSpec::Fixed(h), Edge::None),
+            reference: (Kernel::Gaussian, BandwidthSpec::Fixed(h), DensityEdge::None),
             unit: "m".into(),
         };
         for h in [1e-300, 1e300] {

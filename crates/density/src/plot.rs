@@ -133,7 +133,7 @@ pub fn small_multiples_svg(a: &Analysis, unit: &str) -> String {
         .edges
         .first()
         .copied()
-        .unwrap_or(crate::edge::Edge::None);
+        .unwrap_or(crate::edge::DensityEdge::None);
     let kernels = &a.config.kernels;
     let specs = &a.config.bandwidths;
     let g = &a.grid;
@@ -341,7 +341,7 @@ pub fn area_chart_svg(a: &Analysis, unit: &str) -> Option<String> {
 mod tests {
     use super::*;
     use crate::bandwidth::BandwidthSpec;
-    use crate::edge::Edge;
+    use crate::edge::DensityEdge;
     use crate::kernels::Kernel;
     use crate::{Config, analyse};
     use approx::abs_diff_eq;
@@ -368,10 +368,14 @@ mod tests {
         let config = Config {
             kernels: vec![Kernel::Gaussian],
             bandwidths: vec![BandwidthSpec::Fixed(3.0)],
-            edges: vec![Edge::None],
+            edges: vec![DensityEdge::None],
             levels: vec![0.5, 0.95],
             cell: Some(cell),
-            reference: (Kernel::Gaussian, BandwidthSpec::Fixed(3.0), Edge::None),
+            reference: (
+                Kernel::Gaussian,
+                BandwidthSpec::Fixed(3.0),
+                DensityEdge::None,
+            ),
             unit: "m".into(),
         };
         analyse(&pts, &square, &config).unwrap()

@@ -3,10 +3,11 @@
 
 use approx::{abs_diff_eq, assert_abs_diff_eq};
 use geo::{MultiPolygon, polygon};
-use patternproof_density::edge::{Edge, estimate};
+use patternproof_density::edge::{DensityEdge, estimate};
 use patternproof_density::geotiff;
 use patternproof_density::grid::Grid;
 use patternproof_density::kernels::Kernel;
+use patternproof_window::PreparedWindow;
 use std::io::Cursor;
 use tiff::decoder::Decoder;
 use tiff::tags::Tag;
@@ -40,7 +41,14 @@ fn gaussian_surface_matches_scipy_gaussian_kde() {
     };
     let mask = vec![true; grid.len()];
     let sigma = r["sigma"].as_f64().expect("sigma");
-    let e = estimate(&pts, &grid, &mask, Kernel::Gaussian, sigma, Edge::None);
+    let e = estimate(
+        &pts,
+        &grid,
+        &mask,
+        Kernel::Gaussian,
+        sigma,
+        DensityEdge::None,
+    );
     for l in r["locations"].as_array().expect("locations") {
         let (i, j) = (
             l["i"].as_u64().expect("i") as usize,
@@ -97,12 +105,19 @@ fn points() -> Vec<[f64; 2]> {
 /// to 1e-3. Diggle's per-point weights keep the mass inside at 1 (1e-3).
 #[test]
 fn mass_outside_matches_direct_computation_and_diggle_keeps_unit_mass() {
-    let w = square(100.0);
+    let w = PreparedWindow::new(square(100.0), None);
     let grid = Grid::over(&w, Some(1.0)).expect("grid");
     let mask = grid.mask(&w);
     let pts = points();
     let sigma = 9.0;
-    let e = estimate(&pts, &grid, &mask, Kernel::Gaussian, sigma, Edge::None);
+    let e = estimate(
+        &pts,
+        &grid,
+        &mask,
+        Kernel::Gaussian,
+        sigma,
+        DensityEdge::None,
+    );
     let direct: f64 = pts
         .iter()
         .map(|p| {
@@ -119,7 +134,7 @@ fn mass_outside_matches_direct_computation_and_diggle_keeps_unit_mass() {
         "{got} vs {direct}"
     );
     for k in [Kernel::Gaussian, Kernel::Quartic] {
-        let d = estimate(&pts, &grid, &mask, k, sigma * 2.0, Edge::Diggle);
+        let d = estimate(&pts, &grid, &mask, k, sigma * 2.0, DensityEdge::Diggle);
         assert!(
             abs_diff_eq!(d.mass_inside, 1.0, epsilon = 1e-3),
             "{}: {}",
@@ -135,7 +150,7 @@ fn mass_outside_matches_direct_computation_and_diggle_keeps_unit_mass() {
 /// the mass inside is 1 within 1e-3, while `none` loses several percent.
 #[test]
 fn uniform_correction_restores_unit_mass_for_an_even_pattern() {
-    let w = square(100.0);
+    let w = PreparedWindow::new(square(100.0), None);
     let grid = Grid::over(&w, Some(1.0)).expect("grid");
     let mask = grid.mask(&w);
     let mut pts = Vec::new();
@@ -144,8 +159,15 @@ fn uniform_correction_restores_unit_mass_for_an_even_pattern() {
             pts.push([1.0 + 2.0 * i as f64, 1.0 + 2.0 * j as f64]);
         }
     }
-    let none = estimate(&pts, &grid, &mask, Kernel::Gaussian, 6.0, Edge::None);
-    let uni = estimate(&pts, &grid, &mask, Kernel::Gaussian, 6.0, Edge::Uniform);
+    let none = estimate(&pts, &grid, &mask, Kernel::Gaussian, 6.0, DensityEdge::None);
+    let uni = estimate(
+        &pts,
+        &grid,
+        &mask,
+        Kernel::Gaussian,
+        6.0,
+        DensityEdge::Uniform,
+    );
     assert!(none.mass_inside < 0.95, "{}", none.mass_inside);
     assert!(
         abs_diff_eq!(uni.mass_inside, 1.0, epsilon = 1e-3),

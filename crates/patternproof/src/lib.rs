@@ -93,7 +93,7 @@ pub use patternproof_audit::window::WindowOptions;
 pub use patternproof_audit::{AuditOptions, BufferRule, Edge};
 pub use patternproof_density::Config as DensityConfig;
 pub use patternproof_density::bandwidth::BandwidthSpec;
-pub use patternproof_density::edge::Edge as DensityEdge;
+pub use patternproof_density::edge::DensityEdge;
 pub use patternproof_density::kernels::Kernel;
 pub use patternproof_io::{CoordChoice, Dataset, LoadOptions};
 pub use patternproof_protocol::Protocol;

@@ -11,13 +11,13 @@
 //!    simulations (isotropic), sampling included.
 
 use geo::{LineString, MultiPolygon, Polygon};
-use patternproof_audit::sampling::Sampler;
 use patternproof_audit::streams::stream;
-use patternproof_core::toroidal::Rect;
+use patternproof_core::Rectangle;
 use patternproof_scales::envelope::{mad_test, simulate};
 use patternproof_scales::k_function::k_curves;
 use patternproof_scales::translation::{OverlapTable, worth_a_table};
-use patternproof_scales::{Correction, Region, distance_grid};
+use patternproof_scales::{Correction, KWindow, distance_grid};
+use patternproof_window::Sampler;
 use std::time::Instant;
 
 fn square(side: f64) -> MultiPolygon<f64> {
@@ -62,11 +62,11 @@ fn best_of<T>(runs: usize, mut f: impl FnMut() -> T) -> (f64, T) {
 fn main() {
     let side = 10_000.0;
     let shape = square(side);
-    let rect = Rect {
+    let rect = Rectangle {
         min: [0.0, 0.0],
         max: [side, side],
     };
-    let region = Region::new(&shape, Some(rect)).expect("area");
+    let region = KWindow::new(&shape, Some(rect)).expect("area");
     let sampler = Sampler::new(&shape).expect("area");
     let n = 100_000;
     let pts = sampler.sample(n, &mut stream(20_261_203, "k-bench", 0));
@@ -88,7 +88,7 @@ fn main() {
         );
     }
     let gon = polygon_of_area(side * side, 64);
-    let mut gon_region = Region::new(&gon, None).expect("area");
+    let mut gon_region = KWindow::new(&gon, None).expect("area");
     let gon_pts = Sampler::new(&gon)
         .expect("area")
         .sample(n, &mut stream(20_261_203, "k-bench", 1));

@@ -2,7 +2,7 @@
 //!
 //! `sims` patterns of complete spatial randomness (CSR) with the observed
 //! number of points are drawn in the same window (exact uniform sampling,
-//! `patternproof_audit::sampling::Sampler`), each from its own random
+//! `patternproof_window::Sampler`), each from its own random
 //! stream `patternproof_audit::streams::stream(seed, "scales:" + window id,
 //! k)`, so the result is the same for any thread count. Each pattern's
 //! L̂ − r is estimated with the same correction as the observed one.
@@ -27,12 +27,12 @@
 //! more often than α under CSR.
 
 use crate::k_function::{Correction, k_curves};
+use crate::k_window::KWindow;
 use crate::rank_envelope::{RankEnvelope, rank_envelope};
-use crate::region::Region;
-use patternproof_audit::sampling::Sampler;
 use patternproof_audit::streams::stream;
 use patternproof_core::Xy;
 use patternproof_core::monte_carlo::quantile;
+use patternproof_window::Sampler;
 use rayon::prelude::*;
 use serde::Serialize;
 
@@ -51,7 +51,7 @@ pub fn stream_label(window_id: &str) -> String {
 // them would only move the list into a struct literal at the one caller.
 #[allow(clippy::too_many_arguments)]
 pub fn simulate(
-    region: &Region,
+    region: &KWindow,
     sampler: &Sampler,
     n: usize,
     grid: &[f64],

@@ -17,9 +17,9 @@
 //! the rectangle case of Ripley 1977; the citation is recalled from
 //! memory, and the test checks the formula against the arc method).
 
-use crate::region::Region;
+use crate::k_window::KWindow;
+use patternproof_core::Rectangle;
 use patternproof_core::Xy;
-use patternproof_core::toroidal::Rect;
 use std::f64::consts::{FRAC_PI_2, TAU};
 
 /// Smallest share accepted. A share below it can only come from a centre
@@ -32,17 +32,17 @@ pub const MIN_SHARE: f64 = 1e-6;
 const T_SLACK: f64 = 1e-9;
 
 /// The share (0..=1) of the circle of radius `r` about `c` inside `region`.
-pub fn inside_share(region: &Region, c: Xy, r: f64) -> f64 {
+pub fn inside_share(region: &KWindow, c: Xy, r: f64) -> f64 {
     if r <= 0.0 {
         return 1.0;
     }
-    if let Some(rect) = region.rectangle
+    if let Some(rect) = region.geometry.rectangle()
         && let Some(share) = rectangle_share(rect, c, r)
     {
         return share;
     }
     let mut angles: Vec<f64> = Vec::new();
-    for line in region.edges_near(c, r) {
+    for line in region.geometry.edges_near(c, r) {
         let (a, b) = (line.from, line.to);
         let d = [b[0] - a[0], b[1] - a[1]];
         let f = [a[0] - c[0], a[1] - c[1]];
@@ -75,7 +75,7 @@ pub fn inside_share(region: &Region, c: Xy, r: f64) -> f64 {
         }
     }
     if angles.is_empty() {
-        return if region.contains([c[0] + r, c[1]]) {
+        return if region.geometry.contains_by_crossings([c[0] + r, c[1]]) {
             1.0
         } else {
             0.0
@@ -97,7 +97,10 @@ pub fn inside_share(region: &Region, c: Xy, r: f64) -> f64 {
             continue;
         }
         let mid = start + 0.5 * len;
-        if region.contains([c[0] + r * mid.cos(), c[1] + r * mid.sin()]) {
+        if region
+            .geometry
+            .contains_by_crossings([c[0] + r * mid.cos(), c[1] + r * mid.sin()])
+        {
             inside += len;
         }
     }
@@ -107,7 +110,7 @@ pub fn inside_share(region: &Region, c: Xy, r: f64) -> f64 {
 /// The share of the circle of radius `r > 0` about `c` inside the
 /// rectangle, in closed form; `None` when `c` lies outside it (the
 /// general arc method then answers).
-pub fn rectangle_share(rect: Rect, c: Xy, r: f64) -> Option<f64> {
+pub fn rectangle_share(rect: Rectangle, c: Xy, r: f64) -> Option<f64> {
     let d = [
         c[0] - rect.min[0],
         rect.max[0] - c[0],
@@ -132,7 +135,7 @@ pub fn rectangle_share(rect: Rect, c: Xy, r: f64) -> Option<f64> {
 /// Ripley's weight of the ordered pair (centre `c`, neighbour at distance
 /// `d`): 1/share, with the share floored at [`MIN_SHARE`]. The second value
 /// says whether the floor was used.
-pub fn weight(region: &Region, c: Xy, d: f64) -> (f64, bool) {
+pub fn weight(region: &KWindow, c: Xy, d: f64) -> (f64, bool) {
     let share = inside_share(region, c, d);
     if share < MIN_SHARE {
         (1.0 / MIN_SHARE, true)
@@ -147,12 +150,12 @@ mod tests {
     use approx::{abs_diff_eq, assert_abs_diff_eq};
     use geo::{LineString, MultiPolygon, Polygon};
 
-    fn square(s: f64) -> Region {
+    fn square(s: f64) -> KWindow {
         let shape = MultiPolygon::new(vec![Polygon::new(
             LineString::from(vec![(0., 0.), (s, 0.), (s, s), (0., s), (0., 0.)]),
             vec![],
         )]);
-        Region::new(&shape, None).expect("area")
+        KWindow::new(&shape, None).expect("area")
     }
 
     /// By hand: a circle well inside has share 1; centred on a side, 1/2;
@@ -193,12 +196,12 @@ mod tests {
             ]),
             vec![],
         )]);
-        let rect = Rect {
+        let rect = Rectangle {
             min: [1.0, 2.0],
             max: [1.0 + w, 2.0 + h],
         };
-        let general = Region::new(&shape, None).expect("area");
-        let closed = Region::new(&shape, Some(rect)).expect("area");
+        let general = KWindow::new(&shape, None).expect("area");
+        let closed = KWindow::new(&shape, Some(rect)).expect("area");
         let mut checked = 0;
         for i in 0..=14 {
             for j in 0..=6 {
@@ -216,7 +219,7 @@ mod tests {
             }
         }
         assert_eq!(checked, 15 * 7 * 9);
-        let sq = Rect {
+        let sq = Rectangle {
             min: [0.0, 0.0],
             max: [10.0, 10.0],
         };
@@ -259,7 +262,7 @@ mod tests {
             ]),
             vec![],
         )]);
-        let w = Region::new(&shape, None).expect("area");
+        let w = KWindow::new(&shape, None).expect("area");
         let v: [Xy; 4] = [
             [163.87, 81.63],
             [165.7, 97.61],

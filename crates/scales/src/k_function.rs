@@ -18,7 +18,7 @@
 
 use crate::border;
 use crate::isotropic;
-use crate::region::Region;
+use crate::k_window::KWindow;
 use crate::translation;
 use patternproof_core::Xy;
 use patternproof_core::close_pairs::{Neighbours, PairSearch};
@@ -164,7 +164,7 @@ impl Sums {
 /// [`WAVE_PAIRS`] weighed pairs between two merges.
 pub fn k_curves(
     points: &[Xy],
-    region: &Region,
+    region: &KWindow,
     grid: &[f64],
     corrections: &[Correction],
     parallel: bool,
@@ -179,21 +179,25 @@ pub fn k_curves(
         want(Correction::Border),
     );
     let search = PairSearch::new(points, rmax);
-    // Distance of every point to the outline: the border estimator's
-    // rule, and the isotropic shortcut (a circle shorter than it lies
-    // wholly inside, weight exactly 1, no edge search).
-    let b = if do_border || do_iso {
-        border::outline_distances(region, points, parallel)
+    // Distance of every point to the polygon's edges: the isotropic
+    // shortcut (a circle shorter than it lies wholly inside, weight
+    // exactly 1, no edge search).
+    let b = if do_iso {
+        border::edge_distances(region, points, parallel)
     } else {
         Vec::new()
     };
-    // At most `steps` (≤ the CLI's 10 000), so it fits a u32.
-    let border_end: Vec<u32> = if do_border {
+    // The border estimator's rule, from the distance to the outline: the
+    // same as `b` except in a buffered hull, measured from the exact
+    // buffer there. At most `steps` (≤ the CLI's 10 000), so it fits a u32.
+    let border_end: Vec<u32> = if !do_border {
+        Vec::new()
+    } else if do_iso && !region.geometry.is_buffered_hull() {
         b.iter()
             .map(|&d| border::counted_up_to(grid, d) as u32)
             .collect()
     } else {
-        Vec::new()
+        border::counted_ends(region, grid, points, parallel)
     };
     let iso_weight = |i: usize, d: f64| -> (f64, bool) {
         if d < b[i] {
@@ -313,7 +317,7 @@ pub fn k_curves(
             .collect()
     };
     let scale = if n > 1 {
-        region.area / (n as f64 * (n - 1) as f64)
+        region.geometry.area() / (n as f64 * (n - 1) as f64)
     } else {
         f64::NAN
     };
@@ -333,7 +337,7 @@ pub fn k_curves(
                 let centres: Vec<usize> = (0..steps)
                     .map(|k| border_end.iter().filter(|&&e| e as usize > k).count())
                     .collect();
-                border::estimate(region.area, n, &counts, &centres)
+                border::estimate(region.geometry.area(), n, &counts, &centres)
             }
         };
         curves.push(curve(c, k, grid));
@@ -362,7 +366,7 @@ mod tests {
     use approx::relative_eq;
     use geo::{LineString, MultiPolygon, Polygon};
 
-    fn holed() -> Region {
+    fn holed() -> KWindow {
         let ring = |v: Vec<(f64, f64)>| LineString::from(v);
         let shape = MultiPolygon::new(vec![Polygon::new(
             ring(vec![(0., 0.), (20., 0.), (20., 16.), (0., 16.), (0., 0.)]),
@@ -374,10 +378,10 @@ mod tests {
                 (8., 6.),
             ])],
         )]);
-        Region::new(&shape, None).expect("area")
+        KWindow::new(&shape, None).expect("area")
     }
 
-    fn pattern(region: &Region, n: usize) -> Vec<Xy> {
+    fn pattern(region: &KWindow, n: usize) -> Vec<Xy> {
         let mut v = Vec::new();
         let mut k = 0u32;
         while v.len() < n {
@@ -387,7 +391,7 @@ mod tests {
                 (t * 0.754_877_666).fract() * 20.0,
                 (t * 0.569_840_29).fract() * 16.0,
             ];
-            if region.contains(p) {
+            if region.geometry.contains(p) {
                 v.push(p);
             }
         }
@@ -428,7 +432,7 @@ mod tests {
         for (k, &r) in grid.iter().enumerate() {
             let (mut iso, mut tr, mut bc, mut centres) = (0.0, 0.0, 0.0, 0usize);
             for i in 0..pts.len() {
-                let bi = reg.distance_to_outline(pts[i]);
+                let bi = reg.geometry.distance_to_outline(pts[i]);
                 if bi >= r {
                     centres += 1;
                 }
@@ -440,16 +444,16 @@ mod tests {
                     if d <= r {
                         iso += 1.0 / isotropic::inside_share(&reg, pts[i], d);
                         let v = [pts[i][0] - pts[j][0], pts[i][1] - pts[j][1]];
-                        tr += reg.area / translation::overlap_area_polygon(&reg, v);
+                        tr += reg.geometry.area() / translation::overlap_area_polygon(&reg, v);
                         if bi >= r {
                             bc += 1.0;
                         }
                     }
                 }
             }
-            let want_iso = reg.area / (n * (n - 1.0)) * iso;
-            let want_tr = reg.area / (n * (n - 1.0)) * tr;
-            let want_b = reg.area * bc / ((n - 1.0) * centres as f64);
+            let want_iso = reg.geometry.area() / (n * (n - 1.0)) * iso;
+            let want_tr = reg.geometry.area() / (n * (n - 1.0)) * tr;
+            let want_b = reg.geometry.area() * bc / ((n - 1.0) * centres as f64);
             let got = |c: usize| curves[c].k[k].expect("defined");
             assert!(
                 relative_eq!(got(0), want_b, epsilon = 1e-9, max_relative = 1e-9),

@@ -8,7 +8,7 @@
 //!
 //! | module | job |
 //! |---|---|
-//! | [`region`] | a window prepared for geometric queries (edge index, point-in-window, outline distance) |
+//! | [`k_window`] | a window as the estimators use it: its `patternproof_window::PreparedWindow` and the translation overlap table |
 //! | [`isotropic`] | Ripley's (1977) isotropic weight from the exact arc length of a circle inside the window |
 //! | [`translation`] | the Ohser–Stoyan translation weight from an exact polygon intersection area |
 //! | [`border`] | the reduced-sample (border) estimator |
@@ -25,10 +25,10 @@ pub mod border;
 pub mod envelope;
 pub mod isotropic;
 pub mod k_function;
+pub mod k_window;
 pub mod memory;
 pub mod plot;
 pub mod rank_envelope;
-pub mod region;
 pub mod scales;
 pub mod summary;
 #[cfg(test)]
@@ -37,5 +37,5 @@ pub mod translation;
 pub mod verdict;
 
 pub use k_function::{Correction, KCurve, distance_grid};
-pub use region::Region;
+pub use k_window::KWindow;
 pub use scales::{Plan, ScalesOptions, ScalesRun, WindowScales, plan, run_scales};

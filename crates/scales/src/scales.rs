@@ -3,13 +3,12 @@
 
 use crate::envelope::{EnvelopeTest, global_tests, simulate, stream_label};
 use crate::k_function::{Correction, KCurve, PairNotes, distance_grid, k_curves};
-use crate::region::Region;
+use crate::k_window::KWindow;
 use crate::translation;
 use crate::verdict::{Band, bands, sentence};
-use patternproof_audit::sampling::Sampler;
-use patternproof_audit::{Window, WindowKind};
 use patternproof_core::Xy;
 use patternproof_report::numbers::sig;
+use patternproof_window::{Window, WindowKind};
 use serde::Serialize;
 
 /// Schema id of `scales.json` (docs/scales-schema.md).
@@ -135,7 +134,7 @@ pub struct ScalesRun {
 /// every window shares one distance grid and the bands can be compared.
 /// A quarter of the shorter side is the usual rule of thumb: beyond it
 /// few centres see whole circles and every estimator gets noisy.
-pub fn default_rmax(regions: &[&Region]) -> Option<f64> {
+pub fn default_rmax(regions: &[&KWindow]) -> Option<f64> {
     regions
         .iter()
         .map(|r| r.shorter_side() / 4.0)
@@ -193,7 +192,7 @@ fn beyond_every_window(rmax: f64, widest: f64, unit: &str) -> Option<String> {
 /// tabulate them when the run weighs many pairs
 /// ([`translation::worth_a_table`]).
 fn translation_weights(
-    region: &mut Region,
+    region: &mut KWindow,
     n: usize,
     rmax: f64,
     options: &ScalesOptions,
@@ -201,7 +200,7 @@ fn translation_weights(
     if !options.corrections.contains(&Correction::Translation) {
         return None;
     }
-    if region.rectangle.is_some() {
+    if region.geometry.rectangle().is_some() {
         return Some("closed form");
     }
     let patterns = 1 + if options.tested.contains(&Correction::Translation) {
@@ -224,7 +223,7 @@ pub struct Plan<'a> {
     points: &'a [Xy],
     /// The analysable windows with their prepared outlines (translation
     /// overlap tables included).
-    usable: Vec<(&'a Window, Region, Option<&'static str>)>,
+    usable: Vec<(&'a Window, KWindow, Option<&'static str>)>,
     skipped: Vec<Skipped>,
     rmax: f64,
     rmax_rule: String,
@@ -235,9 +234,9 @@ pub struct Plan<'a> {
 /// distance grid, translation tables where worth it.
 pub fn plan<'a>(points: &'a [Xy], windows: &'a [Window], options: &ScalesOptions) -> Plan<'a> {
     let mut skipped = Vec::new();
-    let mut usable: Vec<(&Window, Region)> = Vec::new();
+    let mut usable: Vec<(&Window, KWindow)> = Vec::new();
     for w in windows {
-        let Some(shape) = &w.shape else {
+        if w.shape.is_none() {
             skipped.push(Skipped {
                 window: w.id.clone(),
                 reason:
@@ -253,7 +252,7 @@ pub fn plan<'a>(points: &'a [Xy], windows: &'a [Window], options: &ScalesOptions
             });
             continue;
         }
-        match Region::new(shape, w.rectangle) {
+        match KWindow::of(w) {
             Some(r) => usable.push((w, r)),
             None => skipped.push(Skipped {
                 window: w.id.clone(),
@@ -261,7 +260,7 @@ pub fn plan<'a>(points: &'a [Xy], windows: &'a [Window], options: &ScalesOptions
             }),
         }
     }
-    let regions: Vec<&Region> = usable.iter().map(|(_, r)| r).collect();
+    let regions: Vec<&KWindow> = usable.iter().map(|(_, r)| r).collect();
     let (rmax, rmax_rule) = match options.rmax {
         Some(r) => (r, "given with --rmax".to_string()),
         None => (
@@ -306,7 +305,7 @@ impl Plan<'_> {
     pub fn trial_seconds(&self, options: &ScalesOptions) -> f64 {
         let mut seconds = 0.0;
         for (w, region, _) in &self.usable {
-            let Some(sampler) = Sampler::new(&region.shape) else {
+            let Some(sampler) = region.geometry.sampler() else {
                 continue;
             };
             let started = std::time::Instant::now();
@@ -326,7 +325,7 @@ impl Plan<'_> {
     fn window(
         &self,
         w: &Window,
-        region: &Region,
+        region: &KWindow,
         translation_weights: Option<&'static str>,
         options: &ScalesOptions,
         tick: &(dyn Fn() + Sync),
@@ -337,11 +336,11 @@ impl Plan<'_> {
         let mut tests = Vec::new();
         if options.sims > 0
             && !options.tested.is_empty()
-            && let Some(sampler) = Sampler::new(&region.shape)
+            && let Some(sampler) = region.geometry.sampler()
         {
             let sims = simulate(
                 region,
-                &sampler,
+                sampler,
                 pts.len(),
                 grid,
                 &options.tested,
@@ -363,7 +362,7 @@ impl Plan<'_> {
         WindowScales {
             id: w.id.clone(),
             kind: w.kind,
-            area: region.area,
+            area: region.geometry.area(),
             n: pts.len(),
             points_outside: w.points_outside,
             curves,
@@ -384,10 +383,7 @@ impl Plan<'_> {
         let widest = self
             .usable
             .iter()
-            .map(|(_, region, _)| {
-                let [lo, hi] = region.bounds;
-                (hi[0] - lo[0]).hypot(hi[1] - lo[1])
-            })
+            .map(|(_, region, _)| region.bounds.width().hypot(region.bounds.height()))
             .fold(0.0, f64::max);
         let Plan {
             points,

@@ -26,7 +26,7 @@
 //! of many pairs average out (see `k_function`'s tests), and far less than
 //! its Monte Carlo error.
 
-use crate::region::Region;
+use crate::k_window::KWindow;
 use geo::{Area, BooleanOps, Translate};
 use rayon::prelude::*;
 use std::f64::consts::PI;
@@ -51,7 +51,7 @@ impl OverlapTable {
 
     /// Tabulate the overlap of `region` up to `rmax` (computed in parallel,
     /// collected in node order, so the table does not depend on threads).
-    pub fn new(region: &Region, rmax: f64) -> Self {
+    pub fn new(region: &KWindow, rmax: f64) -> Self {
         let cols = Self::RAYS + 1;
         let nodes: Vec<(usize, usize)> = (1..=Self::RINGS)
             .flat_map(|k| (0..Self::RAYS).map(move |j| (k, j)))
@@ -64,7 +64,7 @@ impl OverlapTable {
                 overlap_area_polygon(region, [rho * theta.cos(), rho * theta.sin()])
             })
             .collect();
-        let mut values = vec![region.area; (Self::RINGS + 1) * cols];
+        let mut values = vec![region.geometry.area(); (Self::RINGS + 1) * cols];
         for (&(k, j), &a) in nodes.iter().zip(&exact) {
             values[k * cols + j] = a;
         }
@@ -103,9 +103,13 @@ impl OverlapTable {
 }
 
 /// |W ∩ (W + v)| by polygon intersection (any window).
-pub fn overlap_area_polygon(region: &Region, v: [f64; 2]) -> f64 {
-    let shifted = region.shape.translate(v[0], v[1]);
-    region.shape.intersection(&shifted).unsigned_area()
+pub fn overlap_area_polygon(region: &KWindow, v: [f64; 2]) -> f64 {
+    let shifted = region.geometry.shape().translate(v[0], v[1]);
+    region
+        .geometry
+        .shape()
+        .intersection(&shifted)
+        .unsigned_area()
 }
 
 /// |W ∩ (W + v)| for the rectangle of side lengths `a` × `b`.
@@ -116,8 +120,8 @@ pub fn overlap_area_rectangle(a: f64, b: f64, v: [f64; 2]) -> f64 {
 /// The overlap area: by the closed form when the window is an axis-aligned
 /// rectangle, from the region's [`OverlapTable`] when it has one, else by
 /// polygon intersection.
-pub fn overlap_area(region: &Region, v: [f64; 2]) -> f64 {
-    if let Some(r) = &region.rectangle {
+pub fn overlap_area(region: &KWindow, v: [f64; 2]) -> f64 {
+    if let Some(r) = &region.geometry.rectangle() {
         return overlap_area_rectangle(r.max[0] - r.min[0], r.max[1] - r.min[1], v);
     }
     region
@@ -130,11 +134,11 @@ pub fn overlap_area(region: &Region, v: [f64; 2]) -> f64 {
 /// Whether a run should tabulate the overlap: when the pairs it will weigh
 /// (about n²/2 · π r_max²/|W| per pattern under CSR, times `patterns`)
 /// outnumber the table's nodes by more than twice. Small runs stay exact.
-pub fn worth_a_table(region: &Region, n: usize, rmax: f64, patterns: usize) -> bool {
-    if region.rectangle.is_some() {
+pub fn worth_a_table(region: &KWindow, n: usize, rmax: f64, patterns: usize) -> bool {
+    if region.geometry.rectangle().is_some() {
         return false;
     }
-    let share = (PI * rmax * rmax / region.area).min(1.0);
+    let share = (PI * rmax * rmax / region.geometry.area()).min(1.0);
     let pairs = n as f64 * (n as f64 - 1.0) / 2.0 * share * patterns as f64;
     pairs > 2.0 * OverlapTable::NODES as f64
 }
@@ -142,9 +146,9 @@ pub fn worth_a_table(region: &Region, n: usize, rmax: f64, patterns: usize) -> b
 /// The weight |W|/|W ∩ (W + v)|; `None` when the overlap vanishes (the
 /// pair could not have been observed, which only happens for a pair
 /// separated by the window's full width).
-pub fn weight(region: &Region, v: [f64; 2]) -> Option<f64> {
+pub fn weight(region: &KWindow, v: [f64; 2]) -> Option<f64> {
     let o = overlap_area(region, v);
-    (o > 0.0).then(|| region.area / o)
+    (o > 0.0).then(|| region.geometry.area() / o)
 }
 
 #[cfg(test)]
@@ -189,7 +193,7 @@ mod tests {
             .collect();
         let buffered = cloud.convex_hull().buffer(4.0);
         for (name, shape, rmax) in [("holed", holed, 6.0), ("buffered", buffered, 12.0)] {
-            let mut reg = Region::new(&shape, None).expect("area");
+            let mut reg = KWindow::new(&shape, None).expect("area");
             let table = OverlapTable::new(&reg, rmax);
             reg.overlap_table = Some(table.clone());
             let mut worst: f64 = 0.0;
@@ -201,7 +205,7 @@ mod tests {
                 let exact = overlap_area_polygon(&reg, v);
                 let got = overlap_area(&reg, v);
                 assert_eq!(table.area(v), Some(got));
-                worst = worst.max((got - exact).abs() / reg.area);
+                worst = worst.max((got - exact).abs() / reg.geometry.area());
             }
             println!("{name}: worst relative error {worst:.2e}");
             assert!(worst < 1e-3, "{name}: {worst}");
@@ -212,7 +216,7 @@ mod tests {
             assert_abs_diff_eq!(
                 table.area(v).unwrap_or(f64::NAN),
                 exact,
-                epsilon = 1e-9 * reg.area
+                epsilon = 1e-9 * reg.geometry.area()
             );
             assert_eq!(table.area([rmax * 1.01, 0.0]), None);
         }
@@ -226,7 +230,7 @@ mod tests {
             LineString::from(vec![(2., 1.), (9., 1.), (9., 5.), (2., 5.), (2., 1.)]),
             vec![],
         )]);
-        let reg = Region::new(&shape, None).expect("area");
+        let reg = KWindow::new(&shape, None).expect("area");
         for v in [
             [0.5, 0.25],
             [-3.0, 1.5],

@@ -10,12 +10,12 @@
 #![cfg(target_os = "linux")]
 
 use geo::{LineString, MultiPolygon, Polygon};
-use patternproof_audit::sampling::Sampler;
 use patternproof_audit::streams::stream;
-use patternproof_audit::window::{WindowOptions, build_windows};
-use patternproof_core::toroidal::Rect;
+use patternproof_core::Rectangle;
 use patternproof_scales::k_function::{distance_grid, k_curves};
-use patternproof_scales::{Correction, Region, ScalesOptions, memory, plan};
+use patternproof_scales::{Correction, KWindow, ScalesOptions, memory, plan};
+use patternproof_window::Sampler;
+use patternproof_window::{WindowOptions, build_windows};
 
 const MIB: u64 = 1 << 20;
 
@@ -51,11 +51,11 @@ fn memory_grows_with_points_and_simulations_not_with_pairs() {
     )]);
     // Closed-form weights (an axis-aligned rectangle), to keep the test
     // short in a debug build.
-    let rect = Rect {
+    let rect = Rectangle {
         min: [0.0, 0.0],
         max: [100.0, 100.0],
     };
-    let region = Region::new(&square, Some(rect)).unwrap();
+    let region = KWindow::new(&square, Some(rect)).unwrap();
     let sampler = Sampler::new(&square).unwrap();
     let pts = sampler.sample(2_000, &mut stream(20, "memory", 0));
     let _ = k_curves(

@@ -5,13 +5,13 @@
 
 use approx::abs_diff_eq;
 use geo::{LineString, MultiPolygon, Polygon};
-use patternproof_audit::sampling::Sampler;
 use patternproof_audit::streams::stream;
-use patternproof_audit::window::{WindowOptions, build_windows};
 use patternproof_scales::envelope::{mad_test, simulate};
 use patternproof_scales::k_function::k_curves;
 use patternproof_scales::rank_envelope::rank_envelope;
-use patternproof_scales::{Correction, Region, ScalesOptions, run_scales};
+use patternproof_scales::{Correction, KWindow, ScalesOptions, run_scales};
+use patternproof_window::Sampler;
+use patternproof_window::{WindowOptions, build_windows};
 use rand::RngExt;
 use std::f64::consts::PI;
 
@@ -47,7 +47,7 @@ fn csr_mean_k_is_pi_r_squared() {
             (8., 6.),
         ])],
     )]);
-    let region = Region::new(&shape, None).unwrap();
+    let region = KWindow::new(&shape, None).unwrap();
     let sampler = Sampler::new(&shape).unwrap();
     let grid = [1.0, 1.75, 2.5];
     let m = 200;
@@ -59,7 +59,7 @@ fn csr_mean_k_is_pi_r_squared() {
             .iter()
             .map(Vec::len)
             .sum();
-        uncorrected += region.area * 2.0 * close as f64 / (60.0 * 59.0) / m as f64;
+        uncorrected += region.geometry.area() * 2.0 * close as f64 / (60.0 * 59.0) / m as f64;
         let (curves, _) = k_curves(&pts, &region, &grid, &Correction::ALL, false);
         for (c, curve) in curves.iter().enumerate() {
             for (g, v) in curve.k.iter().enumerate() {
@@ -100,7 +100,7 @@ fn csr_mean_k_is_pi_r_squared() {
 #[test]
 fn global_tests_hold_their_size() {
     let shape = holed();
-    let region = Region::new(&shape, None).unwrap();
+    let region = KWindow::new(&shape, None).unwrap();
     let sampler = Sampler::new(&shape).unwrap();
     let grid: Vec<f64> = (1..=6).map(|k| 0.25 * f64::from(k)).collect();
     let mut rejections = 0;
@@ -156,7 +156,7 @@ fn global_tests_hold_their_size() {
 #[test]
 fn detects_a_thomas_cluster_process() {
     let shape = holed();
-    let region = Region::new(&shape, None).unwrap();
+    let region = KWindow::new(&shape, None).unwrap();
     let sampler = Sampler::new(&shape).unwrap();
     let mut rng = stream(3, "thomas", 0);
     let parents = sampler.sample(6, &mut rng);
@@ -169,7 +169,7 @@ fn detects_a_thomas_cluster_process() {
                 p[0] + rad * (2.0 * PI * v).cos(),
                 p[1] + rad * (2.0 * PI * v).sin(),
             ];
-            if region.contains(q) {
+            if region.geometry.contains(q) {
                 pts.push(q);
             }
         }

@@ -43,8 +43,9 @@ const MAX_STRIPS: usize = 1 << 22;
 /// An outline prepared for "does this point intersect the shape?" (inside
 /// or on the boundary, as `geo`'s `Intersects` says).
 #[derive(Debug, Clone)]
-pub struct Cover<'a> {
-    shape: &'a MultiPolygon<f64>,
+pub struct Cover {
+    /// The shape itself, for the rare point with a non-finite coordinate.
+    shape: MultiPolygon<f64>,
     /// Bounding box of the exterior rings, as `geo` computes it.
     bbox: Option<[f64; 4]>,
     polygons: Vec<PolygonStrips>,
@@ -202,9 +203,9 @@ impl PolygonStrips {
     }
 }
 
-impl<'a> Cover<'a> {
+impl Cover {
     /// Bucket the edges of every ring of `shape`.
-    pub fn new(shape: &'a MultiPolygon<f64>) -> Self {
+    pub fn new(shape: MultiPolygon<f64>) -> Self {
         let mut bbox: Option<[f64; 4]> = None;
         for c in shape.iter().flat_map(|p| &p.exterior().0) {
             let b = bbox.get_or_insert([c.x, c.y, c.x, c.y]);
@@ -236,6 +237,11 @@ impl<'a> Cover<'a> {
             bbox,
             polygons,
         }
+    }
+
+    /// The shape it was built from.
+    pub fn shape(&self) -> &MultiPolygon<f64> {
+        &self.shape
     }
 
     /// True when `p` is inside `shape` or on its outline: the same answer
@@ -361,7 +367,7 @@ mod tests {
         shapes.push(MultiPolygon::new(vec![cloud.convex_hull()]));
         shapes.push(MultiPolygon::new(vec![cloud.concave_hull()]));
         for (k, shape) in shapes.iter().enumerate() {
-            let cover = Cover::new(shape);
+            let cover = Cover::new(shape.clone());
             // Queries over the shape's bounding box grown by a fifth.
             let r = shape.bounding_rect().expect("non-empty shape");
             let (w, h) = (r.width() * 1.4, r.height() * 1.4);
@@ -403,12 +409,12 @@ mod tests {
     #[test]
     fn empty_and_degenerate_rings() {
         let empty = MultiPolygon::<f64>::new(vec![]);
-        assert!(!Cover::new(&empty).covers([0.0, 0.0]));
+        assert!(!Cover::new(empty).covers([0.0, 0.0]));
         let flat = MultiPolygon::new(vec![Polygon::new(
             LineString::from(vec![(0.0, 1.0), (5.0, 1.0), (9.0, 1.0)]),
             vec![],
         )]);
-        let cover = Cover::new(&flat);
+        let cover = Cover::new(flat.clone());
         for p in [[3.0, 1.0], [0.0, 1.0], [10.0, 1.0], [3.0, 2.0]] {
             assert_eq!(
                 cover.covers(p),
@@ -420,7 +426,7 @@ mod tests {
             LineString::from(vec![(0.0, 0.0), (1.0, 0.0), (1.0, 1.0), (0.0, 1.0)]),
             vec![],
         )]);
-        let cover = Cover::new(&square);
+        let cover = Cover::new(square);
         assert!(cover.covers([0.5, 0.5]));
         assert!(cover.covers([1.0, 0.25]));
         assert!(!cover.covers([1.0 + 1e-12, 0.25]));
