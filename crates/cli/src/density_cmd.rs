@@ -8,8 +8,9 @@ use geo::{Area, ConvexHull, MultiPoint, MultiPolygon, Point};
 use patternproof_density::bandwidth::{BandwidthSpec, FIXED_RANGE, MULTIPLE_RANGE};
 use patternproof_density::edge::Edge;
 use patternproof_density::kernels::{self, Kernel};
-use patternproof_density::render::RunInfo;
-use patternproof_density::{Config, analyse, render};
+use patternproof_density::{Config, analyse};
+use patternproof_report::RunContext;
+use patternproof_report::density::RunInfo;
 use patternproof_report::html::shell_quote;
 
 /// `patternproof density`.
@@ -253,10 +254,13 @@ pub fn run(a: &DensityArgs) -> Result<(), Failure> {
         unit: data.unit.clone(),
         window_source: source,
         window_area: area,
-        command_line: command.join(" "),
         warnings: data.warnings.clone(),
     };
-    let folder = render::folder(&analysis, &info).map_err(Failure::Internal)?;
+    let context = RunContext {
+        command_line: command.join(" "),
+        ..RunContext::default()
+    };
+    let folder = patternproof_report::density::folder(&analysis, &info, &context)?;
     a.output.write(&folder)?;
     if !a.quiet {
         for w in info.warnings.iter().chain(&analysis.warnings) {

@@ -13,7 +13,7 @@ use patternproof_core::clark_evans::MIN_N_ANALYTIC;
 use patternproof_io::{CoordChoice, Dataset, LoadOptions};
 use patternproof_recheck::attribution::sweep_options;
 use patternproof_recheck::reported::{Bound, Problem, Quantity, parse, parse_count};
-use patternproof_recheck::{Figures, recheck, render};
+use patternproof_recheck::{Figures, recheck};
 use std::path::PathBuf;
 
 /// `patternproof recheck`.
@@ -163,7 +163,7 @@ pub fn run(a: &RecheckArgs) -> Result<(), Failure> {
             .map_err(|e| Failure::Internal(format!("could not write the JSON: {e}")))?;
         println!("{text}");
     } else {
-        print!("{}", render::text(&result, None));
+        print!("{}", patternproof_report::recheck::text(&result, None));
     }
     Ok(())
 }

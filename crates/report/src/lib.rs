@@ -1,8 +1,14 @@
-//! Writers: one result struct ([`document::AuditReport`]) and several
-//! renderings of it, so the JSON, the tables and the map never disagree.
+//! The presentation crate: every output of every analysis is rendered
+//! here, from the analyses' result data, so the JSON, the tables, the
+//! pictures and the pages never disagree and the analyses never draw.
+//!
+//! The audit: one result struct ([`document::AuditReport`]) and several
+//! renderings of it.
 //!
 //! | module | writes |
 //! |---|---|
+//! | [`audit_folder`] | the whole folder of one audit, in memory |
+//! | [`run`] | the run's context (command line, stamp, protocol) and why rendering failed |
 //! | [`document`] | the versioned `report.json` document (schema in `docs/report-schema.md`) |
 //! | [`numbers`] | rounding for human readers (JSON keeps full precision) |
 //! | [`table`] | `verdict.csv` and the terminal table |
@@ -19,9 +25,20 @@
 //! | [`html`] | `index.html`, the one self-contained file to attach |
 //! | [`folder`] | the output folder, written aside and renamed into place, with the list of its files |
 //!
+//! The other analyses, one module each:
+//!
+//! | module | writes |
+//! |---|---|
+//! | [`scales`] | the K audit: `scales.json`, `.csv`, `.md`, its pictures, page section and terminal lines |
+//! | [`density`] | the density audit: `density.json`, `isopleths.geojson`, the pictures, `reference.tif`, `index.html` |
+//! | [`sites`] | a multi-site run: `sites.json`, `.csv`, `.md`, `sites.svg`, `index.html`, and each site's audit folder |
+//! | [`recheck`] | the recheck's terminal table |
+//!
 //! Every writer takes any `io::Write`, so tests render into a `Vec<u8>`.
 
+pub mod audit_folder;
 pub mod canvas;
+pub mod density;
 pub mod document;
 pub mod folder;
 pub mod html;
@@ -31,13 +48,19 @@ pub mod methods;
 pub mod numbers;
 pub mod outlines;
 pub mod palette;
+pub mod recheck;
+pub mod run;
+pub mod scales;
 pub mod sensitivity_plot;
 pub mod simulation_plot;
+pub mod sites;
 pub mod table;
 pub mod window_map;
 pub mod windows_gpkg;
 
+pub use audit_folder::{Plane, RenderChoices, audit_folder};
 pub use document::{AuditReport, InputSummary, SCHEMA};
 pub use folder::{
     FolderError, OutputFolder, Written, write_folder, write_folder_interruptible, write_folder_with,
 };
+pub use run::{RenderError, RunContext};

@@ -9,7 +9,7 @@ use crate::verdict::{Band, bands, sentence};
 use patternproof_audit::sampling::Sampler;
 use patternproof_audit::{Window, WindowKind};
 use patternproof_core::Xy;
-use patternproof_report::numbers::sig;
+use patternproof_core::numbers::sig;
 use serde::Serialize;
 
 /// Schema id of `scales.json` (docs/scales-schema.md).

@@ -2,17 +2,22 @@
 //! the reference surface as a GeoTIFF and `index.html`.
 //! `docs/density-schema.md` documents `density.json`.
 
-use crate::{Analysis, Surface, geotiff, plot};
-use patternproof_report::OutputFolder;
-use patternproof_report::html::escape;
-use patternproof_report::numbers::sig;
+pub mod geotiff;
+pub mod plot;
+
+use crate::OutputFolder;
+use crate::html::escape;
+use crate::numbers::sig;
+use crate::run::{RenderError, RunContext};
+use patternproof_density::{Analysis, Surface, cautions};
 use serde_json::{Value, json};
 use std::fmt::Write as _;
 
 /// Schema identifier of `density.json`.
 pub const SCHEMA: &str = "patternproof.density/1";
 
-/// What the outputs say about the input.
+/// What the outputs say about the input (the run itself is in
+/// [`RunContext`]).
 #[derive(Debug, Clone, Default)]
 pub struct RunInfo {
     /// The point file as given.
@@ -29,20 +34,8 @@ pub struct RunInfo {
     pub window_source: String,
     /// Window area (unit²).
     pub window_area: f64,
-    /// The command line.
-    pub command_line: String,
     /// Warnings from loading.
     pub warnings: Vec<String>,
-}
-
-/// What a density surface does and does not show; read with every report.
-pub fn cautions() -> Vec<String> {
-    vec![
-        "A kernel density surface is a smoothed picture of where the recorded points are, for one kernel and one bandwidth. It does not show where events can happen, does not correct for where or how hard anyone looked, and carries no measure of its own uncertainty; isopleth areas are a property of the smoothing as much as of the data.".into(),
-        "The surfaces, the isopleth polygons and the GeoTIFF are built from the point locations and can reveal them, most of all with small bandwidths. Point locations of people are personal data: do not share these files without the protection that the data's terms require.".into(),
-        "Bandwidth selectors assume independent points. Successive fixes of a track are not independent, and likelihood cross-validation in particular tends to choose small bandwidths for them.".into(),
-        "With edge handling `none` part of each kernel's mass falls outside the window (reported as mass_outside); isopleth shares are shares of the mass inside the window.".into(),
-    ]
 }
 
 fn surface_json(s: &Surface, cell_area: f64) -> Value {
@@ -108,7 +101,7 @@ pub fn document(a: &Analysis, info: &RunInfo) -> Value {
             "levels": a.config.levels.iter().map(|l| l * 100.0).collect::<Vec<_>>(),
             "reference": format!("{}:{}:{}", a.config.reference.0.name(), a.config.reference.1.label(), a.config.reference.2.name()),
             "patch_connectivity": 8,
-            "hotspot_overlap_threshold": crate::HOTSPOT_OVERLAP,
+            "hotspot_overlap_threshold": patternproof_density::HOTSPOT_OVERLAP,
         },
         "kernels": a.config.kernels.iter().map(|k| json!({
             "kernel": k.name(),
@@ -162,7 +155,11 @@ pub fn isopleths_geojson(a: &Analysis, info: &RunInfo) -> Value {
         .chain(std::iter::once((&a.reference, true)));
     for (s, is_ref) in all {
         for l in &s.levels {
-            let mp = crate::isopleth::outline(&a.grid, &s.estimate.values, l.region.threshold);
+            let mp = patternproof_density::isopleth::outline(
+                &a.grid,
+                &s.estimate.values,
+                l.region.threshold,
+            );
             let polys: Vec<Value> =
                 mp.0.iter()
                     .map(|p| {
@@ -227,7 +224,12 @@ fn strip_prolog(svg: &str) -> &str {
 }
 
 /// The `index.html` page.
-pub fn index_html(a: &Analysis, info: &RunInfo, pictures: &[(&str, &str, &str)]) -> String {
+pub fn index_html(
+    a: &Analysis,
+    info: &RunInfo,
+    run: &RunContext,
+    pictures: &[(&str, &str, &str)],
+) -> String {
     let unit = escape(&info.unit);
     let mut h = String::new();
     h.push_str("<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\"/><title>patternproof density</title><style>");
@@ -329,7 +331,7 @@ pub fn index_html(a: &Analysis, info: &RunInfo, pictures: &[(&str, &str, &str)])
         h,
         "<p>Reference surface: {} (overlaps are Jaccard indices of the regions' cells with its regions; the main hotspot is the patch of the lowest level that holds the peak, and it stays in place when its overlap with the reference's is at least {}).</p>",
         escape(&a.reference.label()),
-        crate::HOTSPOT_OVERLAP
+        patternproof_density::HOTSPOT_OVERLAP
     );
     for (title, svg, caption) in pictures {
         let _ = writeln!(
@@ -344,19 +346,27 @@ pub fn index_html(a: &Analysis, info: &RunInfo, pictures: &[(&str, &str, &str)])
     let _ = writeln!(
         h,
         "<h3>Command</h3><pre>{}</pre>",
-        escape(&info.command_line)
+        escape(&run.command_line)
     );
     h.push_str("</section></body></html>\n");
     h
 }
 
 /// Every output file.
-pub fn folder(a: &Analysis, info: &RunInfo) -> Result<OutputFolder, String> {
+pub fn folder(a: &Analysis, info: &RunInfo, run: &RunContext) -> Result<OutputFolder, RenderError> {
     let mut f = OutputFolder::default();
-    let mut doc = serde_json::to_string_pretty(&document(a, info)).map_err(|e| e.to_string())?;
+    let mut doc =
+        serde_json::to_string_pretty(&document(a, info)).map_err(|source| RenderError::Json {
+            file: "density.json",
+            source,
+        })?;
     doc.push('\n');
     f.add("density.json", doc.into_bytes());
-    let mut gj = serde_json::to_string(&isopleths_geojson(a, info)).map_err(|e| e.to_string())?;
+    let mut gj =
+        serde_json::to_string(&isopleths_geojson(a, info)).map_err(|source| RenderError::Json {
+            file: "isopleths.geojson",
+            source,
+        })?;
     gj.push('\n');
     f.add("isopleths.geojson", gj.into_bytes());
     let citation = format!(
@@ -393,7 +403,7 @@ pub fn folder(a: &Analysis, info: &RunInfo) -> Result<OutputFolder, String> {
     if let Some(c) = &chart {
         pictures.push(("Isopleth area against bandwidth", c.as_str(), "area of each isopleth level against the Gaussian-equivalent bandwidth, one line per kernel"));
     }
-    let html = index_html(a, info, &pictures);
+    let html = index_html(a, info, run, &pictures);
     f.add("surfaces.svg", multiples.clone().into_bytes());
     if let Some(c) = chart {
         f.add("areas.svg", c.into_bytes());

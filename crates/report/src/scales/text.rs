@@ -1,13 +1,14 @@
 //! Plain-text outputs: the Markdown summary (`scales.md`), the long table
 //! of every curve (`scales.csv`) and the lines printed on the terminal.
 
-use crate::scales::ScalesRun;
-use crate::verdict::distance;
-use patternproof_report::numbers::{p_value, sig};
+use crate::numbers::{full, p_value, sig, trimmed};
+use patternproof_scales::ScalesRun;
 use std::fmt::Write;
 
-fn opt(v: Option<f64>) -> String {
-    v.map_or(String::new(), |x| format!("{x}"))
+/// A distance in the tables and sentences: three significant digits, no
+/// trailing zeros.
+fn distance(x: f64) -> String {
+    trimmed(x, 3)
 }
 
 /// `scales.csv`: one row per window × correction × distance, with the
@@ -37,25 +38,26 @@ pub fn csv(run: &ScalesRun) -> String {
         for c in &win.curves {
             let test = win.tests.iter().find(|t| t.correction == c.correction);
             for (k, r) in run.r.iter().enumerate() {
-                let t = |f: fn(&crate::envelope::EnvelopeTest) -> &Vec<Option<f64>>| {
-                    test.map_or(String::new(), |t| opt(f(t)[k]))
-                };
+                let t =
+                    |f: fn(&patternproof_scales::envelope::EnvelopeTest) -> &Vec<Option<f64>>| {
+                        test.map_or(String::new(), |t| full(f(t)[k]))
+                    };
                 let rank = test.and_then(|t| t.rank.as_ref());
                 let _ = w.write_record([
                     win.id.clone(),
                     c.correction.as_str().to_string(),
                     format!("{r}"),
-                    opt(c.k[k]),
-                    opt(c.l[k]),
-                    opt(c.l_minus_r[k]),
+                    full(c.k[k]),
+                    full(c.l[k]),
+                    full(c.l_minus_r[k]),
                     t(|t| &t.centre),
                     t(|t| &t.lo),
                     t(|t| &t.hi),
                     t(|t| &t.pointwise_lo),
                     t(|t| &t.pointwise_hi),
                     test.map_or(String::new(), |t| t.departure[k].to_string()),
-                    rank.map_or(String::new(), |e| opt(e.lo[k])),
-                    rank.map_or(String::new(), |e| opt(e.hi[k])),
+                    rank.map_or(String::new(), |e| full(e.lo[k])),
+                    rank.map_or(String::new(), |e| full(e.hi[k])),
                     rank.map_or(String::new(), |e| e.departure[k].to_string()),
                 ]);
             }
@@ -116,7 +118,7 @@ pub fn table_rows(run: &ScalesRun) -> Vec<[String; 7]> {
 
 /// `scales.md`.
 pub fn markdown(run: &ScalesRun) -> String {
-    use patternproof_report::markdown_escape::{code, prose, text};
+    use crate::markdown_escape::{code, prose, text};
     let mut s = String::from("# Multi-scale audit: L(r) − r across windows\n\n");
     let _ = writeln!(
         s,
@@ -171,7 +173,7 @@ pub fn markdown(run: &ScalesRun) -> String {
 /// verdict sentences, the L(r) − r picture, the per-window test table and
 /// the cautions. Every user string is escaped.
 pub fn html_section(run: &ScalesRun, svg: Option<&str>) -> String {
-    use patternproof_report::html::{escape as e, strip_xml_declaration};
+    use crate::html::{escape as e, strip_xml_declaration};
     let mut h = String::new();
     let u = e(&run.unit);
     let _ = writeln!(

@@ -1,13 +1,14 @@
 //! `index.html` of a multi-site run: self-contained, every user string
 //! escaped, the protocol hash in the header.
 
-use crate::render::{SitesDocument, summary_line};
-use patternproof_report::html::escape;
-use patternproof_report::numbers::{p_value, sig};
-use patternproof_report::table::{call_symbol, call_word};
+use super::files::summary_line;
+use crate::html::escape;
+use crate::numbers::{p_value, sig};
+use crate::table::{call_symbol, call_word};
+use patternproof_sites::document::SitesDocument;
 use std::fmt::Write;
 
-/// Render the page; `forest` is the SVG of [`crate::forest`], `folders`
+/// Render the page; `forest` is the SVG of [`super::forest`], `folders`
 /// maps each site to its report folder (relative link).
 pub fn index_html(
     doc: &SitesDocument<'_>,
