@@ -60,7 +60,5 @@ pub mod windows_gpkg;
 
 pub use audit_folder::{Plane, RenderChoices, audit_folder};
 pub use document::{AuditReport, InputSummary, SCHEMA};
-pub use folder::{
-    FolderError, OutputFolder, Written, write_folder, write_folder_interruptible, write_folder_with,
-};
+pub use folder::{FolderError, OutputFolder, WriteOptions, Written, write_folder};
 pub use run::{RenderError, RunContext};
