@@ -23,6 +23,7 @@
 //! | [`palette`] | the one colour-and-dash palette of every picture |
 //! | [`canvas`] | the white SVG frame, the inked line and the legend box the pictures share |
 //! | [`html`] | `index.html`, the one self-contained file to attach |
+//! | [`page`] | the one layout and stylesheet of every `index.html` (maud) |
 //! | [`folder`] | the output folder, written aside and renamed into place, with the list of its files |
 //!
 //! The other analyses, one module each:
@@ -47,6 +48,7 @@ pub mod markdown_escape;
 pub mod methods;
 pub mod numbers;
 pub mod outlines;
+pub mod page;
 pub mod palette;
 pub mod recheck;
 pub mod run;
