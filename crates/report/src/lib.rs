@@ -7,7 +7,7 @@
 //!
 //! | module | writes |
 //! |---|---|
-//! | [`audit_folder`] | the whole folder of one audit, in memory |
+//! | [`audit_folder`](mod@audit_folder) | the whole folder of one audit, in memory |
 //! | [`run`] | the run's context (command line, stamp, protocol) and why rendering failed |
 //! | [`document`] | the versioned `report.json` document (schema in `docs/report-schema.md`) |
 //! | [`numbers`] | rounding for human readers (JSON keeps full precision) |
