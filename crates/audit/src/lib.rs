@@ -4,6 +4,7 @@
 //! | module | job |
 //! |---|---|
 //! | [`window`] | the study-area variants, built by `patternproof_window` (re-exported) |
+//! | [`document`] | the `report.json` document: the sweep with its input, settings and checksums |
 //! | [`edge`] | the edge-handling choices as one enum |
 //! | [`error`] | why the sweep cannot start, with the number involved |
 //! | [`streams`] | per-simulation random streams derived from one seed |
@@ -18,6 +19,7 @@
 //! [`window::WindowKind`] and a builder in `patternproof_window::build`.
 
 pub mod curves;
+pub mod document;
 pub mod edge;
 pub mod error;
 pub mod flip;

@@ -6,7 +6,7 @@ use crate::interrupt;
 use crate::window_args::WindowArgs;
 use clap::{Args, Parser, Subcommand, ValueEnum};
 use patternproof_io::CoordChoice;
-use patternproof_report::{FolderError, OutputFolder, write_folder_interruptible};
+use patternproof_report::{FolderError, OutputFolder, WriteOptions, write_folder};
 use std::path::PathBuf;
 
 /// Does a claim about a point pattern survive every defensible study area
@@ -127,8 +127,16 @@ impl OutArgs {
     /// during the write leaves the old report or the new one, whole, and
     /// ends the program after saying which.
     pub fn write(&self, folder: &OutputFolder) -> Result<(), Failure> {
-        let (result, signal) =
-            interrupt::hold(|stop| write_folder_interruptible(&self.out, folder, self.force, stop));
+        let (result, signal) = interrupt::hold(|stop| {
+            write_folder(
+                &self.out,
+                folder,
+                WriteOptions {
+                    force: self.force,
+                    stop,
+                },
+            )
+        });
         if let Ok(written) = &result {
             for note in &written.repaired {
                 eprintln!("patternproof: note: {note}");

@@ -10,12 +10,11 @@ use patternproof_audit::window::WindowOptions;
 use patternproof_audit::{AuditOptions, BufferRule, Edge};
 use patternproof_io::magnitude::{MAX_AREA, MIN_AREA};
 use patternproof_io::{Dataset, LoadOptions};
-use patternproof_report::html::{self, Picture, Provenance, Section};
+use patternproof_report::html;
 use patternproof_report::{
-    AuditReport, OutputFolder, markdown, outlines, sensitivity_plot, simulation_plot, table,
-    window_map,
+    AuditReport, OutputFolder, Plane, RenderChoices, RunContext, audit_folder, table,
 };
-use patternproof_scales::{ScalesOptions, ScalesRun};
+use patternproof_scales::ScalesOptions;
 
 /// Run the command.
 pub fn run(a: &AuditArgs) -> Result<(), Failure> {
@@ -88,18 +87,35 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
     let choices = RenderChoices {
         picture_window: a.picture_window.clone(),
         no_map: a.no_map,
-        stamp: a.stamp,
-        protocol: None,
         scales: scales.as_ref().map(|k| k.run.clone()),
     };
-    let mut folder = render(&report, &data.points, data.projection.as_ref(), &choices)?;
-    folder.add("windows.gpkg", windows_gpkg(&report, &data, a.stamp)?);
+    let context = RunContext {
+        command_line: command_line(),
+        stamp: a.stamp.then(std::time::SystemTime::now),
+        protocol: None,
+    };
+    let unproject = data
+        .projection
+        .as_ref()
+        .map(|p| move |x: f64, y: f64| p.inverse(x, y));
+    let srs = data.plane_srs();
+    let plane = Plane {
+        points: &data.points,
+        unproject: unproject
+            .as_ref()
+            .map(|f| f as &(dyn Fn(f64, f64) -> _ + Sync)),
+        srs: &srs,
+    };
+    let folder = audit_folder(&report, plane, &choices, &context)?;
     a.output.write(&folder)?;
 
     print_summary(&report, &a.output.out, &folder);
     if let Some(k) = &scales {
         println!("\nRipley's K across the same windows (--scales):");
-        scales_cmd::print_lines(&k.run, &k.notes);
+        print!(
+            "{}",
+            patternproof_report::scales::terminal_text(&k.run, &k.notes)
+        );
     }
     Ok(())
 }
@@ -137,126 +153,12 @@ fn check_budget(
     Ok(())
 }
 
-/// The rendering switches shared by `audit` and the per-site folders of
-/// `sites`.
-#[derive(Debug, Clone, Default)]
-pub struct RenderChoices {
-    /// `--picture-window`.
-    pub picture_window: Option<String>,
-    /// `--no-map`.
-    pub no_map: bool,
-    /// `--stamp`.
-    pub stamp: bool,
-    /// The protocol followed, in words (id and hash), if any.
-    pub protocol: Option<String>,
-    /// The K audit of the same windows (`audit --scales`): its files join
-    /// the folder and its section the page.
-    pub scales: Option<ScalesRun>,
-}
-
-/// Every file of the report folder, rendered in memory first so that
-/// nothing is written unless everything rendered.
-pub fn render(
-    report: &AuditReport,
-    points: &[patternproof_core::Xy],
-    projection: Option<&patternproof_io::Projection>,
-    a: &RenderChoices,
-) -> Result<OutputFolder, Failure> {
-    let mut folder = OutputFolder::default();
-    let mut buf = Vec::new();
-    report.write_json(&mut buf).map_err(internal)?;
-    folder.add("report.json", buf);
-    let mut buf = Vec::new();
-    table::write_csv(report, &mut buf).map_err(internal)?;
-    folder.add("verdict.csv", buf);
-    let mut buf = Vec::new();
-    markdown::write_markdown(report, &mut buf).map_err(internal)?;
-    folder.add("verdict.md", buf);
-    let mut buf = Vec::new();
-    let unproject = projection.map(|p| move |x: f64, y: f64| p.inverse(x, y));
-    let unproject_ref: Option<&dyn Fn(f64, f64) -> Option<[f64; 2]>> = unproject
-        .as_ref()
-        .map(|f| f as &dyn Fn(f64, f64) -> Option<[f64; 2]>);
-    outlines::write_outlines(report, unproject_ref, &mut buf).map_err(internal)?;
-    folder.add("windows.geojson", buf);
-
-    let mut pictures = Vec::new();
-    if let Some(svg) = sensitivity_plot::sensitivity_svg(report) {
-        pictures.push(Picture {
-            title: "How R and z change with the study area".into(),
-            caption: "Does the call survive every defensible window, and where does it flip? Lines: each analytic edge handling over windows of the hull's shape scaled up and down; markers: the verdict-table rows at the named windows; bars: the 95 % range of R under CSR in each exact window; solid verticals: the flip thresholds.".into(),
-            svg: svg.clone(),
-        });
-        folder.add("sensitivity.svg", svg.into_bytes());
-    }
-    let sim_window = match &a.picture_window {
-        Some(id) => {
-            if !report.windows.iter().any(|w| &w.id == id) {
-                return Err(Failure::Input(format!(
-                    "--picture-window {id}: no window has this id\n  what to do: choose one of {}",
-                    report
-                        .windows
-                        .iter()
-                        .map(|w| w.id.as_str())
-                        .collect::<Vec<_>>()
-                        .join(", ")
-                )));
-            }
-            Some(id.as_str())
-        }
-        None => simulation_plot::default_window(report),
-    };
-    if let Some(svg) = sim_window.and_then(|id| simulation_plot::simulation_svg(report, id)) {
-        pictures.push(Picture {
-            title: format!("The simulation test in `{}`", sim_window.unwrap_or_default()),
-            caption: "Where does the observed mean nearest-neighbour distance fall among patterns of complete spatial randomness in this exact window? The rank p-value counts the simulated patterns at least as far out.".into(),
-            svg: svg.clone(),
-        });
-        folder.add("simulation.svg", svg.into_bytes());
-    } else if let Some(id) = &a.picture_window {
-        return Err(Failure::Input(format!(
-            "--picture-window {id}: this window has no simulations (simulations need an outline and --sims above 0)\n  what to do: choose a window with an outline, or leave the option out"
-        )));
-    }
-    if !a.no_map
-        && let Some(svg) = window_map::window_map_svg(report, points)
-    {
-        pictures.push(Picture {
-            title: "The windows".into(),
-            caption: "Which study areas were compared? Every window outline over the points, labelled by id, with a scale bar.".into(),
-            svg: svg.clone(),
-        });
-        folder.add("windows.svg", svg.into_bytes());
-    }
-    let run = Provenance {
-        command_line: std::env::args_os()
-            .map(|s| html::shell_quote(&s.to_string_lossy()))
-            .collect::<Vec<_>>()
-            .join(" "),
-        protocol: a.protocol.clone(),
-        stamp: a
-            .stamp
-            .then(|| humantime::format_rfc3339_seconds(std::time::SystemTime::now()).to_string()),
-    };
-    let mut sections = Vec::new();
-    if let Some(k) = &a.scales {
-        scales_cmd::add_files(&mut folder, k)?;
-        let svg = patternproof_scales::plot::scales_svg(k);
-        sections.push(Section {
-            id: "scales".into(),
-            title: "Ripley's K and L across the same windows".into(),
-            html: patternproof_scales::summary::html_section(k, svg.as_deref()),
-        });
-    }
-    folder.add(
-        "index.html",
-        html::index_html(report, &pictures, &sections, &run).into_bytes(),
-    );
-    Ok(folder)
-}
-
-fn internal(e: std::io::Error) -> Failure {
-    Failure::Internal(format!("could not render the report in memory: {e}"))
+/// The command line as typed, quoted where needed, for the report's page.
+pub fn command_line() -> String {
+    std::env::args_os()
+        .map(|s| html::shell_quote(&s.to_string_lossy()))
+        .collect::<Vec<_>>()
+        .join(" ")
 }
 
 /// Load points and boundaries with the shared input flags.
@@ -312,18 +214,6 @@ pub fn gpkg_choice(
             .map(patternproof_io::geopackage::parse_filter)
             .transpose()?,
     })
-}
-
-/// `windows.gpkg`: the outlines in the plane the report measured them in.
-/// `last_change` is fixed unless `--stamp` asks for the time of the run.
-pub fn windows_gpkg(report: &AuditReport, data: &Dataset, stamp: bool) -> Result<Vec<u8>, Failure> {
-    let last_change = if stamp {
-        humantime::format_rfc3339_millis(std::time::SystemTime::now()).to_string()
-    } else {
-        patternproof_gpkg::write::FIXED_LAST_CHANGE.to_string()
-    };
-    patternproof_report::windows_gpkg::windows_gpkg(report, &data.plane_srs(), &last_change)
-        .map_err(|e| Failure::Internal(format!("could not write windows.gpkg in memory: {e}")))
 }
 
 /// `--buffers 0.5x,1x,2x` or `--buffers 5,10`.

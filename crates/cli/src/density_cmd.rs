@@ -4,11 +4,12 @@
 
 use crate::fail::Failure;
 use clap::Args;
+use patternproof_density::Config;
 use patternproof_density::bandwidth::{BandwidthSpec, FIXED_RANGE, MULTIPLE_RANGE};
 use patternproof_density::edge::DensityEdge;
 use patternproof_density::kernels::{self, Kernel};
-use patternproof_density::render::RunInfo;
-use patternproof_density::{Config, render};
+use patternproof_report::RunContext;
+use patternproof_report::density::RunInfo;
 use patternproof_report::html::shell_quote;
 
 /// `patternproof density`.
@@ -221,10 +222,13 @@ pub fn run(a: &DensityArgs) -> Result<(), Failure> {
         unit: data.unit.clone(),
         window_source: source,
         window_area: area,
-        command_line: command.join(" "),
         warnings: data.warnings.clone(),
     };
-    let folder = render::folder(&analysis, &info).map_err(Failure::Internal)?;
+    let context = RunContext {
+        command_line: command.join(" "),
+        ..RunContext::default()
+    };
+    let folder = patternproof_report::density::folder(&analysis, &info, &context)?;
     a.output.write(&folder)?;
     if !a.quiet {
         for w in info.warnings.iter().chain(&analysis.warnings) {

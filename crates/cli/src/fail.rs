@@ -59,3 +59,21 @@ impl From<patternproof::Error> for Failure {
         }
     }
 }
+
+/// A folder that could not be rendered: the picture's window is the
+/// user's to change; anything else is a bug.
+impl From<patternproof_report::RenderError> for Failure {
+    fn from(e: patternproof_report::RenderError) -> Self {
+        use patternproof_report::RenderError;
+        match e {
+            RenderError::UnknownWindow { id, known } => Failure::Input(format!(
+                "--picture-window {id}: no window has this id\n  what to do: choose one of {}",
+                known.join(", ")
+            )),
+            RenderError::NoSimulations { id } => Failure::Input(format!(
+                "--picture-window {id}: this window has no simulations (simulations need an outline and --sims above 0)\n  what to do: choose a window with an outline, or leave the option out"
+            )),
+            e => Failure::Internal(e.to_string()),
+        }
+    }
+}

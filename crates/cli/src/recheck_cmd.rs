@@ -8,8 +8,8 @@ use crate::args::CoordsArg;
 use crate::fail::Failure;
 use clap::Args;
 use patternproof_io::{CoordChoice, LoadOptions};
+use patternproof_recheck::Figures;
 use patternproof_recheck::reported::{Problem, Quantity, parse, parse_count};
-use patternproof_recheck::{Figures, render};
 use std::path::PathBuf;
 
 /// `patternproof recheck`.
@@ -131,7 +131,7 @@ pub fn run(a: &RecheckArgs) -> Result<(), Failure> {
             .map_err(|e| Failure::Internal(format!("could not write the JSON: {e}")))?;
         println!("{text}");
     } else {
-        print!("{}", render::text(&result, None));
+        print!("{}", patternproof_report::recheck::text(&result, None));
     }
     Ok(())
 }

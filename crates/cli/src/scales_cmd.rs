@@ -13,9 +13,7 @@ use crate::progress::Progress;
 use crate::window_args::WindowArgs;
 use clap::Args;
 use patternproof::{ScalesJob, ScalesResult, WindowOptions};
-use patternproof_report::OutputFolder;
-use patternproof_scales::summary;
-use patternproof_scales::{Correction, ScalesOptions, ScalesRun, memory};
+use patternproof_scales::{Correction, ScalesOptions, memory};
 
 /// Largest accepted `--steps`.
 const MAX_STEPS: usize = 10_000;
@@ -135,14 +133,16 @@ pub fn run(a: &ScalesArgs) -> Result<(), Failure> {
         concavity,
     };
     let ScalesResult { run, notes } = compute(&input, &windows, &options, a.quiet, "--sims")?;
-    let mut folder = OutputFolder::default();
-    add_files(&mut folder, &run)?;
+    let folder = patternproof_report::scales::folder(&run)?;
     a.output.write(&folder)?;
 
     for w in &data.warnings {
         eprintln!("patternproof: warning: {w}");
     }
-    print_lines(&run, &notes);
+    print!(
+        "{}",
+        patternproof_report::scales::terminal_text(&run, &notes)
+    );
     println!(
         "\nwrote {} to {}",
         folder.names().collect::<Vec<_>>().join(", "),
@@ -197,61 +197,4 @@ pub fn compute(
         Ok::<(), Failure>(())
     };
     job.run(options, check, &Progress::new(quiet))
-}
-
-/// The files of a K audit: scales.json, scales.csv, scales.md and the
-/// two pictures.
-pub fn add_files(folder: &mut OutputFolder, run: &ScalesRun) -> Result<(), Failure> {
-    let json = serde_json::to_vec_pretty(run)
-        .map_err(|e| Failure::Internal(format!("could not write scales.json: {e}")))?;
-    folder.add("scales.json", json);
-    folder.add("scales.csv", summary::csv(run).into_bytes());
-    folder.add("scales.md", summary::markdown(run).into_bytes());
-    if let Some(svg) = patternproof_scales::plot::scales_svg(run) {
-        folder.add("scales.svg", svg.into_bytes());
-    }
-    if let Some(svg) = patternproof_scales::plot::corrections_svg(run) {
-        folder.add("corrections.svg", svg.into_bytes());
-    }
-    Ok(())
-}
-
-/// The terminal lines of a K audit.
-pub fn print_lines(run: &ScalesRun, notes: &[String]) {
-    println!(
-        "L(r) − r up to {} {} ({} steps; {}), {} CSR simulations per window, seed {}:",
-        patternproof_scales::verdict::distance(run.rmax),
-        run.unit,
-        run.r.len(),
-        run.rmax_rule,
-        run.sims,
-        run.seed
-    );
-    println!(
-        "{:<14} {:>5}  {:<11} {:>9} {:>7} {:>7}  bands outside the MAD envelope",
-        "window", "n", "correction", "MAD T", "MAD p", "ERL p"
-    );
-    for r in summary::table_rows(run) {
-        println!(
-            "{:<14} {:>5}  {:<11} {:>9} {:>7} {:>7}  {}",
-            r[0], r[1], r[2], r[3], r[4], r[5], r[6]
-        );
-    }
-    for n in notes {
-        println!("note: {n}");
-    }
-    for s in &run.skipped {
-        println!("skipped {}: {}", s.window, s.reason);
-    }
-    for v in &run.verdicts {
-        println!(
-            "\nVerdict ({} correction, MAD test at α = {}): {}.",
-            v.correction.as_str(),
-            run.alpha,
-            v.sentence
-        );
-    }
-    for c in &run.cautions {
-        println!("  caution: {c}");
-    }
 }

@@ -1,7 +1,6 @@
 //! `patternproof sites`: one locked protocol over many sites.
 
 use crate::args::{CoordArgs, OutArgs, count};
-use crate::audit_cmd::{RenderChoices, render};
 use crate::budget;
 use crate::fail::Failure;
 use crate::progress::Progress;
@@ -10,10 +9,10 @@ use patternproof::{Site, SitesSource};
 use patternproof_audit::simulation;
 use patternproof_io::{Dataset, LoadOptions};
 use patternproof_protocol::Protocol;
-use patternproof_report::OutputFolder;
-use patternproof_sites::folder_name::site_folders;
-use patternproof_sites::{RunOptions, SiteInput, SiteRun, forest, page, render as site_render};
-use rayon::prelude::*;
+use patternproof_report::sites::SiteInputs;
+use patternproof_report::{OutputFolder, Plane, RenderChoices, RunContext};
+use patternproof_sites::document::document;
+use patternproof_sites::{RunOptions, SiteInput, SiteRun};
 use std::path::PathBuf;
 
 /// `patternproof sites`.
@@ -98,7 +97,7 @@ pub fn run(a: &SitesArgs) -> Result<(), Failure> {
     let folder = outputs(a, &protocol, sites, datasets, &runs)?;
     a.output.write(&folder)?;
 
-    let doc = site_render::document(&runs, &protocol, a.sweep_sims);
+    let doc = document(&runs, &protocol, a.sweep_sims);
     println!(
         "protocol {} (SHA-256 {})",
         a.protocol.display(),
@@ -122,7 +121,10 @@ pub fn run(a: &SitesArgs) -> Result<(), Failure> {
         };
         println!("  {}: {what}", r.site);
     }
-    println!("\n{}.", site_render::summary_line(&doc));
+    println!(
+        "\n{}.",
+        patternproof_report::sites::files::summary_line(&doc)
+    );
     for n in &doc.notes {
         println!("  caution: {n}");
     }
@@ -227,15 +229,8 @@ fn check_budget(
     budget::check_time("--sweep-sims", opts.sweep_sims, seconds, threads, quiet)
 }
 
-/// One site's report folder, before it joins the run's folder.
-struct SiteFolder {
-    /// `site/FOLDER`.
-    dir: String,
-    /// Which site and input, for error messages.
-    what: String,
-    folder: OutputFolder,
-}
-
+/// Every file of the run: each tested site's report is made by the
+/// facade and rendered by the presentation crate.
 fn outputs(
     a: &SitesArgs,
     protocol: &Protocol,
@@ -243,90 +238,51 @@ fn outputs(
     datasets: &[Dataset],
     runs: &[SiteRun],
 ) -> Result<OutputFolder, Failure> {
-    let internal = |e: std::io::Error| {
-        Failure::Internal(format!("could not render the outputs in memory: {e}"))
-    };
     let hash = protocol.sha256();
-    let with_report: Vec<&Site> = sites
-        .iter()
-        .zip(runs)
-        .filter(|(_, run)| run.audit.is_some())
-        .map(|(s, _)| s)
-        .collect();
-    let names: Vec<&str> = with_report.iter().map(|s| s.input.name.as_str()).collect();
-    let folders: Vec<(String, String)> = names
-        .iter()
-        .zip(site_folders(&names))
-        .map(|(name, folder)| (name.to_string(), format!("site/{folder}")))
-        .collect();
     let choices = RenderChoices {
         picture_window: None,
         no_map: a.no_map,
-        stamp: false,
-        protocol: Some(format!("{} (SHA-256 {hash})", a.protocol.display())),
         scales: None,
     };
-    let per_site: Vec<Result<Option<SiteFolder>, Failure>> = sites
-        .par_iter()
-        .zip(runs.par_iter())
-        .map(|(s, run)| {
-            let Some(report) = patternproof::site_report(s, run, protocol)? else {
-                return Ok(None);
-            };
-            let mut folder = render(
-                &report,
-                &s.input.points,
-                datasets[s.data].projection.as_ref(),
-                &choices,
-            )?;
-            // The same outlines file as `audit` writes, so a site's
-            // windows can be laid over its map in a GIS.
-            folder.add(
-                "windows.gpkg",
-                crate::audit_cmd::windows_gpkg(&report, &datasets[s.data], false)?,
-            );
-            let dir = folders
-                .iter()
-                .find(|f| f.0 == s.input.name)
-                .map(|f| f.1.clone())
-                .unwrap_or_default();
-            let what = format!(
-                "the report of site `{}`, read from {}",
-                s.input.name,
-                s.files
-                    .iter()
-                    .map(|f| f.display().to_string())
-                    .collect::<Vec<_>>()
-                    .join(" and ")
-            );
-            Ok(Some(SiteFolder { dir, what, folder }))
+    let context = RunContext {
+        command_line: crate::audit_cmd::command_line(),
+        stamp: None,
+        protocol: Some(format!("{} (SHA-256 {hash})", a.protocol.display())),
+    };
+    let unprojects: Vec<_> = datasets
+        .iter()
+        .map(|d| {
+            d.projection
+                .as_ref()
+                .map(|p| move |x: f64, y: f64| p.inverse(x, y))
         })
         .collect();
-    let mut out = OutputFolder::default();
-    let doc = site_render::document(runs, protocol, a.sweep_sims);
-    let mut buf = Vec::new();
-    site_render::write_json(&doc, &mut buf).map_err(internal)?;
-    out.add("sites.json", buf);
-    let mut buf = Vec::new();
-    site_render::write_csv(&doc, &mut buf).map_err(internal)?;
-    out.add("sites.csv", buf);
-    let mut buf = Vec::new();
-    site_render::write_markdown(&doc, &mut buf).map_err(internal)?;
-    out.add("sites.md", buf);
-    let svg = forest::forest_svg(runs);
-    if let Some(svg) = &svg {
-        out.add("sites.svg", svg.clone().into_bytes());
-    }
-    out.add(
-        "index.html",
-        page::index_html(&doc, svg.as_deref(), &folders).into_bytes(),
-    );
-    out.add("protocol.json", protocol.to_file_text().into_bytes());
-    for r in per_site {
-        if let Some(site) = r? {
-            out.nest(&site.dir, site.folder);
-            out.describe(&site.dir, &site.what);
-        }
-    }
-    Ok(out)
+    let planes: Vec<_> = datasets.iter().map(|d| d.plane_srs()).collect();
+    let inputs: Vec<SiteInputs<'_>> = sites
+        .iter()
+        .map(|s| SiteInputs {
+            name: &s.input.name,
+            files: s.files.iter().map(|f| f.display().to_string()).collect(),
+            plane: Plane {
+                points: &s.input.points,
+                unproject: unprojects[s.data]
+                    .as_ref()
+                    .map(|f| f as &(dyn Fn(f64, f64) -> _ + Sync)),
+                srs: &planes[s.data],
+            },
+        })
+        .collect();
+    let report_of = |i: usize| -> Result<patternproof::AuditReport, Failure> {
+        patternproof::site_report(&sites[i], &runs[i], protocol)?
+            .ok_or_else(|| Failure::Internal("a site without a sweep has no report".into()))
+    };
+    patternproof_report::sites::sites_folder(
+        runs,
+        protocol,
+        a.sweep_sims,
+        &inputs,
+        report_of,
+        &choices,
+        &context,
+    )
 }

@@ -42,6 +42,17 @@ impl Call {
     pub const ALL: [Call; 3] = [Call::Clustered, Call::Dispersed, Call::NotSignificant];
 }
 
+/// The word of a call in tables and sentences, "no test" for a row
+/// without one (the JSON keeps [`Call::as_str`]).
+pub fn call_word(c: Option<Call>) -> &'static str {
+    match c {
+        Some(Call::Clustered) => "clustered",
+        Some(Call::Dispersed) => "dispersed",
+        Some(Call::NotSignificant) => "not significant",
+        None => "no test",
+    }
+}
+
 impl fmt::Display for Call {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         f.write_str(self.as_str())

@@ -1,4 +1,5 @@
-//! Pure statistics for patternproof: no files, no printing, no geometry
+//! Pure statistics for patternproof (and the one number formatter
+//! beneath every output): no files, no printing, no geometry
 //! beyond point coordinates. Every function here is checked against a
 //! published formula or an outside reference library in its tests.
 //!
@@ -16,6 +17,7 @@
 //! | [`guard_zone`] | moments of the guard-zone (border) test |
 //! | [`toroidal`] | nearest-neighbour distances on a torus |
 //! | [`monte_carlo`] | rank p-values and quantiles for simulation tests |
+//! | [`numbers`] | numbers for people: the one formatter of every table, page and sentence |
 //! | [`order`] | the canonical point order that makes every sum independent of the input's row order |
 //!
 //! Points are `[x, y]` pairs in a projected, planar unit; the caller
@@ -32,6 +34,7 @@ pub mod guard_zone;
 pub mod monte_carlo;
 pub mod nearest;
 pub mod normal;
+pub mod numbers;
 #[cfg(test)]
 mod oracles;
 pub mod order;

@@ -7,18 +7,16 @@
 //! ([`convolve`]). Each surface's isopleths ([`isopleth`]) are measured,
 //! split into patches ([`patches`]) and compared with the reference
 //! surface ([`overlap`]); [`verdict`] sums the spread up in one sentence.
+//! `patternproof-report` renders the analysis (pictures, GeoTIFF, pages).
 
 pub mod bandwidth;
 pub mod convolve;
 pub mod edge;
-pub mod geotiff;
 pub mod grid;
 pub mod isopleth;
 pub mod kernels;
 pub mod overlap;
 pub mod patches;
-pub mod plot;
-pub mod render;
 pub mod verdict;
 
 use bandwidth::{BandwidthSpec, Lcv, Scott};
@@ -27,9 +25,28 @@ use geo::MultiPolygon;
 use grid::Grid;
 use kernels::Kernel;
 use patternproof_core::Xy;
-use patternproof_report::numbers::sig;
+use patternproof_core::numbers::sig;
 use patternproof_window::PreparedWindow;
 use rayon::prelude::*;
+
+/// What a density surface does and does not show; read with every report.
+pub fn cautions() -> Vec<String> {
+    vec![
+        "A kernel density surface is a smoothed picture of where the recorded points are, for one kernel and one bandwidth. It does not show where events can happen, does not correct for where or how hard anyone looked, and carries no measure of its own uncertainty; isopleth areas are a property of the smoothing as much as of the data.".into(),
+        "The surfaces, the isopleth polygons and the GeoTIFF are built from the point locations and can reveal them, most of all with small bandwidths. Point locations of people are personal data: do not share these files without the protection that the data's terms require.".into(),
+        "Bandwidth selectors assume independent points. Successive fixes of a track are not independent, and likelihood cross-validation in particular tends to choose small bandwidths for them.".into(),
+        "With edge handling `none` part of each kernel's mass falls outside the window (reported as mass_outside); isopleth shares are shares of the mass inside the window.".into(),
+    ]
+}
+
+/// Whether a unit name means metres (areas in m² then also read in km²,
+/// and a GeoTIFF declares the EPSG metre).
+pub fn is_metre(unit: &str) -> bool {
+    matches!(
+        unit.trim().to_ascii_lowercase().as_str(),
+        "m" | "metre" | "metres" | "meter" | "meters"
+    )
+}
 
 /// Jaccard overlap at or above which the main hotspot counts as staying in place.
 pub const HOTSPOT_OVERLAP: f64 = 0.5;

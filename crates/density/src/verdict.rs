@@ -14,7 +14,7 @@
 //!   either hotspot alone) in every surface.
 
 use crate::{HOTSPOT_OVERLAP, Surface};
-use patternproof_report::numbers::sig;
+use patternproof_core::numbers::sig;
 use serde::Serialize;
 
 /// The spread of one level's area.
@@ -73,7 +73,7 @@ pub fn sig3(x: f64) -> String {
 
 /// Two areas in words: km² for metre data from 0.01 km² up, else unit².
 pub fn area_words(a: f64, b: f64, unit: &str) -> (String, String, String) {
-    if crate::geotiff::is_metre(unit) && a >= 1e4 {
+    if crate::is_metre(unit) && a >= 1e4 {
         (sig(a / 1e6, 3), sig(b / 1e6, 3), "km²".into())
     } else {
         (sig3(a), sig3(b), format!("{unit}²"))

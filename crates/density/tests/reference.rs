@@ -1,16 +1,12 @@
 //! Checks of the density surfaces against a reference library, closed
 //! forms and the GeoTIFF specification.
 
-use approx::{abs_diff_eq, assert_abs_diff_eq};
+use approx::abs_diff_eq;
 use geo::{MultiPolygon, polygon};
 use patternproof_density::edge::{DensityEdge, estimate};
-use patternproof_density::geotiff;
 use patternproof_density::grid::Grid;
 use patternproof_density::kernels::Kernel;
 use patternproof_window::PreparedWindow;
-use std::io::Cursor;
-use tiff::decoder::Decoder;
-use tiff::tags::Tag;
 
 fn reference() -> serde_json::Value {
     let path = concat!(
@@ -174,49 +170,4 @@ fn uniform_correction_restores_unit_mass_for_an_even_pattern() {
         "{}",
         uni.mass_inside
     );
-}
-
-/// Source: OGC GeoTIFF 1.1 (tags 33550, 33922, 34735; keys 1024, 1025,
-/// 3072, 3076); read back with the `tiff` crate's decoder.
-#[test]
-fn geotiff_tags_read_back() {
-    let grid = Grid {
-        x0: 1000.0,
-        y0: 2000.0,
-        cell: 5.0,
-        nx: 4,
-        ny: 3,
-    };
-    let values: Vec<f64> = (0..12).map(|k| k as f64 * 0.1).collect();
-    let mut mask = vec![true; 12];
-    mask[0] = false;
-    let bytes = geotiff::encode(&grid, &values, &mask, "m", "test grid").expect("encode");
-    let mut d = Decoder::new(Cursor::new(bytes)).expect("decoder");
-    assert_eq!(d.dimensions().expect("dims"), (4, 3));
-    assert_eq!(
-        d.get_tag_f64_vec(Tag::ModelPixelScaleTag).expect("scale"),
-        vec![5.0, 5.0, 0.0]
-    );
-    assert_eq!(
-        d.get_tag_f64_vec(Tag::ModelTiepointTag).expect("tiepoint"),
-        vec![0.0, 0.0, 0.0, 1000.0, 2015.0, 0.0]
-    );
-    let keys = d.get_tag_u16_vec(Tag::GeoKeyDirectoryTag).expect("geokeys");
-    assert_eq!(&keys[..4], &[1, 1, 1, 5]);
-    let key = |id: u16| keys[4..].chunks(4).find(|k| k[0] == id).map(|k| k[3]);
-    assert_eq!(key(1024), Some(1), "projected model");
-    assert_eq!(key(1025), Some(1), "PixelIsArea");
-    assert_eq!(key(3072), Some(32767), "user-defined projected CRS");
-    assert_eq!(key(3076), Some(9001), "metre");
-    let ids: Vec<u16> = keys[4..].chunks(4).map(|k| k[0]).collect();
-    assert!(ids.windows(2).all(|w| w[0] < w[1]), "keys sorted");
-    match d.read_image().expect("image") {
-        tiff::decoder::DecodingResult::F32(v) => {
-            // Top row first: the northern row j = 2 holds values 0.8..1.1.
-            assert_abs_diff_eq!(v[0], 0.8, epsilon = 1e-6);
-            // Cell (0, 0) is outside the window: last row, first column.
-            assert!(v[8].is_nan());
-        }
-        _ => panic!("expected 32-bit floats"),
-    }
 }

@@ -80,7 +80,7 @@ pub use density::{DensityResult, density};
 pub use document::{AuditReport, FileDigest, InputSummary, ReportProvenance};
 pub use error::{Error, ErrorKind, Refusal};
 pub use input::{Input, digests, input_summary, load, named_shapes};
-pub use patternproof_report::document;
+pub use patternproof_audit::document;
 pub use progress::{Progress, Silent};
 pub use protocol::{changed, read_protocol, read_verified};
 pub use recheck::recheck;

@@ -9,6 +9,7 @@
 //! Comparisons allow a relative slack of [`REL_TOL`] so that a value that
 //! sits exactly on a rounding boundary is not lost to floating-point noise.
 
+use patternproof_core::numbers::figure;
 use serde::{Serialize, Serializer};
 use std::fmt;
 
@@ -180,11 +181,9 @@ impl Interval {
     pub fn describe(&self) -> String {
         match (self.low.is_finite(), self.high.is_finite()) {
             (true, true) if self.low == self.high => number(self.low),
-            (true, true) if number(self.low) == number(self.high) => format!(
-                "[{}, {}]",
-                number_sig(self.low, 7),
-                number_sig(self.high, 7)
-            ),
+            (true, true) if number(self.low) == number(self.high) => {
+                format!("[{}, {}]", figure(self.low, 7), figure(self.high, 7))
+            }
             (true, true) => format!("[{}, {}]", number(self.low), number(self.high)),
             (true, false) => format!("[{}, ∞)", number(self.low)),
             (false, true) => format!("(-∞, {}]", number(self.high)),
@@ -208,35 +207,10 @@ fn safe_div(a: f64, b: f64) -> f64 {
 }
 
 /// A number for people: four significant digits (trailing zeros dropped),
-/// scientific notation below 0.001, no decimals from 10 000 up.
+/// scientific notation below 0.001, no decimals from 10 000 up
+/// ([`figure`]).
 pub fn number(x: f64) -> String {
-    number_sig(x, 4)
-}
-
-/// [`number`] with `sig` significant digits.
-pub fn number_sig(x: f64, sig: i32) -> String {
-    if !x.is_finite() {
-        return if x > 0.0 { "∞".into() } else { "-∞".into() };
-    }
-    if x == 0.0 {
-        return "0".into();
-    }
-    let a = x.abs();
-    if a < 1e-3 {
-        let d = (sig - 2).max(0) as usize;
-        return format!("{x:.d$e}");
-    }
-    let magnitude = a.log10().floor() as i32;
-    if magnitude >= sig {
-        return format!("{x:.0}");
-    }
-    let decimals = (sig - 1 - magnitude).max(0) as usize;
-    let s = format!("{x:.decimals$}");
-    if s.contains('.') {
-        s.trim_end_matches('0').trim_end_matches('.').to_string()
-    } else {
-        s
-    }
+    figure(x, 4)
 }
 
 impl fmt::Display for Interval {

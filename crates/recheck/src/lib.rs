@@ -18,7 +18,8 @@
 //! | [`plausible`] | whether a fitting edge-corrected reading is one a study could have used |
 //! | [`attribution`] | which window × edge handling of the audit reproduces the figures |
 //! | [`verdict`] | "consistent", "inconsistent: …" or "consistent only if …" |
-//! | [`render`] | the terminal table |
+//!
+//! `patternproof-report` renders a recheck (the terminal table).
 //!
 //! What a recheck shows: whether the printed figures can have come from
 //! one nearest-neighbour test of the kinds listed in [`model`]. What it
@@ -33,7 +34,6 @@ pub mod interval;
 pub mod model;
 pub mod plausible;
 pub mod propagate;
-pub mod render;
 pub mod reported;
 #[cfg(test)]
 mod test_figures;

@@ -199,34 +199,44 @@ fn name_too_long(_e: &io::Error) -> bool {
     false
 }
 
-/// Write every file into `target` atomically; an existing report folder
-/// is left alone (see [`write_folder_with`]).
-pub fn write_folder(target: &Path, folder: &OutputFolder) -> Result<Written, FolderError> {
-    write_folder_with(target, folder, false)
+/// When to replace an earlier report and when to give up.
+#[derive(Clone, Copy)]
+pub struct WriteOptions<'a> {
+    /// Replace an earlier report folder at the target (`--force`).
+    pub force: bool,
+    /// Asked between files whether to give up (a signal arrived): if so,
+    /// what this run made is removed, the earlier report stays, and the
+    /// answer is [`FolderError::Interrupted`]. Once the two renames begin
+    /// they are finished, so the target holds either the old or the new
+    /// report, whole.
+    pub stop: &'a dyn Fn() -> bool,
 }
 
-/// Write every file into `target` atomically; with `force`, an earlier
-/// report folder there is replaced.
-pub fn write_folder_with(
-    target: &Path,
-    folder: &OutputFolder,
-    force: bool,
-) -> Result<Written, FolderError> {
-    write_folder_interruptible(target, folder, force, &|| false)
+impl WriteOptions<'_> {
+    /// Never replace, never stop.
+    pub const KEEP: WriteOptions<'static> = WriteOptions {
+        force: false,
+        stop: &never,
+    };
+    /// Replace an earlier report, never stop.
+    pub const FORCE: WriteOptions<'static> = WriteOptions {
+        force: true,
+        stop: &never,
+    };
 }
 
-/// [`write_folder_with`], asking `stop` between files whether to give up
-/// (a signal arrived): if so, what this run made is removed, the earlier
-/// report stays, and the answer is [`FolderError::Interrupted`]. Once the
-/// two renames begin they are finished, so the target holds either the old
-/// or the new report, whole.
-pub fn write_folder_interruptible(
+fn never() -> bool {
+    false
+}
+
+/// Write every file into `target` atomically: the one way any output
+/// folder reaches the disk.
+pub fn write_folder(
     target: &Path,
     folder: &OutputFolder,
-    force: bool,
-    stop: &dyn Fn() -> bool,
+    options: WriteOptions<'_>,
 ) -> Result<Written, FolderError> {
-    write_with(target, folder, force, stop, &|from, to| {
+    write_with(target, folder, options.force, options.stop, &|from, to| {
         std::fs::rename(from, to)
     })
 }
@@ -491,7 +501,7 @@ mod tests {
     fn replaces_an_old_report_but_refuses_a_foreign_folder() {
         let root = tempfile::tempdir().unwrap();
         let target = root.path().join("out");
-        write_folder(&target, &report(1)).unwrap();
+        write_folder(&target, &report(1), WriteOptions::KEEP).unwrap();
         assert_eq!(names(&target), [".patternproof", "report.json", "site"]);
         assert_eq!(
             std::fs::read_to_string(target.join(MARKER))
@@ -502,15 +512,15 @@ mod tests {
             ["report.json", "site/a/verdict.md"]
         );
         assert!(matches!(
-            write_folder(&target, &report(2)),
+            write_folder(&target, &report(2), WriteOptions::KEEP),
             Err(FolderError::Exists(_))
         ));
-        write_folder_with(&target, &report(2), true).unwrap();
+        write_folder(&target, &report(2), WriteOptions::FORCE).unwrap();
         assert_eq!(version(&target), "{\"v\":2}");
         let foreign = root.path().join("mine");
         std::fs::create_dir(&foreign).unwrap();
         std::fs::write(foreign.join("thesis.tex"), "x").unwrap();
-        let e = write_folder_with(&foreign, &report(2), true).unwrap_err();
+        let e = write_folder(&foreign, &report(2), WriteOptions::FORCE).unwrap_err();
         assert!(matches!(e, FolderError::Refused { .. }), "{e:?}");
         assert!(e.to_string().contains("no .patternproof file list"), "{e}");
         assert!(foreign.join("thesis.tex").exists());
@@ -527,9 +537,9 @@ mod tests {
     fn force_never_takes_a_user_s_files() {
         let root = tempfile::tempdir().unwrap();
         let out = root.path().join("out");
-        write_folder(&out, &report(1)).unwrap();
+        write_folder(&out, &report(1), WriteOptions::KEEP).unwrap();
         std::fs::write(out.join("site/a/my-notes.txt"), "mine").unwrap();
-        let e = write_folder_with(&out, &report(2), true).unwrap_err();
+        let e = write_folder(&out, &report(2), WriteOptions::FORCE).unwrap_err();
         assert!(matches!(e, FolderError::Refused { .. }), "{e:?}");
         let text = e.to_string();
         assert!(
@@ -546,7 +556,7 @@ mod tests {
         std::fs::create_dir(&theirs).unwrap();
         std::fs::write(theirs.join("report.json"), "{}").unwrap();
         std::fs::write(theirs.join("data.csv"), "x,y").unwrap();
-        let e = write_folder_with(&theirs, &report(2), true).unwrap_err();
+        let e = write_folder(&theirs, &report(2), WriteOptions::FORCE).unwrap_err();
         assert!(matches!(e, FolderError::Refused { .. }), "{e:?}");
         assert!(e.to_string().contains("did not list its files"), "{e}");
         assert_eq!(names(&theirs), ["data.csv", "report.json"]);
@@ -556,13 +566,13 @@ mod tests {
     #[test]
     fn out_must_name_a_folder_of_its_own() {
         for bad in [".", "..", "/", "a/..", ".patternproof-old-1-x"] {
-            let e = write_folder_with(Path::new(bad), &report(1), true).unwrap_err();
+            let e = write_folder(Path::new(bad), &report(1), WriteOptions::FORCE).unwrap_err();
             assert!(matches!(e, FolderError::Refused { .. }), "{bad}: {e}");
             assert!(e.to_string().contains("what to do"));
         }
         // `dir/.` is `dir`.
         let root = tempfile::tempdir().unwrap();
-        write_folder(&root.path().join("out/."), &report(1)).unwrap();
+        write_folder(&root.path().join("out/."), &report(1), WriteOptions::KEEP).unwrap();
         assert_eq!(names(root.path()), ["out"]);
     }
 
@@ -572,7 +582,7 @@ mod tests {
     fn a_failed_rename_leaves_no_staging_folder() {
         let root = tempfile::tempdir().unwrap();
         let out = root.path().join("out");
-        write_folder(&out, &report(1)).unwrap();
+        write_folder(&out, &report(1), WriteOptions::KEEP).unwrap();
         for fail_at in [1, 2] {
             let calls = Cell::new(0);
             let rename = |from: &Path, to: &Path| {
@@ -603,7 +613,7 @@ mod tests {
     fn a_report_that_cannot_go_back_is_kept_and_named() {
         let root = tempfile::tempdir().unwrap();
         let out = root.path().join("out");
-        write_folder(&out, &report(1)).unwrap();
+        write_folder(&out, &report(1), WriteOptions::KEEP).unwrap();
         let calls = Cell::new(0);
         let rename = |from: &Path, to: &Path| {
             calls.set(calls.get() + 1);
@@ -629,14 +639,21 @@ mod tests {
     fn an_interrupt_between_files_changes_nothing() {
         let root = tempfile::tempdir().unwrap();
         let out = root.path().join("out");
-        write_folder(&out, &report(1)).unwrap();
+        write_folder(&out, &report(1), WriteOptions::KEEP).unwrap();
         for after in 0..4 {
             let asked = Cell::new(0);
             let stop = || {
                 asked.set(asked.get() + 1);
                 asked.get() > after
             };
-            let r = write_folder_interruptible(&out, &report(2), true, &stop);
+            let r = write_folder(
+                &out,
+                &report(2),
+                WriteOptions {
+                    force: true,
+                    stop: &stop,
+                },
+            );
             assert!(matches!(r, Err(FolderError::Interrupted)), "after {after}");
             assert_eq!(version(&out), "{\"v\":1}");
             assert_eq!(names(root.path()), ["out"]);
@@ -652,7 +669,7 @@ mod tests {
         let mut f = OutputFolder::default();
         f.nest("site/a", site);
         f.describe("site/a", "the report of site `a`, from a.csv");
-        let e = write_folder(&out, &f).unwrap_err();
+        let e = write_folder(&out, &f, WriteOptions::KEEP).unwrap_err();
         assert!(matches!(e, FolderError::Io { .. }), "{e:?}");
         let text = e.to_string();
         assert!(
@@ -674,7 +691,7 @@ mod tests {
             let mut f = OutputFolder::default();
             f.add(bad, Vec::new());
             let root = tempfile::tempdir().unwrap();
-            let r = write_folder(&root.path().join("out"), &f);
+            let r = write_folder(&root.path().join("out"), &f, WriteOptions::KEEP);
             assert!(matches!(r, Err(FolderError::BadName(_))), "{bad:?}");
         }
     }
@@ -688,14 +705,14 @@ mod tests {
         let target = root.path().join("a/../b");
         let mut f = OutputFolder::default();
         f.add("report.json", b"{}".to_vec());
-        let e = write_folder(&target, &f).unwrap_err();
+        let e = write_folder(&target, &f, WriteOptions::KEEP).unwrap_err();
         assert!(matches!(e, FolderError::Refused { .. }), "{e:?}");
         assert!(e.to_string().contains("and back up with `..`"), "{e}");
         assert!(!root.path().join("a").exists());
         assert!(!root.path().join("b").exists());
         let climbing = root.path().join("inner");
         std::fs::create_dir(&climbing).unwrap();
-        write_folder(&climbing.join("../c"), &f).unwrap();
+        write_folder(&climbing.join("../c"), &f, WriteOptions::KEEP).unwrap();
         assert!(root.path().join("c/report.json").is_file());
     }
 }

@@ -1,16 +1,16 @@
-//! `index.html`: the one file to attach to a review or a co-author's mail.
+//! `index.html`: the one file to attach to a review or a co-author's mail,
+//! in the shared layout of [`crate::page`].
 //!
-//! Self-contained: inline CSS and inline SVG, no script, no font and no
-//! image fetched from anywhere. Every string that comes from the user's
-//! files or command line (file names, boundary names, property values) goes
-//! through [`escape`], so a hostile name shows as text and never runs.
-//! The page is also well-formed XML (void elements self-closed), so any
-//! XML parser can check it.
+//! Every string that comes from the user's files or command line (file
+//! names, boundary names, property values) is escaped by maud, so a
+//! hostile name shows as text and never runs. [`escape`] does the same for
+//! the hand-built SVG pictures.
 
 use crate::document::AuditReport;
 use crate::numbers::{fixed, p_value, percent, sig};
+use crate::page::{page, trusted_svg};
 use crate::table::{call_symbol, call_word, flip_lines};
-use std::fmt::Write;
+use maud::{Markup, html};
 
 /// One picture for the page.
 #[derive(Debug, Clone)]
@@ -25,15 +25,15 @@ pub struct Picture {
 
 /// A section made by another analysis of the same run (e.g. the K audit
 /// of `audit --scales`), placed after the flip statement. `html` is
-/// trusted markup: its maker escapes every user string with [`escape`].
+/// markup built with maud, so every user string in it is escaped.
 #[derive(Debug, Clone)]
 pub struct Section {
     /// Anchor id (letters, digits and `-` only).
     pub id: String,
     /// Heading (escaped here).
     pub title: String,
-    /// The body, already escaped markup.
-    pub html: String,
+    /// The body.
+    pub html: Markup,
 }
 
 /// What the page says about how the run came about.
@@ -64,16 +64,6 @@ pub fn escape(s: &str) -> String {
     out
 }
 
-const STYLE: &str = "body{font-family:sans-serif;max-width:1040px;margin:2em auto;padding:0 1em;color:#111;line-height:1.45}\
-h1{font-size:1.5em;margin-bottom:.2em}h2{font-size:1.2em;border-bottom:1px solid #999;margin-top:2em}\
-.job{font-size:1.05em;color:#333}.verdict{font-size:1.15em;font-weight:bold;padding:.6em;border-left:6px solid #0072b2;background:#f2f2f2}\
-table{border-collapse:collapse;font-size:.88em;margin:.5em 0}th,td{border:1px solid #bbb;padding:.25em .5em;text-align:left;vertical-align:top}\
-td.num{text-align:right;font-variant-numeric:tabular-nums}th{background:#e8e8e8}\
-figure{margin:1em 0}figure svg{max-width:100%;height:auto;border:1px solid #ddd}figcaption{font-size:.9em;color:#333}\
-.methods{background:#f7f7f7;padding:.8em;border:1px dashed #888}code,pre{font-family:monospace;font-size:.9em}\
-pre{white-space:pre-wrap;word-break:break-all;background:#f2f2f2;padding:.5em}\
-.caution{color:#5a3a00}@media print{figure{break-inside:avoid}}";
-
 /// Render the page.
 pub fn index_html(
     report: &AuditReport,
@@ -81,215 +71,169 @@ pub fn index_html(
     sections: &[Section],
     provenance: &Provenance,
 ) -> String {
-    let mut h = String::new();
     let i = &report.input;
-    let u = escape(&i.unit);
-    let e = escape;
-    let _ = write!(
-        h,
-        "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\"/>\n<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\"/>\n<title>patternproof audit of {}</title>\n<style>{STYLE}</style>\n</head>\n<body>\n",
-        e(&i.points_file)
-    );
-    let _ = writeln!(
-        h,
-        "<h1>Does the call survive the choice of study area?</h1>\n<p class=\"job\">Nearest-neighbour audit of <code>{}</code>: {} points, {} windows × {} edge handlings ({} choices), {} CSR simulations per window, α = {}.</p>",
-        e(&i.points_file),
-        i.n,
-        report.windows.len(),
-        report.settings.edges.len(),
-        report.summary.choices_examined,
-        report.settings.sims,
-        report.alpha
-    );
-    let _ = writeln!(
-        h,
-        "<p class=\"verdict\">{}.</p>",
-        e(&report.summary.verdict)
-    );
-
-    // Input.
-    let _ = writeln!(h, "<h2 id=\"input\">Input</h2>\n<table>");
-    let mut row = |k: &str, v: String| {
-        let _ = writeln!(h, "<tr><th>{k}</th><td>{v}</td></tr>");
-    };
-    row("points file", format!("<code>{}</code>", e(&i.points_file)));
-    row(
-        "points",
-        format!(
-            "{} analysed of {} read; {} duplicate(s) {}",
-            i.n,
-            i.n_read,
-            i.duplicates,
-            if i.duplicates_dropped {
-                "removed"
-            } else {
-                "kept"
-            }
-        ),
-    );
-    row("coordinates", e(&i.coords));
-    row(
-        "projection",
-        i.projection
-            .as_deref()
-            .map_or("none (planar input)".into(), e),
-    );
-    row("unit", format!("{u} (areas in {u}²)"));
-    for b in &i.boundaries {
-        row(
-            "boundary",
-            format!(
-                "<code>{}</code> from <code>{}</code>",
-                e(&b.name),
-                e(&b.file)
-            ),
-        );
-    }
-    for w in &i.warnings {
-        row("warning", e(w));
-    }
-    h.push_str("</table>\n");
-
-    // Pictures.
-    for p in pictures {
-        let _ = writeln!(
-            h,
-            "<h2>{}</h2>\n<figure>\n{}\n<figcaption>{}</figcaption>\n</figure>",
-            e(&p.title),
-            strip_xml_declaration(&p.svg),
-            e(&p.caption)
-        );
-    }
-
-    // Verdict table.
-    let _ = writeln!(
-        h,
-        "<h2 id=\"table\">Verdict table</h2>\n<p>One row per window × edge handling. ◆ clustered, ◇ dispersed, ○ not significant at α = {}. “False alarms” is the share of the window's own CSR simulations that the row's analytic test calls significant: its real error rate here.</p>\n<table>\n<tr><th>window</th><th>edge</th><th>n</th><th>mean {u}</th><th>expected {u}</th><th>R</th><th>z</th><th>p</th><th>call</th><th>false alarms</th><th>note</th></tr>",
-        report.alpha
-    );
-    for r in &report.results {
-        let n = match r.focal {
-            Some(f) => format!("{f}/{}", r.n_used),
-            None => r.n_used.to_string(),
-        };
-        let _ = writeln!(
-            h,
-            "<tr><td><code>{}</code></td><td>{}</td><td class=\"num\">{n}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td>{} {}</td><td class=\"num\">{}</td><td>{}</td></tr>",
-            e(&r.window),
-            r.edge,
-            r.mean_nn.map_or("—".into(), |x| sig(x, 4)),
-            r.expected_nn.map_or("—".into(), |x| sig(x, 4)),
-            r.ratio.map_or("—".into(), |x| fixed(x, 3)),
-            r.z.map_or("—".into(), |x| fixed(x, 2)),
-            e(&r.p.map_or("—".into(), p_value)),
-            call_symbol(r.call),
-            call_word(r.call),
-            r.size_under_csr.map_or("—".into(), percent),
-            e(r.note.as_deref().unwrap_or(""))
-        );
-    }
-    h.push_str("</table>\n");
-    if !report.skipped.is_empty() {
-        h.push_str("<p>Not computed:</p>\n<ul>\n");
-        for s in &report.skipped {
-            let _ = writeln!(
-                h,
-                "<li><code>{}</code> with <code>{}</code>: {}</li>",
-                e(&s.window),
-                s.edge,
-                e(&s.reason)
-            );
-        }
-        h.push_str("</ul>\n");
-    }
-
-    // Robustness.
+    let u = i.unit.as_str();
     let s = &report.summary;
-    let _ = writeln!(
-        h,
-        "<h2 id=\"robustness\">Robustness</h2>\n<p>Over all {} choices: {} clustered, {} dispersed, {} not significant; {}.</p>\n<table>\n<tr><th>window</th><th>clustered</th><th>dispersed</th><th>not significant</th><th>unanimous</th></tr>",
-        s.choices_examined,
-        s.calls.clustered,
-        s.calls.dispersed,
-        s.calls.not_significant,
-        if s.unanimous {
-            "the call is unanimous"
-        } else {
-            "the call is not unanimous"
+    let dash = || "—".to_string();
+    let body = html! {
+        h1 { "Does the call survive the choice of study area?" }
+        p.job {
+            "Nearest-neighbour audit of " code { (i.points_file) } ": "
+            (i.n) " points, " (report.windows.len()) " windows × "
+            (report.settings.edges.len()) " edge handlings (" (s.choices_examined)
+            " choices), " (report.settings.sims) " CSR simulations per window, α = "
+            (report.alpha.to_string()) "."
         }
-    );
-    for w in &s.per_window {
-        let _ = writeln!(
-            h,
-            "<tr><td><code>{}</code></td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td>{}</td></tr>",
-            e(&w.window),
-            w.calls.clustered,
-            w.calls.dispersed,
-            w.calls.not_significant,
-            if w.unanimous { "yes" } else { "no" }
-        );
-    }
-    h.push_str("</table>\n");
+        p.verdict { (s.verdict) "." }
 
-    // Flip statement.
-    h.push_str("<h2 id=\"flip\">Where the call flips</h2>\n<ul>\n");
-    for l in flip_lines(report) {
-        let _ = writeln!(h, "<li>{}</li>", e(&l));
-    }
-    h.push_str("</ul>\n");
+        h2 id="input" { "Input" }
+        table {
+            tr { th { "points file" } td { code { (i.points_file) } } }
+            tr {
+                th { "points" }
+                td {
+                    (i.n) " analysed of " (i.n_read) " read; " (i.duplicates) " duplicate(s) "
+                    (if i.duplicates_dropped { "removed" } else { "kept" })
+                }
+            }
+            tr { th { "coordinates" } td { (i.coords) } }
+            tr {
+                th { "projection" }
+                td { (i.projection.as_deref().unwrap_or("none (planar input)")) }
+            }
+            tr { th { "unit" } td { (u) " (areas in " (u) "²)" } }
+            @for b in &i.boundaries {
+                tr { th { "boundary" } td { code { (b.name) } " from " code { (b.file) } } }
+            }
+            @for w in &i.warnings {
+                tr { th { "warning" } td { (w) } }
+            }
+        }
 
-    for sec in sections {
-        let id: String = sec
-            .id
-            .chars()
-            .filter(|c| c.is_ascii_alphanumeric() || *c == '-')
-            .collect();
-        let _ = writeln!(h, "<h2 id=\"{id}\">{}</h2>\n{}", e(&sec.title), sec.html);
-    }
+        @for p in pictures {
+            h2 { (p.title) }
+            figure {
+                (trusted_svg(&p.svg))
+                figcaption { (p.caption) }
+            }
+        }
 
-    // Methods.
-    let _ = writeln!(
-        h,
-        "<h2 id=\"methods\">Methods paragraph</h2>\n<p>Ready to paste into a manuscript; it states every choice the result depends on.</p>\n<p class=\"methods\">{}</p>",
-        e(&crate::methods::methods_paragraph(report))
-    );
+        h2 id="table" { "Verdict table" }
+        p {
+            "One row per window × edge handling. ◆ clustered, ◇ dispersed, ○ not significant at α = "
+            (report.alpha.to_string())
+            ". “False alarms” is the share of the window's own CSR simulations that the row's analytic test calls significant: its real error rate here."
+        }
+        table {
+            tr {
+                th { "window" } th { "edge" } th { "n" } th { "mean " (u) } th { "expected " (u) }
+                th { "R" } th { "z" } th { "p" } th { "call" } th { "false alarms" } th { "note" }
+            }
+            @for r in &report.results {
+                tr {
+                    td { code { (r.window) } }
+                    td { (r.edge.to_string()) }
+                    td.num {
+                        @match r.focal {
+                            Some(f) => { (f) "/" (r.n_used) }
+                            None => { (r.n_used) }
+                        }
+                    }
+                    td.num { (r.mean_nn.map_or_else(dash, |x| sig(x, 4))) }
+                    td.num { (r.expected_nn.map_or_else(dash, |x| sig(x, 4))) }
+                    td.num { (r.ratio.map_or_else(dash, |x| fixed(x, 3))) }
+                    td.num { (r.z.map_or_else(dash, |x| fixed(x, 2))) }
+                    td.num { (r.p.map_or_else(dash, p_value)) }
+                    td { (call_symbol(r.call)) " " (call_word(r.call)) }
+                    td.num { (r.size_under_csr.map_or_else(dash, percent)) }
+                    td { (r.note.as_deref().unwrap_or("")) }
+                }
+            }
+        }
+        @if !report.skipped.is_empty() {
+            p { "Not computed:" }
+            ul {
+                @for k in &report.skipped {
+                    li { code { (k.window) } " with " code { (k.edge.to_string()) } ": " (k.reason) }
+                }
+            }
+        }
 
-    // Cautions.
-    h.push_str("<h2 id=\"cautions\">What this does and does not show</h2>\n<ul>\n");
-    for c in &report.cautions {
-        let _ = writeln!(h, "<li class=\"caution\">{}</li>", e(c));
-    }
-    h.push_str("</ul>\n");
+        h2 id="robustness" { "Robustness" }
+        p {
+            "Over all " (s.choices_examined) " choices: " (s.calls.clustered) " clustered, "
+            (s.calls.dispersed) " dispersed, " (s.calls.not_significant) " not significant; "
+            (if s.unanimous { "the call is unanimous" } else { "the call is not unanimous" }) "."
+        }
+        table {
+            tr {
+                th { "window" } th { "clustered" } th { "dispersed" } th { "not significant" }
+                th { "unanimous" }
+            }
+            @for w in &s.per_window {
+                tr {
+                    td { code { (w.window) } }
+                    td.num { (w.calls.clustered) }
+                    td.num { (w.calls.dispersed) }
+                    td.num { (w.calls.not_significant) }
+                    td { (if w.unanimous { "yes" } else { "no" }) }
+                }
+            }
+        }
 
-    // Provenance.
-    h.push_str("<h2 id=\"provenance\">Provenance</h2>\n<table>\n<tr><th>input file</th><th>SHA-256</th></tr>\n");
-    for d in &report.provenance.inputs {
-        let _ = writeln!(
-            h,
-            "<tr><td><code>{}</code></td><td><code>{}</code></td></tr>",
-            e(&d.file),
-            e(&d.sha256)
-        );
-    }
-    h.push_str("</table>\n");
-    let _ = writeln!(
-        h,
-        "<p>Command line:</p>\n<pre>{}</pre>\n<p>Protocol: {}.</p>\n<p>patternproof {} · report schema {} · seed {}{}</p>",
-        e(&provenance.command_line),
-        provenance
-            .protocol
-            .as_deref()
-            .map_or("none (choices made on the command line)".into(), e),
-        report.tool_version,
-        report.schema,
-        report.settings.seed,
-        provenance
-            .stamp
-            .as_deref()
-            .map_or(String::new(), |t| format!(" · run at {}", e(t)))
-    );
-    h.push_str("</body>\n</html>\n");
-    h
+        h2 id="flip" { "Where the call flips" }
+        ul {
+            @for l in flip_lines(report) {
+                li { (l) }
+            }
+        }
+
+        @for sec in sections {
+            h2 id=(section_id(&sec.id)) { (sec.title) }
+            (sec.html)
+        }
+
+        h2 id="methods" { "Methods paragraph" }
+        p { "Ready to paste into a manuscript; it states every choice the result depends on." }
+        p.methods { (crate::methods::methods_paragraph(report)) }
+
+        h2 id="cautions" { "What this does and does not show" }
+        ul {
+            @for c in &report.cautions {
+                li.caution { (c) }
+            }
+        }
+
+        h2 id="provenance" { "Provenance" }
+        table {
+            tr { th { "input file" } th { "SHA-256" } }
+            @for d in &report.provenance.inputs {
+                tr { td { code { (d.file) } } td { code { (d.sha256) } } }
+            }
+        }
+        p { "Command line:" }
+        pre { (provenance.command_line) }
+        p {
+            "Protocol: "
+            (provenance.protocol.as_deref().unwrap_or("none (choices made on the command line)"))
+            "."
+        }
+        p {
+            "patternproof " (report.tool_version) " · report schema " (report.schema)
+            " · seed " (report.settings.seed)
+            @if let Some(t) = &provenance.stamp {
+                " · run at " (t)
+            }
+        }
+    };
+    page(&format!("patternproof audit of {}", i.points_file), body)
+}
+
+/// An anchor id of letters, digits and `-` only.
+fn section_id(id: &str) -> String {
+    id.chars()
+        .filter(|c| c.is_ascii_alphanumeric() || *c == '-')
+        .collect()
 }
 
 /// Inline SVG must not carry an XML declaration.

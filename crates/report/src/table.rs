@@ -2,7 +2,7 @@
 //! terminal table (rounded, for reading).
 
 use crate::document::AuditReport;
-use crate::numbers::{fixed, opt, p_value, percent, sig};
+use crate::numbers::{fixed, full, opt, p_value, percent, sig};
 use comfy_table::{Cell, CellAlignment, ContentArrangement, Table, presets};
 use patternproof_core::Call;
 use std::io;
@@ -28,10 +28,6 @@ pub const CSV_COLUMNS: [&str; 18] = [
     "sim_q975",
     "note",
 ];
-
-fn full(x: Option<f64>) -> String {
-    x.map(|v| format!("{v}")).unwrap_or_default()
-}
 
 /// Write `verdict.csv`.
 pub fn write_csv<W: io::Write>(report: &AuditReport, out: W) -> io::Result<()> {
@@ -63,15 +59,7 @@ pub fn write_csv<W: io::Write>(report: &AuditReport, out: W) -> io::Result<()> {
     w.flush()
 }
 
-/// A call as printed for people.
-pub fn call_word(c: Option<Call>) -> &'static str {
-    match c {
-        Some(Call::Clustered) => "clustered",
-        Some(Call::Dispersed) => "dispersed",
-        Some(Call::NotSignificant) => "not significant",
-        None => "no test",
-    }
-}
+pub use patternproof_core::call::call_word;
 
 /// A symbol for each call, used beside the word (never instead of it).
 pub fn call_symbol(c: Option<Call>) -> &'static str {

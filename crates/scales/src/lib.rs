@@ -17,9 +17,9 @@
 //! | [`envelope`] | CSR simulations, the maximum absolute deviation test and its global band |
 //! | [`rank_envelope`] | the global rank envelope test with extreme-rank-length ordering (ERL), its p-value and band |
 //! | [`verdict`] | distance bands of clustering / regularity and the sentence across windows |
-//! | [`plot`] | the SVG pictures |
 //! | [`scales`] | the whole run over windows × corrections, planned before it runs |
-//! | [`summary`] | the Markdown summary, the CSV table and the terminal lines |
+//!
+//! `patternproof-report` renders a run (tables, pictures, the page).
 
 pub mod border;
 pub mod envelope;
@@ -27,10 +27,8 @@ pub mod isotropic;
 pub mod k_function;
 pub mod k_window;
 pub mod memory;
-pub mod plot;
 pub mod rank_envelope;
 pub mod scales;
-pub mod summary;
 #[cfg(test)]
 mod test_curves;
 pub mod translation;

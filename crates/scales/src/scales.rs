@@ -7,7 +7,7 @@ use crate::k_window::KWindow;
 use crate::translation;
 use crate::verdict::{Band, bands, sentence};
 use patternproof_core::Xy;
-use patternproof_report::numbers::sig;
+use patternproof_core::numbers::sig;
 use patternproof_window::{Window, WindowKind};
 use serde::Serialize;
 

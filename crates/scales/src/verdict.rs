@@ -7,7 +7,7 @@
 //! 44–80 m only in `bbox`". Distances are grid points: "4–40 m" means every
 //! grid distance from 4 to 40 m.
 
-use patternproof_report::numbers::sig;
+use patternproof_core::numbers::trimmed;
 use serde::Serialize;
 
 /// The direction of a departure.
@@ -73,21 +73,11 @@ pub fn bands(departure: &[i8], grid: &[f64]) -> Vec<Band> {
     out
 }
 
-/// A distance with 3 significant digits and no trailing zeros.
-pub fn distance(x: f64) -> String {
-    let s = sig(x, 3);
-    if s.contains('.') && !s.contains('e') {
-        s.trim_end_matches('0').trim_end_matches('.').to_string()
-    } else {
-        s
-    }
-}
-
 fn range(a: f64, b: f64, unit: &str) -> String {
     if a == b {
-        format!("{} {unit}", distance(a))
+        format!("{} {unit}", trimmed(a, 3))
     } else {
-        format!("{}–{} {unit}", distance(a), distance(b))
+        format!("{}–{} {unit}", trimmed(a, 3), trimmed(b, 3))
     }
 }
 
@@ -154,7 +144,7 @@ pub fn sentence(tested: &[(&str, &[i8])], grid: &[f64], unit: &str) -> String {
         let rmax = grid.last().copied().unwrap_or(0.0);
         format!(
             "no departure from complete spatial randomness beyond the global envelope at any distance up to {} {unit} in any window",
-            distance(rmax)
+            trimmed(rmax, 3)
         )
     } else {
         phrases.join("; ")

@@ -15,15 +15,14 @@
 //! |---|---|
 //! | [`folder_name`] | a safe, unique folder name for each site's report |
 //! | [`pick`] | finds the protocol's window among a site's windows |
-//! | [`render`] | `sites.csv`, `sites.md`, `sites.json` |
-//! | [`forest`] | the site-by-site picture of R and its interval |
-//! | [`page`] | `index.html` of the run |
+//! | [`document`] | the `sites.json` document: counts, notes and one row per site |
+//!
+//! `patternproof-report` renders the run (`sites.csv`, `sites.md`, the
+//! forest picture, the pages and the per-site folders).
 
+pub mod document;
 pub mod folder_name;
-pub mod forest;
-pub mod page;
 pub mod pick;
-pub mod render;
 
 use patternproof_audit::simulation;
 use patternproof_audit::streams::label_hash;
@@ -418,7 +417,7 @@ pub fn run_site_with(
                 "{}/{}: {}",
                 r.window,
                 r.edge,
-                patternproof_report::table::call_word(r.call)
+                patternproof_core::call::call_word(r.call)
             )
         })
         .collect();

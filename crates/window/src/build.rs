@@ -19,6 +19,7 @@ use geo::{
 };
 use patternproof_core::Rectangle;
 use patternproof_core::Xy;
+use patternproof_core::numbers::compact;
 use serde::Serialize;
 
 /// What a window is made from.
@@ -252,7 +253,7 @@ pub fn build_windows(
             if !(d > 0.0 && d.is_finite()) {
                 notes.push(format!(
                     "hull+{} skipped: a buffer must be a positive distance",
-                    short_number(d)
+                    compact(d)
                 ));
                 continue;
             }
@@ -264,12 +265,12 @@ pub fn build_windows(
             if !(area.is_finite() && area > 0.0) {
                 notes.push(format!(
                     "hull+{} skipped: buffering the hull by {d:e} gives no finite area (give a buffer the size of the study area)",
-                    short_number(d)
+                    compact(d)
                 ));
                 continue;
             }
             // Two buffers that round to one label keep their full digits.
-            let mut id = format!("hull+{}", short_number(d));
+            let mut id = format!("hull+{}", compact(d));
             if windows.iter().any(|w: &Window| w.id == id) {
                 id = format!("hull+{d}");
             }
@@ -436,33 +437,6 @@ fn axis_rectangle(shape: &MultiPolygon<f64>) -> Option<Rectangle> {
     })
 }
 
-/// A buffer distance written compactly for an id: three significant
-/// digits, no trailing zeros, scientific below 10⁻⁴ and from 10⁶ on (so
-/// a buffer of 0.0044 km is `hull+0.0044`, not `hull+0`).
-pub fn short_number(x: f64) -> String {
-    let trim = |s: String| {
-        if s.contains('.') {
-            s.trim_end_matches('0').trim_end_matches('.').to_string()
-        } else {
-            s
-        }
-    };
-    let a = x.abs();
-    if x == 0.0 || !x.is_finite() {
-        return format!("{x}");
-    }
-    if !(1e-4..1e6).contains(&a) {
-        // Scientific, three significant digits: 1e100, 2.5e-7.
-        let s = format!("{x:.2e}");
-        let (mantissa, exponent) = s.split_once('e').unwrap_or((&s, "0"));
-        return format!("{}e{exponent}", trim(mantissa.to_string()));
-    }
-    // Three significant digits, at least as many decimals as before for
-    // numbers of 1 and more (12.5, 4.41), more below 1 (0.00441, not 0).
-    let decimals = (2 - a.log10().floor() as i32).clamp(0, 6) as usize;
-    trim(format!("{x:.decimals$}"))
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -482,14 +456,14 @@ mod tests {
     /// outline's arithmetic is skipped with a note, not given area 0.
     #[test]
     fn buffer_ids_stay_distinct_and_huge_buffers_are_skipped() {
-        assert_eq!(short_number(4.4135), "4.41");
-        assert_eq!(short_number(17.66), "17.7");
-        assert_eq!(short_number(176.6), "177");
-        assert_eq!(short_number(0.5), "0.5");
-        assert_eq!(short_number(0.0044135), "0.00441");
-        assert_eq!(short_number(1e100), "1e100");
-        assert_eq!(short_number(2.5e-7), "2.5e-7");
-        assert_eq!(short_number(1234567.0), "1.23e6");
+        assert_eq!(compact(4.4135), "4.41");
+        assert_eq!(compact(17.66), "17.7");
+        assert_eq!(compact(176.6), "177");
+        assert_eq!(compact(0.5), "0.5");
+        assert_eq!(compact(0.0044135), "0.00441");
+        assert_eq!(compact(1e100), "1e100");
+        assert_eq!(compact(2.5e-7), "2.5e-7");
+        assert_eq!(compact(1234567.0), "1.23e6");
         let pts = grid(4, 1.0);
         let options = WindowOptions {
             buffers: vec![

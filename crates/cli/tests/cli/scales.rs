@@ -317,12 +317,16 @@ fn audit_with_scales_adds_the_same_k_audit() {
         },
     )
     .expect("index.html is well-formed XML");
-    // Apostrophes are escaped as &#39; (HTML escaping of every string).
-    assert!(page.contains("<h2 id=\"scales\">Ripley&#39;s K and L across the same windows</h2>"));
+    // The section's heading and verdict sentence, HTML-escaped (maud
+    // escapes &, <, > and ", which is all that text content needs).
+    assert!(page.contains("<h2 id=\"scales\">Ripley's K and L across the same windows</h2>"));
     let sentence = j["verdicts"][0]["sentence"]
         .as_str()
         .unwrap()
-        .replace('\'', "&#39;");
+        .replace('&', "&amp;")
+        .replace('<', "&lt;")
+        .replace('>', "&gt;")
+        .replace('"', "&quot;");
     assert!(page.contains(&sentence), "{sentence}");
     assert_eq!(
         page.matches("<svg").count(),

@@ -2,17 +2,23 @@
 //! the reference surface as a GeoTIFF and `index.html`.
 //! `docs/density-schema.md` documents `density.json`.
 
-use crate::{Analysis, Surface, geotiff, plot};
-use patternproof_report::OutputFolder;
-use patternproof_report::html::escape;
-use patternproof_report::numbers::sig;
+pub mod geotiff;
+pub mod plot;
+
+use crate::OutputFolder;
+use crate::html::escape;
+use crate::numbers::sig;
+use crate::page::page;
+use crate::run::{RenderError, RunContext};
+use maud::{PreEscaped, html};
+use patternproof_density::{Analysis, HOTSPOT_OVERLAP, Surface, cautions};
 use serde_json::{Value, json};
-use std::fmt::Write as _;
 
 /// Schema identifier of `density.json`.
 pub const SCHEMA: &str = "patternproof.density/1";
 
-/// What the outputs say about the input.
+/// What the outputs say about the input (the run itself is in
+/// [`RunContext`]).
 #[derive(Debug, Clone, Default)]
 pub struct RunInfo {
     /// The point file as given.
@@ -29,20 +35,8 @@ pub struct RunInfo {
     pub window_source: String,
     /// Window area (unit²).
     pub window_area: f64,
-    /// The command line.
-    pub command_line: String,
     /// Warnings from loading.
     pub warnings: Vec<String>,
-}
-
-/// What a density surface does and does not show; read with every report.
-pub fn cautions() -> Vec<String> {
-    vec![
-        "A kernel density surface is a smoothed picture of where the recorded points are, for one kernel and one bandwidth. It does not show where events can happen, does not correct for where or how hard anyone looked, and carries no measure of its own uncertainty; isopleth areas are a property of the smoothing as much as of the data.".into(),
-        "The surfaces, the isopleth polygons and the GeoTIFF are built from the point locations and can reveal them, most of all with small bandwidths. Point locations of people are personal data: do not share these files without the protection that the data's terms require.".into(),
-        "Bandwidth selectors assume independent points. Successive fixes of a track are not independent, and likelihood cross-validation in particular tends to choose small bandwidths for them.".into(),
-        "With edge handling `none` part of each kernel's mass falls outside the window (reported as mass_outside); isopleth shares are shares of the mass inside the window.".into(),
-    ]
 }
 
 fn surface_json(s: &Surface, cell_area: f64) -> Value {
@@ -108,7 +102,7 @@ pub fn document(a: &Analysis, info: &RunInfo) -> Value {
             "levels": a.config.levels.iter().map(|l| l * 100.0).collect::<Vec<_>>(),
             "reference": format!("{}:{}:{}", a.config.reference.0.name(), a.config.reference.1.label(), a.config.reference.2.name()),
             "patch_connectivity": 8,
-            "hotspot_overlap_threshold": crate::HOTSPOT_OVERLAP,
+            "hotspot_overlap_threshold": patternproof_density::HOTSPOT_OVERLAP,
         },
         "kernels": a.config.kernels.iter().map(|k| json!({
             "kernel": k.name(),
@@ -162,7 +156,11 @@ pub fn isopleths_geojson(a: &Analysis, info: &RunInfo) -> Value {
         .chain(std::iter::once((&a.reference, true)));
     for (s, is_ref) in all {
         for l in &s.levels {
-            let mp = crate::isopleth::outline(&a.grid, &s.estimate.values, l.region.threshold);
+            let mp = patternproof_density::isopleth::outline(
+                &a.grid,
+                &s.estimate.values,
+                l.region.threshold,
+            );
             let polys: Vec<Value> =
                 mp.0.iter()
                     .map(|p| {
@@ -227,136 +225,133 @@ fn strip_prolog(svg: &str) -> &str {
 }
 
 /// The `index.html` page.
-pub fn index_html(a: &Analysis, info: &RunInfo, pictures: &[(&str, &str, &str)]) -> String {
-    let unit = escape(&info.unit);
-    let mut h = String::new();
-    h.push_str("<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\"/><title>patternproof density</title><style>");
-    h.push_str("body{font-family:sans-serif;max-width:1100px;margin:2em auto;padding:0 1em;color:#111;line-height:1.45}h2{border-bottom:1px solid #999;margin-top:2em}.verdict{font-size:1.1em;font-weight:bold;padding:.6em;border-left:6px solid #0072b2;background:#f2f2f2}table{border-collapse:collapse;font-size:.85em}th,td{border:1px solid #bbb;padding:.2em .45em}td.num{text-align:right;font-variant-numeric:tabular-nums}th{background:#e8e8e8}figure svg{max-width:100%;height:auto;border:1px solid #ddd}.caution{color:#5a3a00}code,pre{font-family:monospace}pre{white-space:pre-wrap;word-break:break-all;background:#f2f2f2;padding:.5em}");
-    h.push_str("</style></head><body>\n");
-    let _ = writeln!(h, "<h1>Density audit: {}</h1>", escape(&info.points_file));
-    let _ = writeln!(
-        h,
-        "<p>{} points used of {} read; window: {} ({} {unit}²); raster {} × {} cells of {} {unit}.</p>",
-        a.points.len(),
-        info.n_read,
-        escape(&info.window_source),
-        sig(info.window_area, 4),
-        a.grid.nx,
-        a.grid.ny,
-        sig(a.grid.cell, 4)
-    );
-    h.push_str("<section id=\"density\"><h2>Density</h2>\n");
-    let _ = writeln!(
-        h,
-        "<p class=\"verdict\">{}</p>",
-        escape(&a.verdict.sentence)
-    );
-    h.push_str("<h3>What a density surface shows, and what it does not</h3><ul>");
-    for c in cautions() {
-        let _ = write!(h, "<li class=\"caution\">{}</li>", escape(&c));
-    }
-    h.push_str("</ul>\n");
+pub fn index_html(
+    a: &Analysis,
+    info: &RunInfo,
+    run: &RunContext,
+    pictures: &[(&str, &str, &str)],
+) -> String {
+    let unit = info.unit.as_str();
     let mut warnings = info.warnings.clone();
     warnings.extend(a.warnings.iter().cloned());
-    if !warnings.is_empty() {
-        h.push_str("<h3>Warnings</h3><ul>");
-        for w in &warnings {
-            let _ = write!(h, "<li>{}</li>", escape(w));
+    let body = html! {
+        h1 { "Density audit: " (info.points_file) }
+        p {
+            (a.points.len()) " points used of " (info.n_read) " read; window: "
+            (info.window_source) " (" (sig(info.window_area, 4)) " " (unit) "²); raster "
+            (a.grid.nx) " × " (a.grid.ny) " cells of " (sig(a.grid.cell, 4)) " " (unit) "."
         }
-        h.push_str("</ul>\n");
-    }
-    h.push_str("<h3>Bandwidths</h3>\n");
-    let _ = writeln!(
-        h,
-        "<p>Scott's rule: σ = sqrt((s<sub>x</sub>² + s<sub>y</sub>²)/2) = {} {unit}, n = {}, h = σ·n<sup>−1/6</sup> = {} {unit} (a Gaussian standard deviation; compact kernels get the radius with the same canonical smoothing, Marron &amp; Nolan 1988).</p>",
-        sig(a.scott.sigma, 4),
-        a.scott.n,
-        sig(a.scott.bandwidth, 4)
-    );
-    if !a.lcv.is_empty() {
-        h.push_str("<p>Likelihood cross-validation over 41 bandwidths h<sub>S</sub>·2<sup>k/8−3</sup>, k = 0…40:</p><table><tr><th>kernel</th><th>chosen</th><th>method</th><th>at grid edge</th></tr>");
-        for l in &a.lcv {
-            let _ = write!(
-                h,
-                "<tr><td>{}</td><td class=\"num\">{}</td><td>{}</td><td>{}</td></tr>",
-                l.kernel.name(),
-                sig(l.chosen, 4),
-                l.method,
-                if l.at_grid_edge { "yes" } else { "no" }
-            );
+        section id="density" {
+            h2 { "Density" }
+            p.verdict { (a.verdict.sentence) }
+            h3 { "What a density surface shows, and what it does not" }
+            ul {
+                @for c in cautions() {
+                    li.caution { (c) }
+                }
+            }
+            @if !warnings.is_empty() {
+                h3 { "Warnings" }
+                ul {
+                    @for w in &warnings {
+                        li { (w) }
+                    }
+                }
+            }
+            h3 { "Bandwidths" }
+            p {
+                "Scott's rule: σ = sqrt((s" sub { "x" } "² + s" sub { "y" } "²)/2) = "
+                (sig(a.scott.sigma, 4)) " " (unit) ", n = " (a.scott.n) ", h = σ·n" sup { "−1/6" }
+                " = " (sig(a.scott.bandwidth, 4)) " " (unit)
+                " (a Gaussian standard deviation; compact kernels get the radius with the same canonical smoothing, Marron & Nolan 1988)."
+            }
+            @if !a.lcv.is_empty() {
+                p {
+                    "Likelihood cross-validation over 41 bandwidths h" sub { "S" } "·2" sup { "k/8−3" }
+                    ", k = 0…40:"
+                }
+                table {
+                    tr { th { "kernel" } th { "chosen" } th { "method" } th { "at grid edge" } }
+                    @for l in &a.lcv {
+                        tr {
+                            td { (l.kernel.name()) }
+                            td.num { (sig(l.chosen, 4)) }
+                            td { (l.method) }
+                            td { (if l.at_grid_edge { "yes" } else { "no" }) }
+                        }
+                    }
+                }
+            }
+            h3 { "Surfaces" }
+            table {
+                tr {
+                    th { "kernel" } th { "bandwidth" } th { "h" } th { "σ-equivalent" } th { "edge" }
+                    th { "mass outside" }
+                    @for l in &a.config.levels {
+                        @let p = sig(l * 100.0, 3);
+                        th { (p) " % area (" (unit) "²)" }
+                        th { (p) " % patches" }
+                        th { (p) " % overlap" }
+                    }
+                    th { "hotspot overlap" }
+                }
+                @for s in &a.surfaces {
+                    tr {
+                        td { (s.kernel.name()) }
+                        td { (s.spec.label()) }
+                        td.num { (sig(s.bandwidth, 4)) }
+                        td.num { (sig(s.gaussian_equivalent, 4)) }
+                        td { (s.edge.name()) }
+                        td.num { (s.estimate.mass_outside.map_or("—".to_string(), |m| sig(m, 3))) }
+                        @for l in &s.levels {
+                            td.num { (sig(l.region.area, 4)) }
+                            td.num { (l.patches) }
+                            td.num { (sig(l.overlap_with_reference, 3)) }
+                        }
+                        td.num { (sig(s.hotspot_overlap, 3)) }
+                    }
+                }
+            }
+            p {
+                "Reference surface: " (a.reference.label())
+                " (overlaps are Jaccard indices of the regions' cells with its regions; the main hotspot is the patch of the lowest level that holds the peak, and it stays in place when its overlap with the reference's is at least "
+                (HOTSPOT_OVERLAP.to_string()) ")."
+            }
+            @for (title, svg, caption) in pictures {
+                figure {
+                    figcaption { strong { (title) } ": " (caption) }
+                    (PreEscaped(strip_prolog(svg)))
+                }
+            }
+            h3 { "Files" }
+            ul {
+                li { code { "density.json" } ": every number on this page (docs/density-schema.md)" }
+                li { code { "isopleths.geojson" } ": isopleth polygons of every surface" }
+                li { code { "reference.tif" } ": the reference surface, GeoTIFF, density per unit²" }
+                li { code { "surfaces.svg" } ", " code { "areas.svg" } ": the pictures" }
+            }
+            h3 { "Command" }
+            pre { (run.command_line) }
         }
-        h.push_str("</table>\n");
-    }
-    h.push_str("<h3>Surfaces</h3><table><tr><th>kernel</th><th>bandwidth</th><th>h</th><th>σ-equivalent</th><th>edge</th><th>mass outside</th>");
-    for l in &a.config.levels {
-        let p = sig(l * 100.0, 3);
-        let _ = write!(
-            h,
-            "<th>{p} % area ({unit}²)</th><th>{p} % patches</th><th>{p} % overlap</th>"
-        );
-    }
-    h.push_str("<th>hotspot overlap</th></tr>\n");
-    for s in a.surfaces.iter() {
-        let _ = write!(
-            h,
-            "<tr><td>{}</td><td>{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td>{}</td><td class=\"num\">{}</td>",
-            s.kernel.name(),
-            escape(&s.spec.label()),
-            sig(s.bandwidth, 4),
-            sig(s.gaussian_equivalent, 4),
-            s.edge.name(),
-            s.estimate
-                .mass_outside
-                .map_or("—".to_string(), |m| sig(m, 3))
-        );
-        for l in &s.levels {
-            let _ = write!(
-                h,
-                "<td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td>",
-                sig(l.region.area, 4),
-                l.patches,
-                sig(l.overlap_with_reference, 3)
-            );
-        }
-        let _ = writeln!(
-            h,
-            "<td class=\"num\">{}</td></tr>",
-            sig(s.hotspot_overlap, 3)
-        );
-    }
-    h.push_str("</table>\n");
-    let _ = writeln!(
-        h,
-        "<p>Reference surface: {} (overlaps are Jaccard indices of the regions' cells with its regions; the main hotspot is the patch of the lowest level that holds the peak, and it stays in place when its overlap with the reference's is at least {}).</p>",
-        escape(&a.reference.label()),
-        crate::HOTSPOT_OVERLAP
-    );
-    for (title, svg, caption) in pictures {
-        let _ = writeln!(
-            h,
-            "<figure><figcaption><strong>{}</strong>: {}</figcaption>{}</figure>",
-            escape(title),
-            escape(caption),
-            strip_prolog(svg)
-        );
-    }
-    h.push_str("<h3>Files</h3><ul><li><code>density.json</code>: every number on this page (docs/density-schema.md)</li><li><code>isopleths.geojson</code>: isopleth polygons of every surface</li><li><code>reference.tif</code>: the reference surface, GeoTIFF, density per unit²</li><li><code>surfaces.svg</code>, <code>areas.svg</code>: the pictures</li></ul>\n");
-    let _ = writeln!(
-        h,
-        "<h3>Command</h3><pre>{}</pre>",
-        escape(&info.command_line)
-    );
-    h.push_str("</section></body></html>\n");
-    h
+    };
+    page("patternproof density", body)
 }
 
 /// Every output file.
-pub fn folder(a: &Analysis, info: &RunInfo) -> Result<OutputFolder, String> {
+pub fn folder(a: &Analysis, info: &RunInfo, run: &RunContext) -> Result<OutputFolder, RenderError> {
     let mut f = OutputFolder::default();
-    let mut doc = serde_json::to_string_pretty(&document(a, info)).map_err(|e| e.to_string())?;
+    let mut doc =
+        serde_json::to_string_pretty(&document(a, info)).map_err(|source| RenderError::Json {
+            file: "density.json",
+            source,
+        })?;
     doc.push('\n');
     f.add("density.json", doc.into_bytes());
-    let mut gj = serde_json::to_string(&isopleths_geojson(a, info)).map_err(|e| e.to_string())?;
+    let mut gj =
+        serde_json::to_string(&isopleths_geojson(a, info)).map_err(|source| RenderError::Json {
+            file: "isopleths.geojson",
+            source,
+        })?;
     gj.push('\n');
     f.add("isopleths.geojson", gj.into_bytes());
     let citation = format!(
@@ -393,7 +388,7 @@ pub fn folder(a: &Analysis, info: &RunInfo) -> Result<OutputFolder, String> {
     if let Some(c) = &chart {
         pictures.push(("Isopleth area against bandwidth", c.as_str(), "area of each isopleth level against the Gaussian-equivalent bandwidth, one line per kernel"));
     }
-    let html = index_html(a, info, &pictures);
+    let html = index_html(a, info, run, &pictures);
     f.add("surfaces.svg", multiples.clone().into_bytes());
     if let Some(c) = chart {
         f.add("areas.svg", c.into_bytes());

@@ -1,19 +1,19 @@
 //! Pictures: small multiples of the surfaces (kernel × bandwidth) with the
 //! isopleth outlines, and the isopleth areas against bandwidth per kernel.
 //!
-//! Cells are coloured by their mass rank ([`crate::isopleth::mass_rank`]:
+//! Cells are coloured by their mass rank ([`patternproof_density::isopleth::mass_rank`]:
 //! the share of the mass in cells at least as dense), on a viridis-like
 //! ramp that runs from dark (the densest cells) to light and stays ordered
 //! in grey print; cells past 99 % are left pale grey and cells outside the
 //! window white. No point is drawn: the maps show where the surface is high,
 //! not where the locations are.
 
-use crate::isopleth::{mass_rank, outline};
-use crate::{Analysis, Surface};
-use patternproof_report::canvas;
-use patternproof_report::html::escape;
-use patternproof_report::numbers::sig;
-use patternproof_report::palette::ink;
+use crate::canvas;
+use crate::html::escape;
+use crate::numbers::sig;
+use crate::palette::ink;
+use patternproof_density::isopleth::{mass_rank, outline};
+use patternproof_density::{Analysis, Surface};
 use plotters::prelude::*;
 use rayon::prelude::*;
 use std::fmt::Write as _;
@@ -133,7 +133,7 @@ pub fn small_multiples_svg(a: &Analysis, unit: &str) -> String {
         .edges
         .first()
         .copied()
-        .unwrap_or(crate::edge::DensityEdge::None);
+        .unwrap_or(patternproof_density::edge::DensityEdge::None);
     let kernels = &a.config.kernels;
     let specs = &a.config.bandwidths;
     let g = &a.grid;
@@ -171,7 +171,8 @@ pub fn small_multiples_svg(a: &Analysis, unit: &str) -> String {
     // Panels are drawn in parallel (each one's PNG and outlines are the
     // slow part) and written in the sequential order, so the bytes do not
     // depend on the thread count.
-    let rows: Vec<(usize, &crate::kernels::Kernel)> = kernels.iter().enumerate().collect();
+    let rows: Vec<(usize, &patternproof_density::kernels::Kernel)> =
+        kernels.iter().enumerate().collect();
     let drawn: Vec<String> = rows
         .par_iter()
         .map(|&(r, kernel)| {
@@ -340,11 +341,11 @@ pub fn area_chart_svg(a: &Analysis, unit: &str) -> Option<String> {
 #[allow(clippy::unwrap_used)] // a failed unwrap is a failed test
 mod tests {
     use super::*;
-    use crate::bandwidth::BandwidthSpec;
-    use crate::edge::DensityEdge;
-    use crate::kernels::Kernel;
-    use crate::{Config, analyse};
     use approx::abs_diff_eq;
+    use patternproof_density::bandwidth::BandwidthSpec;
+    use patternproof_density::edge::DensityEdge;
+    use patternproof_density::kernels::Kernel;
+    use patternproof_density::{Config, analyse};
 
     /// A tight cluster in one corner of a 100 × 100 square and a sparse
     /// background, at cell side `cell`.

@@ -7,15 +7,14 @@
 //! * `corrections.svg` — small multiples, one panel per correction, with
 //!   every window's L̂ − r: how far the choice of window moves the curve.
 //!
-//! Colours and dashes come from `patternproof_report::palette` (Okabe–Ito,
+//! Colours and dashes come from [`crate::palette`] (Okabe–Ito,
 //! each colour with its own dash pattern); no hot/cold colour convention.
 
-use crate::k_function::Correction;
-use crate::scales::{ScalesRun, WindowScales};
-use crate::verdict::distance;
-use patternproof_report::canvas::{self, Canvas};
-use patternproof_report::numbers::p_value;
-use patternproof_report::palette::{Ink, ink};
+use crate::canvas::{self, Canvas};
+use crate::numbers::{p_value, trimmed};
+use crate::palette::{Ink, ink};
+use patternproof_scales::k_function::Correction;
+use patternproof_scales::scales::{ScalesRun, WindowScales};
 use plotters::coord::types::RangedCoordf64;
 use plotters::prelude::*;
 
@@ -95,8 +94,8 @@ fn l_chart<'a, 'b>(
         .disable_mesh()
         .x_desc(format!("distance r ({})", run.unit))
         .y_desc(format!("L(r) − r ({})", run.unit))
-        .x_label_formatter(&|v| distance(*v))
-        .y_label_formatter(&|v| distance(*v))
+        .x_label_formatter(&|v| trimmed(*v, 3))
+        .y_label_formatter(&|v| trimmed(*v, 3))
         .draw()
         .ok()?;
     Some(chart)

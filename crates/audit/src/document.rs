@@ -5,12 +5,12 @@
 //! `docs/report-schema.md`. No clock
 //! time is stored, so the same inputs and seed give the same bytes.
 
-use patternproof_audit::Audit;
-use patternproof_audit::curves::Sensitivity;
-use patternproof_audit::flip::FlipEntry;
-use patternproof_audit::robustness::Summary;
-use patternproof_audit::sweep::{ResultRow, Skipped};
-use patternproof_audit::window::Window;
+use crate::Audit;
+use crate::curves::Sensitivity;
+use crate::flip::FlipEntry;
+use crate::robustness::Summary;
+use crate::sweep::{ResultRow, Skipped};
+use crate::window::Window;
 use serde::Serialize;
 use std::io;
 

@@ -1,13 +1,16 @@
 //! Plain-text outputs: the Markdown summary (`scales.md`), the long table
 //! of every curve (`scales.csv`) and the lines printed on the terminal.
 
-use crate::scales::ScalesRun;
-use crate::verdict::distance;
-use patternproof_report::numbers::{p_value, sig};
+use crate::numbers::{full, p_value, sig, trimmed};
+use crate::page::trusted_svg;
+use maud::{Markup, html};
+use patternproof_scales::ScalesRun;
 use std::fmt::Write;
 
-fn opt(v: Option<f64>) -> String {
-    v.map_or(String::new(), |x| format!("{x}"))
+/// A distance in the tables and sentences: three significant digits, no
+/// trailing zeros.
+fn distance(x: f64) -> String {
+    trimmed(x, 3)
 }
 
 /// `scales.csv`: one row per window × correction × distance, with the
@@ -37,25 +40,26 @@ pub fn csv(run: &ScalesRun) -> String {
         for c in &win.curves {
             let test = win.tests.iter().find(|t| t.correction == c.correction);
             for (k, r) in run.r.iter().enumerate() {
-                let t = |f: fn(&crate::envelope::EnvelopeTest) -> &Vec<Option<f64>>| {
-                    test.map_or(String::new(), |t| opt(f(t)[k]))
-                };
+                let t =
+                    |f: fn(&patternproof_scales::envelope::EnvelopeTest) -> &Vec<Option<f64>>| {
+                        test.map_or(String::new(), |t| full(f(t)[k]))
+                    };
                 let rank = test.and_then(|t| t.rank.as_ref());
                 let _ = w.write_record([
                     win.id.clone(),
                     c.correction.as_str().to_string(),
                     format!("{r}"),
-                    opt(c.k[k]),
-                    opt(c.l[k]),
-                    opt(c.l_minus_r[k]),
+                    full(c.k[k]),
+                    full(c.l[k]),
+                    full(c.l_minus_r[k]),
                     t(|t| &t.centre),
                     t(|t| &t.lo),
                     t(|t| &t.hi),
                     t(|t| &t.pointwise_lo),
                     t(|t| &t.pointwise_hi),
                     test.map_or(String::new(), |t| t.departure[k].to_string()),
-                    rank.map_or(String::new(), |e| opt(e.lo[k])),
-                    rank.map_or(String::new(), |e| opt(e.hi[k])),
+                    rank.map_or(String::new(), |e| full(e.lo[k])),
+                    rank.map_or(String::new(), |e| full(e.hi[k])),
                     rank.map_or(String::new(), |e| e.departure[k].to_string()),
                 ]);
             }
@@ -116,7 +120,7 @@ pub fn table_rows(run: &ScalesRun) -> Vec<[String; 7]> {
 
 /// `scales.md`.
 pub fn markdown(run: &ScalesRun) -> String {
-    use patternproof_report::markdown_escape::{code, prose, text};
+    use crate::markdown_escape::{code, prose, text};
     let mut s = String::from("# Multi-scale audit: L(r) − r across windows\n\n");
     let _ = writeln!(
         s,
@@ -169,77 +173,71 @@ pub fn markdown(run: &ScalesRun) -> String {
 
 /// The section of the audit's `index.html` (`audit --scales`): the
 /// verdict sentences, the L(r) − r picture, the per-window test table and
-/// the cautions. Every user string is escaped.
-pub fn html_section(run: &ScalesRun, svg: Option<&str>) -> String {
-    use patternproof_report::html::{escape as e, strip_xml_declaration};
-    let mut h = String::new();
-    let u = e(&run.unit);
-    let _ = writeln!(
-        h,
-        "<p>Does a clustering claim at a given distance survive the choice of study area? Ripley's K̂(r) = |W|/(n(n−1))·Σ w<sub>ij</sub>·1(d<sub>ij</sub> ≤ r), shown as L(r) − r = √(K̂/π) − r, in every window with the {} correction(s), up to r = {} {u} ({}) on {} distances; {} CSR simulations per window (seed {}) give a global envelope and the maximum absolute deviation test (Diggle 2003) at α = {}.</p>",
-        run.corrections
-            .iter()
-            .map(|c| c.as_str())
-            .collect::<Vec<_>>()
-            .join(", "),
-        distance(run.rmax),
-        e(&run.rmax_rule),
-        run.r.len(),
-        run.sims,
-        run.seed,
-        run.alpha
-    );
-    h.push_str("<ul>\n");
-    for v in &run.verdicts {
-        let _ = writeln!(
-            h,
-            "<li><strong>{} correction:</strong> {}.</li>",
-            v.correction.as_str(),
-            e(&v.sentence)
-        );
-    }
-    if run.verdicts.is_empty() {
-        h.push_str("<li>No envelope test was run (no simulations).</li>\n");
-    }
-    h.push_str("</ul>\n");
-    if let Some(svg) = svg {
-        let _ = writeln!(
-            h,
-            "<figure>\n{}\n<figcaption>L(r) − r in each window with the global envelope (the test over all distances together) and, lighter, the pointwise envelope (orientation only, not a test). Above the band: clustering at that distance; below: regularity.</figcaption>\n</figure>",
-            strip_xml_declaration(svg)
-        );
-    }
-    h.push_str("<table>\n<tr><th>window</th><th>n</th><th>correction</th><th>MAD T</th><th>MAD p</th><th>ERL p</th><th>bands outside the MAD envelope</th></tr>\n");
-    for r in table_rows(run) {
-        let _ = writeln!(
-            h,
-            "<tr><td><code>{}</code></td><td class=\"num\">{}</td><td>{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td>{}</td></tr>",
-            e(&r[0]),
-            e(&r[1]),
-            e(&r[2]),
-            e(&r[3]),
-            e(&r[4]),
-            e(&r[5]),
-            e(&r[6])
-        );
-    }
-    h.push_str("</table>\n");
-    if !run.skipped.is_empty() {
-        h.push_str("<p>Not analysed:</p>\n<ul>\n");
-        for k in &run.skipped {
-            let _ = writeln!(
-                h,
-                "<li><code>{}</code>: {}</li>",
-                e(&k.window),
-                e(&k.reason)
-            );
+/// the cautions. Every user string is escaped (maud).
+pub fn html_section(run: &ScalesRun, svg: Option<&str>) -> Markup {
+    let u = run.unit.as_str();
+    let corrections = run
+        .corrections
+        .iter()
+        .map(|c| c.as_str())
+        .collect::<Vec<_>>()
+        .join(", ");
+    html! {
+        p {
+            "Does a clustering claim at a given distance survive the choice of study area? Ripley's K̂(r) = |W|/(n(n−1))·Σ w" sub { "ij" } "·1(d" sub { "ij" }
+            " ≤ r), shown as L(r) − r = √(K̂/π) − r, in every window with the " (corrections)
+            " correction(s), up to r = " (distance(run.rmax)) " " (u) " (" (run.rmax_rule) ") on "
+            (run.r.len()) " distances; " (run.sims) " CSR simulations per window (seed " (run.seed)
+            ") give a global envelope and the maximum absolute deviation test (Diggle 2003) at α = "
+            (run.alpha.to_string()) "."
         }
-        h.push_str("</ul>\n");
+        ul {
+            @for v in &run.verdicts {
+                li { strong { (v.correction.as_str()) " correction:" } " " (v.sentence) "." }
+            }
+            @if run.verdicts.is_empty() {
+                li { "No envelope test was run (no simulations)." }
+            }
+        }
+        @if let Some(svg) = svg {
+            figure {
+                (trusted_svg(svg))
+                figcaption { "L(r) − r in each window with the global envelope (the test over all distances together) and, lighter, the pointwise envelope (orientation only, not a test). Above the band: clustering at that distance; below: regularity." }
+            }
+        }
+        table {
+            tr {
+                th { "window" } th { "n" } th { "correction" } th { "MAD T" } th { "MAD p" }
+                th { "ERL p" } th { "bands outside the MAD envelope" }
+            }
+            @for r in table_rows(run) {
+                tr {
+                    td { code { (r[0]) } }
+                    td.num { (r[1]) }
+                    td { (r[2]) }
+                    td.num { (r[3]) }
+                    td.num { (r[4]) }
+                    td.num { (r[5]) }
+                    td { (r[6]) }
+                }
+            }
+        }
+        @if !run.skipped.is_empty() {
+            p { "Not analysed:" }
+            ul {
+                @for k in &run.skipped {
+                    li { code { (k.window) } ": " (k.reason) }
+                }
+            }
+        }
+        ul {
+            @for c in &run.cautions {
+                li.caution { (c) }
+            }
+        }
+        p {
+            "Every curve is in " code { "scales.json" } " and " code { "scales.csv" }
+            "; the corrections side by side in " code { "corrections.svg" } "."
+        }
     }
-    h.push_str("<ul>\n");
-    for c in &run.cautions {
-        let _ = writeln!(h, "<li class=\"caution\">{}</li>", e(c));
-    }
-    h.push_str("</ul>\n<p>Every curve is in <code>scales.json</code> and <code>scales.csv</code>; the corrections side by side in <code>corrections.svg</code>.</p>\n");
-    h
 }

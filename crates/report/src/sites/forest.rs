@@ -1,15 +1,15 @@
 //! `sites.svg`: every site's R with its 95 % interval on one common axis,
 //! window-sensitive sites marked, sites without a test listed.
 
-use crate::SiteRun;
+use crate::canvas;
+use crate::palette::INKS;
 use patternproof_core::Call;
-use patternproof_report::canvas;
-use patternproof_report::palette::INKS;
+use patternproof_sites::SiteRun;
 use plotters::prelude::*;
 
 /// Render the picture; `None` when no site was tested.
 pub fn forest_svg(runs: &[SiteRun]) -> Option<String> {
-    let tested: Vec<&crate::SiteRow> = runs
+    let tested: Vec<&patternproof_sites::SiteRow> = runs
         .iter()
         .map(|r| &r.row)
         .filter(|r| r.ratio.is_some())

@@ -2,11 +2,11 @@
 //! intervals, the readings tried, the windows (with points) and the
 //! verdict line.
 
-use crate::Recheck;
-use crate::explain::Kind;
-use crate::interval::{Interval, number};
-use crate::reported::Quantity;
 use comfy_table::{Cell, CellAlignment, ContentArrangement, Table, presets};
+use patternproof_recheck::Recheck;
+use patternproof_recheck::explain::Kind;
+use patternproof_recheck::interval::{Interval, number};
+use patternproof_recheck::reported::Quantity;
 
 fn table(width: Option<u16>) -> Table {
     let mut t = Table::new();
