@@ -5,7 +5,7 @@ use crate::fail::Failure;
 use crate::interrupt;
 use crate::window_args::WindowArgs;
 use clap::{Args, Parser, Subcommand, ValueEnum};
-use patternproof_io::CoordChoice;
+use patternproof::options::CoordChoice;
 use patternproof_report::{FolderError, OutputFolder, WriteOptions, write_folder};
 use std::path::PathBuf;
 

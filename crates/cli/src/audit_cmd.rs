@@ -5,16 +5,16 @@ use crate::budget;
 use crate::fail::Failure;
 use crate::progress::Progress;
 use crate::scales_cmd;
-use patternproof_audit::simulation;
-use patternproof_audit::window::WindowOptions;
-use patternproof_audit::{AuditOptions, BufferRule, Edge};
-use patternproof_io::magnitude::{MAX_AREA, MIN_AREA};
-use patternproof_io::{Dataset, LoadOptions};
+use patternproof::Dataset;
+use patternproof::cost::audit as simulation;
+use patternproof::options::{
+    AuditOptions, BufferRule, Edge, GpkgChoice, LoadOptions, MAX_AREA, MIN_AREA, ScalesOptions,
+    WindowOptions, parse_filter,
+};
 use patternproof_report::html;
 use patternproof_report::{
     AuditReport, OutputFolder, Plane, RenderChoices, RunContext, audit_folder, table,
 };
-use patternproof_scales::ScalesOptions;
 
 /// Run the command.
 pub fn run(a: &AuditArgs) -> Result<(), Failure> {
@@ -206,13 +206,11 @@ pub fn gpkg_choice(
     layer: Option<String>,
     boundary_layer: Option<String>,
     filter: Option<&str>,
-) -> Result<patternproof_io::GpkgChoice, Failure> {
-    Ok(patternproof_io::GpkgChoice {
+) -> Result<GpkgChoice, Failure> {
+    Ok(GpkgChoice {
         layer,
         boundary_layer,
-        filter: filter
-            .map(patternproof_io::geopackage::parse_filter)
-            .transpose()?,
+        filter: filter.map(parse_filter).transpose()?,
     })
 }
 

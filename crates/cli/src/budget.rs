@@ -5,8 +5,8 @@
 //! never finished. So every command that simulates first estimates:
 //!
 //! - **memory**: the run's estimate (from the library's own accounting of
-//!   what it holds, see `patternproof_audit::simulation::run_bytes` and
-//!   `patternproof_scales::memory`) must fit in the memory available now:
+//!   what it holds, see `patternproof::cost::audit::run_bytes` and
+//!   `patternproof::cost::scales`) must fit in the memory available now:
 //!   `MemAvailable` of `/proc/meminfo`, or the cgroup limit when that is
 //!   lower; where neither can be read, [`ASSUMED_BYTES`] is assumed and the
 //!   message says so. Otherwise the run stops (exit 2) with the estimate,

@@ -4,10 +4,10 @@
 
 use crate::fail::Failure;
 use clap::Args;
-use patternproof_density::Config;
-use patternproof_density::bandwidth::{BandwidthSpec, FIXED_RANGE, MULTIPLE_RANGE};
-use patternproof_density::edge::DensityEdge;
-use patternproof_density::kernels::{self, Kernel};
+use patternproof::options::{
+    ALL_KERNELS, BandwidthSpec, DensityConfig as Config, DensityEdge, FIXED_RANGE, Kernel,
+    MULTIPLE_RANGE,
+};
 use patternproof_report::RunContext;
 use patternproof_report::density::RunInfo;
 use patternproof_report::html::shell_quote;
@@ -85,7 +85,7 @@ fn parse_config(a: &DensityArgs, unit: &str) -> Result<Config, Failure> {
         }
     }
     if ks.is_empty() {
-        ks = kernels::ALL.to_vec();
+        ks = ALL_KERNELS.to_vec();
     }
     let mut bs = Vec::new();
     for b in &a.bandwidths {

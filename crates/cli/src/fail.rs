@@ -45,8 +45,8 @@ impl fmt::Display for Failure {
 
 /// Every kind of input error is a problem with the user's files or
 /// options: exit 2, with the file, the place and the hint the reader wrote.
-impl From<patternproof_io::InputError> for Failure {
-    fn from(e: patternproof_io::InputError) -> Self {
+impl From<patternproof::InputError> for Failure {
+    fn from(e: patternproof::InputError) -> Self {
         Failure::Input(e.to_string())
     }
 }

@@ -4,8 +4,7 @@
 use crate::args::count;
 use crate::fail::Failure;
 use clap::{Args, Subcommand};
-use patternproof_audit::Edge;
-use patternproof_protocol::{Adjust, Check, Protocol, SCHEMA, WindowRule};
+use patternproof::options::{Adjust, Check, Edge, PROTOCOL_SCHEMA as SCHEMA, Protocol, WindowRule};
 use std::path::{Path, PathBuf};
 
 /// `patternproof protocol`.

@@ -7,9 +7,9 @@
 use crate::args::CoordsArg;
 use crate::fail::Failure;
 use clap::Args;
-use patternproof_io::{CoordChoice, LoadOptions};
-use patternproof_recheck::Figures;
-use patternproof_recheck::reported::{Problem, Quantity, parse, parse_count};
+use patternproof::options::{
+    CoordChoice, Figures, LoadOptions, Problem, Quantity, parse_count, parse_figure as parse,
+};
 use std::path::PathBuf;
 
 /// `patternproof recheck`.

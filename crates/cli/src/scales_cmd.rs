@@ -12,8 +12,9 @@ use crate::fail::Failure;
 use crate::progress::Progress;
 use crate::window_args::WindowArgs;
 use clap::Args;
+use patternproof::cost::scales as memory;
+use patternproof::options::{Correction, ScalesOptions};
 use patternproof::{ScalesJob, ScalesResult, WindowOptions};
-use patternproof_scales::{Correction, ScalesOptions, memory};
 
 /// Largest accepted `--steps`.
 const MAX_STEPS: usize = 10_000;
@@ -185,7 +186,7 @@ pub fn compute(
     flag: &str,
 ) -> Result<ScalesResult, Failure> {
     let job = ScalesJob::prepare(input, windows)?;
-    let check = |plan: &patternproof_scales::Plan, options: &ScalesOptions| {
+    let check = |plan: &memory::Plan, options: &ScalesOptions| {
         if plan.simulated_patterns(options) > 0 {
             // One trial pattern per window, on one thread; the simulations
             // share the threads.

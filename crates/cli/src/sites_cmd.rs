@@ -5,14 +5,14 @@ use crate::budget;
 use crate::fail::Failure;
 use crate::progress::Progress;
 use clap::Args;
+use patternproof::Dataset;
+use patternproof::cost::audit as simulation;
+use patternproof::options::SitesOptions as RunOptions;
+use patternproof::options::{LoadOptions, Protocol};
 use patternproof::{Site, SitesSource};
-use patternproof_audit::simulation;
-use patternproof_io::{Dataset, LoadOptions};
-use patternproof_protocol::Protocol;
+use patternproof::{SiteInput, SiteRun, sites_document as document};
 use patternproof_report::sites::SiteInputs;
 use patternproof_report::{OutputFolder, Plane, RenderChoices, RunContext};
-use patternproof_sites::document::document;
-use patternproof_sites::{RunOptions, SiteInput, SiteRun};
 use std::path::PathBuf;
 
 /// `patternproof sites`.
@@ -194,7 +194,7 @@ fn check_budget(
 ) -> Result<(), Failure> {
     let threads = rayon::current_num_threads();
     let need = |sweep_sims: usize| {
-        patternproof_sites::run_bytes(inputs, protocol, RunOptions { sweep_sims }, threads)
+        patternproof::cost::sites::run_bytes(inputs, protocol, RunOptions { sweep_sims }, threads)
     };
     let basis = format!(
         "the simulated means of every site's sweep are kept until the folders are written: 8 bytes per simulation and window, for {} site(s)",
@@ -210,14 +210,14 @@ fn check_budget(
     let Some(largest) = inputs.iter().max_by_key(|s| s.points.len()) else {
         return Ok(());
     };
-    if patternproof_sites::simulated_patterns(inputs, protocol, opts) == 0 {
+    if patternproof::cost::sites::simulated_patterns(inputs, protocol, opts) == 0 {
         return Ok(());
     }
     let Some(trial) = simulation::trial_seconds(&largest.points, 0.2, 64) else {
         return Ok(());
     };
     let seconds = |sweep_sims: usize| {
-        patternproof_sites::forecast_seconds(
+        patternproof::cost::sites::forecast_seconds(
             inputs,
             protocol,
             RunOptions { sweep_sims },

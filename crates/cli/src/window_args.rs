@@ -5,7 +5,7 @@
 use crate::audit_cmd::parse_buffers;
 use crate::fail::Failure;
 use clap::Args;
-use patternproof_audit::BufferRule;
+use patternproof::options::BufferRule;
 
 /// `--buffers` and `--concavity`.
 #[derive(Debug, Clone, Args)]

@@ -66,9 +66,11 @@
 //! ```
 
 mod audit;
+pub mod cost;
 mod density;
 mod error;
 mod input;
+pub mod options;
 mod progress;
 mod protocol;
 mod recheck;
@@ -95,8 +97,9 @@ pub use patternproof_density::Config as DensityConfig;
 pub use patternproof_density::bandwidth::BandwidthSpec;
 pub use patternproof_density::edge::DensityEdge;
 pub use patternproof_density::kernels::Kernel;
-pub use patternproof_io::{CoordChoice, Dataset, LoadOptions};
+pub use patternproof_io::{CoordChoice, Dataset, InputError, LoadOptions, Projection};
 pub use patternproof_protocol::Protocol;
 pub use patternproof_recheck::{Figures, Recheck};
 pub use patternproof_scales::{Correction, ScalesOptions, ScalesRun};
-pub use patternproof_sites::{RunOptions as SitesOptions, SiteRun};
+pub use patternproof_sites::document::{SitesDocument, document as sites_document};
+pub use patternproof_sites::{RunOptions as SitesOptions, SiteInput, SiteRun};
