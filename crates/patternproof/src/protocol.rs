@@ -38,6 +38,19 @@ pub fn read_protocol(path: &Path) -> Result<(Protocol, Check), Error> {
 
 /// Read a protocol file and refuse it when it was changed after it was
 /// written.
+///
+/// ```
+/// use patternproof::{ErrorKind, Refusal, read_verified};
+///
+/// let dir = std::env::temp_dir().join(format!("pp-doc-{}", std::process::id()));
+/// std::fs::create_dir_all(&dir)?;
+/// let path = dir.join("protocol.json");
+/// std::fs::write(&path, "{ \"schema\": \"patternproof.protocol/1\" }")?;
+/// let e = read_verified(&path).expect_err("not a whole protocol");
+/// assert_eq!(e.kind(), ErrorKind::Refused(Refusal::Protocol));
+/// std::fs::remove_dir_all(&dir)?;
+/// # Ok::<(), Box<dyn std::error::Error>>(())
+/// ```
 pub fn read_verified(path: &Path) -> Result<Protocol, Error> {
     let (protocol, check) = read_protocol(path)?;
     match check {

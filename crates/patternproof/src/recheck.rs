@@ -12,6 +12,22 @@ use patternproof_recheck::{Figures, Recheck};
 
 /// Check `figures`; with `points`, also sweep the windows (no
 /// simulations) to find the ones that reproduce them.
+///
+/// ```
+/// use patternproof::options::{Figures, Quantity, parse_figure};
+/// use patternproof::recheck;
+///
+/// // Clark & Evans (1954): z = (R − 1)·sqrt(n)/(2·0.26136), so n = 64 and
+/// // R = 0.71 (0.705 to 0.715 as printed) allow z from −4.51 to −4.36.
+/// let printed = |z: &str| -> Result<Figures, Box<dyn std::error::Error>> {
+///     Ok(Figures::new(64, false)
+///         .with(parse_figure("0.71", Quantity::Ratio)?)
+///         .with(parse_figure(z, Quantity::Z)?))
+/// };
+/// assert_eq!(recheck(&printed("-4.4")?, None)?.consistent, Some(true));
+/// assert_eq!(recheck(&printed("-4.9")?, None)?.consistent, Some(false));
+/// # Ok::<(), Box<dyn std::error::Error>>(())
+/// ```
 pub fn recheck(figures: &Figures, points: Option<&Input>) -> Result<Recheck, Error> {
     let Some(input) = points else {
         return Ok(patternproof_recheck::recheck(figures, None));

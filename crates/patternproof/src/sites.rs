@@ -285,6 +285,50 @@ pub fn sites(
 /// One site's run, without the adjustment across sites: what a worker of
 /// a distributed run computes. The row's adjusted p-value is filled in by
 /// [`adjust`] once every site's row is in.
+///
+/// ```
+/// use patternproof::options::{Adjust, Edge, PROTOCOL_SCHEMA, Protocol, WindowRule};
+/// use patternproof::{CoordChoice, LoadOptions, SitesOptions, SitesSource};
+/// use patternproof::{adjust, load_sites, site_result};
+///
+/// let repo = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("../..");
+/// let protocol = Protocol {
+///     schema: PROTOCOL_SCHEMA.into(),
+///     window: WindowRule::Boundary,
+///     edge: Edge::Simulation,
+///     alpha: 0.05,
+///     sims: 39,
+///     seed: 7,
+///     adjust: Adjust::Holm,
+///     min_n: 10,
+///     guard: None,
+///     concavity: 0.3,
+///     note: None,
+/// };
+/// let source = SitesSource {
+///     inputs: vec![repo.join("demo-data/plots/plot-a.csv"), repo.join("demo-data/plots/plot-b.csv")],
+///     site_field: None,
+///     boundaries: Some(repo.join("demo-data/plots-boundaries.geojson")),
+///     boundary_layer: None,
+///     boundary_field: "name".into(),
+///     load: LoadOptions { coords: CoordChoice::Projected, ..LoadOptions::default() },
+/// };
+/// let loaded = load_sites(&source, &protocol, "protocol.json")?;
+/// // What each worker of a distributed run computes, one site each …
+/// let mut runs: Vec<_> = loaded
+///     .sites
+///     .iter()
+///     .map(|s| site_result(s, &protocol, SitesOptions { sweep_sims: 0 }))
+///     .collect();
+/// // … and where the rows meet, Holm's adjustment across the sites.
+/// adjust(&mut runs, &protocol);
+/// assert_eq!(runs.len(), 2);
+/// for r in &runs {
+///     let (p, adjusted) = (r.row.p.expect("tested"), r.row.p_adjusted.expect("adjusted"));
+///     assert!(adjusted >= p && adjusted <= 1.0);
+/// }
+/// # Ok::<(), patternproof::Error>(())
+/// ```
 pub fn site_result(site: &Site, protocol: &Protocol, options: RunOptions) -> SiteRun {
     patternproof_sites::run_site(&site.input, protocol, options)
 }

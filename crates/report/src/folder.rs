@@ -4,11 +4,11 @@
 //! Files are written into a staging folder beside the target and renamed
 //! into place in one step; an earlier report is first moved aside into a
 //! second temporary folder and deleted only once the new one is in place
-//! ([`temporary`] explains both). Every early return, and an interrupt
+//! (`temporary` explains both). Every early return, and an interrupt
 //! between two files, removes what this run made and leaves the earlier
 //! report where it was.
 //!
-//! The marker [`MARKER`] lists every file written ([`manifest`]). An
+//! The marker [`MARKER`] lists every file written (`manifest`). An
 //! existing target is replaced only with `--force`, and only while it
 //! holds nothing but the files its marker lists; an empty folder is
 //! filled; anything else (a user's folder, an old report with a user's
@@ -16,7 +16,7 @@
 //! typo in `--out` cannot delete anyone's work.
 //!
 //! Before writing, leftovers of a run that was killed are put right
-//! ([`repair`]).
+//! (`repair`).
 
 mod manifest;
 mod repair;

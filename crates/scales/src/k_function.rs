@@ -161,7 +161,7 @@ impl Sums {
 /// Memory grows with n, not with the number of pairs: the pairs of each
 /// centre are weighed as the range search finds them and added to the
 /// distance bins, and the parallel path holds at most about
-/// [`WAVE_PAIRS`] weighed pairs between two merges.
+/// `WAVE_PAIRS` weighed pairs between two merges.
 pub fn k_curves(
     points: &[Xy],
     region: &KWindow,

@@ -65,7 +65,7 @@ fn base64(data: &[u8]) -> String {
 const MAX_PANEL_PIXELS: usize = 400;
 
 /// The raster of one surface as a PNG (north up), coloured by mass rank.
-/// A raster wider than [`MAX_PANEL_PIXELS`] is shown by square blocks of
+/// A raster wider than `MAX_PANEL_PIXELS` is shown by square blocks of
 /// cells, each with the colour of its densest window cell, so no hotspot
 /// disappears; the isopleth outlines drawn over it are traced on the full
 /// raster.
