@@ -211,17 +211,34 @@ impl Audit {
     }
 }
 
-/// Run the sweep. Refused ([`AuditError`]) when α is not in (0, 1), fewer
-/// than two points are given or a coordinate is not finite. `tick` is
-/// called once per simulated pattern (progress bars).
-pub fn run_audit(
+/// The windows of one data set and what every analysis in them needs,
+/// built once in coordinates centred on the data: UTM-sized values
+/// (~5·10⁶ m) would otherwise cost digits in areas, buffers and outline
+/// distances. The nearest-neighbour sweep ([`run_in`]) and the K function
+/// share one frame, so `audit --scales` builds every window once.
+#[derive(Debug, Clone)]
+pub struct Frame {
+    /// The whole-numbered origin subtracted from every coordinate (the
+    /// shift by a whole number is exact).
+    pub origin: Xy,
+    /// The points in local coordinates, in input order.
+    pub points: Vec<Xy>,
+    /// Each point's nearest-neighbour distance, in input order.
+    pub distances: Vec<f64>,
+    /// Their mean.
+    pub mean_nn: f64,
+    /// The windows, in local coordinates.
+    pub windows: Vec<Window>,
+    /// Why windows were left out.
+    pub notes: Vec<String>,
+}
+
+/// Centre `points` and `boundaries` and build the windows of `options`.
+pub fn frame(
     points: &[Xy],
     boundaries: &[NamedShape],
-    options: &AuditOptions,
-    tick: &(dyn Fn() + Sync),
-) -> Result<Audit, AuditError> {
-    let alpha = options.alpha;
-    let z_crit = two_sided_critical(alpha).ok_or(AuditError::Alpha { alpha })?;
+    options: &WindowOptions,
+) -> Result<Frame, AuditError> {
     let n = points.len();
     if n < 2 {
         return Err(AuditError::TooFewPoints { n });
@@ -232,9 +249,6 @@ pub fn run_audit(
     {
         return Err(AuditError::NotFinite { index });
     }
-    // Work in coordinates centred on the data: UTM-sized values (~5·10⁶ m)
-    // would otherwise cost digits in areas, buffers and outline distances.
-    // The origin is a whole number near the data, so the shift is exact.
     let origin = centre(points);
     let local: Vec<Xy> = points
         .iter()
@@ -247,11 +261,48 @@ pub fn run_audit(
             ..b.clone()
         })
         .collect();
-    let points = &local[..];
     // Two finite points or more always have distances: the checks above.
-    let all_distances = nearest_distances(points).ok_or(AuditError::TooFewPoints { n })?;
-    let all_nn = mean(&all_distances).ok_or(AuditError::TooFewPoints { n })?;
-    let (mut windows, notes) = build_windows(points, all_nn, &local_boundaries, &options.windows);
+    let distances = nearest_distances(&local).ok_or(AuditError::TooFewPoints { n })?;
+    let mean_nn = mean(&distances).ok_or(AuditError::TooFewPoints { n })?;
+    let (windows, notes) = build_windows(&local, mean_nn, &local_boundaries, options);
+    Ok(Frame {
+        origin,
+        points: local,
+        distances,
+        mean_nn,
+        windows,
+        notes,
+    })
+}
+
+/// Run the sweep. Refused ([`AuditError`]) when α is not in (0, 1), fewer
+/// than two points are given or a coordinate is not finite. `tick` is
+/// called once per simulated pattern (progress bars).
+pub fn run_audit(
+    points: &[Xy],
+    boundaries: &[NamedShape],
+    options: &AuditOptions,
+    tick: &(dyn Fn() + Sync),
+) -> Result<Audit, AuditError> {
+    let alpha = options.alpha;
+    two_sided_critical(alpha).ok_or(AuditError::Alpha { alpha })?;
+    let frame = frame(points, boundaries, &options.windows)?;
+    run_in(&frame, options, tick)
+}
+
+/// The sweep in the windows of `frame` (built with `options.windows`),
+/// with the windows' outlines moved back to the caller's coordinates in
+/// the result.
+pub fn run_in(
+    frame: &Frame,
+    options: &AuditOptions,
+    tick: &(dyn Fn() + Sync),
+) -> Result<Audit, AuditError> {
+    let alpha = options.alpha;
+    let z_crit = two_sided_critical(alpha).ok_or(AuditError::Alpha { alpha })?;
+    let (origin, points, all_nn) = (frame.origin, &frame.points[..], frame.mean_nn);
+    let all_distances = &frame.distances;
+    let (mut windows, notes) = (frame.windows.clone(), frame.notes.clone());
     let guard = options.guard.unwrap_or(all_nn);
     let mut results = Vec::new();
     let mut skipped = Vec::new();

@@ -6,6 +6,7 @@ use crate::fail::Failure;
 use crate::progress::Progress;
 use crate::scales_cmd;
 use patternproof::Dataset;
+use patternproof::ScalesJob;
 use patternproof::cost::audit as simulation;
 use patternproof::options::{
     AuditOptions, BufferRule, Edge, GpkgChoice, LoadOptions, MAX_AREA, MIN_AREA, ScalesOptions,
@@ -73,11 +74,12 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
         sims: a.sims,
         seed: a.seed,
     };
-    let report = patternproof::audit(&input, &options, &Progress::new(a.quiet))?;
+    // One set of windows for the sweep and, with --scales, for K.
+    let frame = patternproof::frame(&input, &options.windows)?;
+    let report = patternproof::audit_in(&input, &frame, &options, &Progress::new(a.quiet))?;
     let scales = match &scales_options {
         Some(scales_options) => Some(scales_cmd::compute(
-            &input,
-            &options.windows,
+            &ScalesJob::from_frame(&input, &frame),
             scales_options,
             a.quiet,
             "--scales-sims",

@@ -133,7 +133,8 @@ pub fn run(a: &ScalesArgs) -> Result<(), Failure> {
         area: None,
         concavity,
     };
-    let ScalesResult { run, notes } = compute(&input, &windows, &options, a.quiet, "--sims")?;
+    let job = ScalesJob::prepare(&input, &windows)?;
+    let ScalesResult { run, notes } = compute(&job, &options, a.quiet, "--sims")?;
     let folder = patternproof_report::scales::folder(&run)?;
     a.output.write(&folder)?;
 
@@ -175,17 +176,15 @@ pub fn check_memory(
     budget::check_memory(flag, options.sims, need, &basis, budget::available_memory())
 }
 
-/// The K audit of `input` in every window of the sweep, with a forecast
+/// The K audit in the windows of `job`, with a forecast
 /// of its time and a progress bar unless `quiet`; `flag` is the option
 /// that set `options.sims`. Shared by `scales` and `audit --scales`.
 pub fn compute(
-    input: &patternproof::Input,
-    windows: &WindowOptions,
+    job: &ScalesJob,
     options: &ScalesOptions,
     quiet: bool,
     flag: &str,
 ) -> Result<ScalesResult, Failure> {
-    let job = ScalesJob::prepare(input, windows)?;
     let check = |plan: &memory::Plan, options: &ScalesOptions| {
         if plan.simulated_patterns(options) > 0 {
             // One trial pattern per window, on one thread; the simulations

@@ -5,7 +5,9 @@ use crate::document::AuditReport;
 use crate::error::{Error, Refusal, sweep_refused};
 use crate::input::Input;
 use crate::progress::Progress;
-use patternproof_audit::{AuditOptions, run_audit};
+use patternproof_audit::AuditOptions;
+use patternproof_audit::sweep::{Frame, frame as build_frame, run_in};
+use patternproof_audit::window::WindowOptions;
 use patternproof_core::clark_evans::MIN_N_ANALYTIC;
 
 /// Windows with an outline that a sweep builds, and so simulates in: the
@@ -14,6 +16,13 @@ use patternproof_core::clark_evans::MIN_N_ANALYTIC;
 /// left out later.
 pub fn outlined_windows(buffers: usize, boundaries: usize) -> usize {
     3 + buffers + boundaries
+}
+
+/// Build the windows of `options` around `input` once, for [`audit_in`]
+/// and [`crate::ScalesJob::from_frame`] to share (`audit --scales`).
+pub fn frame(input: &Input, options: &WindowOptions) -> Result<Frame, Error> {
+    build_frame(&input.points, &input.boundaries, options)
+        .map_err(|e| sweep_refused(&input.subject, e))
 }
 
 /// Sweep `input` over the windows and edge handlings of `options` and
@@ -27,14 +36,30 @@ pub fn audit(
     options: &AuditOptions,
     progress: &dyn Progress,
 ) -> Result<AuditReport, Error> {
+    let alpha = options.alpha;
+    if !(alpha > 0.0 && alpha < 1.0) {
+        return Err(sweep_refused(
+            &input.subject,
+            patternproof_audit::AuditError::Alpha { alpha },
+        ));
+    }
+    audit_in(input, &frame(input, &options.windows)?, options, progress)
+}
+
+/// [`audit`] in windows built beforehand with [`frame`] (from
+/// `options.windows`).
+pub fn audit_in(
+    input: &Input,
+    frame: &Frame,
+    options: &AuditOptions,
+    progress: &dyn Progress,
+) -> Result<AuditReport, Error> {
     let windows = outlined_windows(options.windows.buffers.len(), input.boundaries.len());
     progress.start(
         options.sims.saturating_mul(windows) as u64,
         "simulating CSR",
     );
-    let audit = run_audit(&input.points, &input.boundaries, options, &|| {
-        progress.step()
-    });
+    let audit = run_in(frame, options, &|| progress.step());
     progress.finish();
     let audit = audit.map_err(|e| sweep_refused(&input.subject, e))?;
     if !audit.results.iter().any(|r| r.p.is_some()) {

@@ -77,12 +77,13 @@ mod recheck;
 mod scales;
 mod sites;
 
-pub use audit::{audit, outlined_windows};
+pub use audit::{audit, audit_in, frame, outlined_windows};
 pub use density::{DensityResult, density};
 pub use document::{AuditReport, FileDigest, InputSummary, ReportProvenance};
 pub use error::{Error, ErrorKind, Refusal};
 pub use input::{Input, digests, input_summary, load, named_shapes};
 pub use patternproof_audit::document;
+pub use patternproof_audit::sweep::Frame;
 pub use progress::{Progress, Silent};
 pub use protocol::{changed, read_protocol, read_verified};
 pub use recheck::recheck;

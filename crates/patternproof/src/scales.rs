@@ -10,8 +10,8 @@ use crate::error::{Error, Refusal};
 use crate::input::Input;
 use crate::progress::Progress;
 use geo::Translate;
-use patternproof_audit::sweep::centre;
-use patternproof_audit::window::{NamedShape, Window, WindowOptions, build_windows};
+use patternproof_audit::sweep::{Frame, centre};
+use patternproof_audit::window::{NamedShape, Window, WindowKind, WindowOptions, build_windows};
 use patternproof_core::Xy;
 use patternproof_core::nearest::{mean, nearest_distances};
 use patternproof_scales::{Plan, ScalesOptions, ScalesRun, plan};
@@ -79,6 +79,25 @@ impl ScalesJob {
             unit: input.summary.unit.clone(),
             subject: input.subject.clone(),
         })
+    }
+
+    /// The K audit in the windows the nearest-neighbour sweep was given
+    /// ([`crate::frame`]), so they are built once. A window given by its
+    /// area alone has no outline and is left out, as [`ScalesJob::prepare`]
+    /// leaves it out.
+    pub fn from_frame(input: &Input, frame: &Frame) -> Self {
+        Self {
+            points: frame.points.clone(),
+            windows: frame
+                .windows
+                .iter()
+                .filter(|w| w.kind != WindowKind::Area)
+                .cloned()
+                .collect(),
+            notes: frame.notes.clone(),
+            unit: input.summary.unit.clone(),
+            subject: input.subject.clone(),
+        }
     }
 
     /// Estimate and test. `check` sees the plan first (to forecast the
