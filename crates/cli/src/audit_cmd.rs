@@ -1,18 +1,15 @@
 //! `patternproof audit`: load, sweep, write the report folder, print.
 
-use crate::args::{AuditArgs, InputArgs};
+use crate::args::AuditArgs;
 use crate::budget;
+use crate::common::{check_alpha, command_line, load, print_reading};
 use crate::fail::Failure;
 use crate::progress::Progress;
 use crate::scales_cmd;
 use patternproof::Dataset;
 use patternproof::ScalesJob;
 use patternproof::cost::audit as simulation;
-use patternproof::options::{
-    AuditOptions, BufferRule, Edge, GpkgChoice, LoadOptions, MAX_AREA, MIN_AREA, ScalesOptions,
-    WindowOptions, parse_filter,
-};
-use patternproof_report::html;
+use patternproof::options::{AuditOptions, Edge, MAX_AREA, MIN_AREA, ScalesOptions, WindowOptions};
 use patternproof_report::{
     AuditReport, OutputFolder, Plane, RenderChoices, RunContext, audit_folder, table,
 };
@@ -155,97 +152,6 @@ fn check_budget(
     Ok(())
 }
 
-/// The command line as typed, quoted where needed, for the report's page.
-pub fn command_line() -> String {
-    std::env::args_os()
-        .map(|s| html::shell_quote(&s.to_string_lossy()))
-        .collect::<Vec<_>>()
-        .join(" ")
-}
-
-/// Load points and boundaries with the shared input flags.
-pub fn load(input: &InputArgs) -> Result<Dataset, Failure> {
-    Ok(patternproof::load(
-        &input.points,
-        &input.boundaries,
-        &LoadOptions {
-            coords: input.coords.choice(),
-            unit: input.coords.unit.clone(),
-            drop_duplicates: input.drop_duplicates,
-            field: None,
-            gpkg: gpkg_choice(
-                input.layer.clone(),
-                input.boundary_layer.clone(),
-                input.filter.as_deref(),
-            )?,
-        },
-    )?)
-}
-
-/// Say how the points were read, first thing: which coordinate system and
-/// why (column names, a format's default, the file's own declaration or
-/// `--coords`). On stderr, beside the warnings, so that a table or JSON on
-/// stdout stays clean; a misreading is never silent.
-pub fn print_reading(data: &Dataset) {
-    eprintln!("{}", reading_line(&data.points_file, &data.reading, 0));
-}
-
-/// The reading line of one file, or of `others` more read the same way.
-pub fn reading_line(file: &std::path::Path, reading: &str, others: usize) -> String {
-    let more = match others {
-        0 => String::new(),
-        1 => " and 1 more file".to_string(),
-        n => format!(" and {n} more files"),
-    };
-    format!(
-        "patternproof: reading {}{more} as {reading}",
-        file.display()
-    )
-}
-
-/// `--layer`, `--boundary-layer` and `--where` as the reader wants them.
-pub fn gpkg_choice(
-    layer: Option<String>,
-    boundary_layer: Option<String>,
-    filter: Option<&str>,
-) -> Result<GpkgChoice, Failure> {
-    Ok(GpkgChoice {
-        layer,
-        boundary_layer,
-        filter: filter.map(parse_filter).transpose()?,
-    })
-}
-
-/// `--buffers 0.5x,1x,2x` or `--buffers 5,10`.
-pub fn parse_buffers(words: &[String]) -> Result<Vec<BufferRule>, Failure> {
-    words
-        .iter()
-        .map(|w| {
-            let w = w.trim();
-            let (num, multiple) = match w.strip_suffix('x') {
-                Some(n) => (n, true),
-                None => (w, false),
-            };
-            let rule = num.parse::<f64>().ok().map(|v| {
-                if multiple {
-                    BufferRule::MeanNnMultiple(v)
-                } else {
-                    BufferRule::Distance(v)
-                }
-            });
-            match rule.map(|r| (r, r.problem())) {
-                Some((r, None)) => Ok(r),
-                Some((_, Some(problem))) => Err(Failure::Input(format!(
-                    "--buffers: `{w}` is {problem}\n  what to do: give distances in the unit (e.g. 5,10) or multiples of the mean nearest-neighbour distance (e.g. 0.5x,1x)"
-                ))),
-                None => Err(Failure::Input(format!(
-                    "--buffers: `{w}` is not a positive distance\n  what to do: give distances in the unit (e.g. 5,10) or multiples of the mean nearest-neighbour distance (e.g. 0.5x,1x)"
-                ))),
-            }
-        })
-        .collect()
-}
-
 /// `--edges none,donnelly,…`.
 pub fn parse_edges(words: &[String]) -> Result<Vec<Edge>, Failure> {
     let mut out = Vec::new();
@@ -260,17 +166,6 @@ pub fn parse_edges(words: &[String]) -> Result<Vec<Edge>, Failure> {
         }
     }
     Ok(out)
-}
-
-/// α strictly between 0 and 1.
-pub fn check_alpha(alpha: f64) -> Result<(), Failure> {
-    if alpha > 0.0 && alpha < 1.0 {
-        Ok(())
-    } else {
-        Err(Failure::Input(format!(
-            "--alpha {alpha}: the significance level must lie strictly between 0 and 1\n  what to do: use e.g. --alpha 0.05"
-        )))
-    }
 }
 
 fn print_summary(report: &AuditReport, out: &std::path::Path, folder: &OutputFolder) {

@@ -196,9 +196,9 @@ pub fn run(a: &DensityArgs) -> Result<(), Failure> {
             "pass one --boundary (or none for the convex hull of the points)",
         ));
     }
-    let data = crate::audit_cmd::load(&a.input)?;
+    let data = crate::common::load(&a.input)?;
     if !a.quiet {
-        crate::audit_cmd::print_reading(&data);
+        crate::common::print_reading(&data);
     }
     let config = parse_config(a, &data.unit)?;
     let points_name = a.input.points.display().to_string();

@@ -9,6 +9,7 @@
 mod args;
 mod audit_cmd;
 mod budget;
+mod common;
 mod density_cmd;
 mod fail;
 mod interrupt;

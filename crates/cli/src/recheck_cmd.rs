@@ -111,7 +111,7 @@ pub fn run(a: &RecheckArgs) -> Result<(), Failure> {
                 gpkg: Default::default(),
             };
             let data = patternproof::load(path, &a.boundaries, &options)?;
-            crate::audit_cmd::print_reading(&data);
+            crate::common::print_reading(&data);
             Some(data)
         }
         None => None,

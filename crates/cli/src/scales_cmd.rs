@@ -6,8 +6,8 @@
 //! the test are in the `patternproof-scales` crate.
 
 use crate::args::{InputArgs, OutArgs, count};
-use crate::audit_cmd::{check_alpha, load};
 use crate::budget;
+use crate::common::{check_alpha, load};
 use crate::fail::Failure;
 use crate::progress::Progress;
 use crate::window_args::WindowArgs;
@@ -115,7 +115,7 @@ pub fn run(a: &ScalesArgs) -> Result<(), Failure> {
         )));
     }
     let data = load(&a.input)?;
-    crate::audit_cmd::print_reading(&data);
+    crate::common::print_reading(&data);
     let options = ScalesOptions {
         corrections,
         tested,

@@ -79,7 +79,7 @@ pub fn run(a: &SitesArgs) -> Result<(), Failure> {
             unit: a.coords.unit.clone(),
             drop_duplicates: a.drop_duplicates,
             field: None,
-            gpkg: crate::audit_cmd::gpkg_choice(a.layer.clone(), None, a.filter.as_deref())?,
+            gpkg: crate::common::gpkg_choice(a.layer.clone(), None, a.filter.as_deref())?,
         },
     };
     let loaded = patternproof::load_sites(&source, &protocol, &a.protocol.display().to_string())?;
@@ -152,7 +152,7 @@ fn print_readings(datasets: &[Dataset]) {
     for (first, others) in groups {
         eprintln!(
             "{}",
-            crate::audit_cmd::reading_line(&first.points_file, &first.reading, others)
+            crate::common::reading_line(&first.points_file, &first.reading, others)
         );
     }
     for line in warning_lines(datasets) {
@@ -245,7 +245,7 @@ fn outputs(
         scales: None,
     };
     let context = RunContext {
-        command_line: crate::audit_cmd::command_line(),
+        command_line: crate::common::command_line(),
         stamp: None,
         protocol: Some(format!("{} (SHA-256 {hash})", a.protocol.display())),
     };

@@ -2,7 +2,6 @@
 //! once so that both commands offer the same flags with the same defaults,
 //! help and checks.
 
-use crate::audit_cmd::parse_buffers;
 use crate::fail::Failure;
 use clap::Args;
 use patternproof::options::BufferRule;
@@ -38,4 +37,34 @@ impl WindowArgs {
         }
         Ok((buffers, self.concavity))
     }
+}
+
+/// `--buffers 0.5x,1x,2x` or `--buffers 5,10`.
+pub fn parse_buffers(words: &[String]) -> Result<Vec<BufferRule>, Failure> {
+    words
+        .iter()
+        .map(|w| {
+            let w = w.trim();
+            let (num, multiple) = match w.strip_suffix('x') {
+                Some(n) => (n, true),
+                None => (w, false),
+            };
+            let rule = num.parse::<f64>().ok().map(|v| {
+                if multiple {
+                    BufferRule::MeanNnMultiple(v)
+                } else {
+                    BufferRule::Distance(v)
+                }
+            });
+            match rule.map(|r| (r, r.problem())) {
+                Some((r, None)) => Ok(r),
+                Some((_, Some(problem))) => Err(Failure::Input(format!(
+                    "--buffers: `{w}` is {problem}\n  what to do: give distances in the unit (e.g. 5,10) or multiples of the mean nearest-neighbour distance (e.g. 0.5x,1x)"
+                ))),
+                None => Err(Failure::Input(format!(
+                    "--buffers: `{w}` is not a positive distance\n  what to do: give distances in the unit (e.g. 5,10) or multiples of the mean nearest-neighbour distance (e.g. 0.5x,1x)"
+                ))),
+            }
+        })
+        .collect()
 }

@@ -1,0 +1,81 @@
+//! What several commands share: reading the inputs with the shared flags
+//! and saying how they were read, the command line for a report's page,
+//! and the significance level's check.
+
+use crate::args::InputArgs;
+use crate::fail::Failure;
+use patternproof::Dataset;
+use patternproof::options::{GpkgChoice, LoadOptions, parse_filter};
+use patternproof_report::html;
+
+/// The command line as typed, quoted where needed, for the report's page.
+pub fn command_line() -> String {
+    std::env::args_os()
+        .map(|s| html::shell_quote(&s.to_string_lossy()))
+        .collect::<Vec<_>>()
+        .join(" ")
+}
+
+/// Load points and boundaries with the shared input flags.
+pub fn load(input: &InputArgs) -> Result<Dataset, Failure> {
+    Ok(patternproof::load(
+        &input.points,
+        &input.boundaries,
+        &LoadOptions {
+            coords: input.coords.choice(),
+            unit: input.coords.unit.clone(),
+            drop_duplicates: input.drop_duplicates,
+            field: None,
+            gpkg: gpkg_choice(
+                input.layer.clone(),
+                input.boundary_layer.clone(),
+                input.filter.as_deref(),
+            )?,
+        },
+    )?)
+}
+
+/// Say how the points were read, first thing: which coordinate system and
+/// why (column names, a format's default, the file's own declaration or
+/// `--coords`). On stderr, beside the warnings, so that a table or JSON on
+/// stdout stays clean; a misreading is never silent.
+pub fn print_reading(data: &Dataset) {
+    eprintln!("{}", reading_line(&data.points_file, &data.reading, 0));
+}
+
+/// The reading line of one file, or of `others` more read the same way.
+pub fn reading_line(file: &std::path::Path, reading: &str, others: usize) -> String {
+    let more = match others {
+        0 => String::new(),
+        1 => " and 1 more file".to_string(),
+        n => format!(" and {n} more files"),
+    };
+    format!(
+        "patternproof: reading {}{more} as {reading}",
+        file.display()
+    )
+}
+
+/// `--layer`, `--boundary-layer` and `--where` as the reader wants them.
+pub fn gpkg_choice(
+    layer: Option<String>,
+    boundary_layer: Option<String>,
+    filter: Option<&str>,
+) -> Result<GpkgChoice, Failure> {
+    Ok(GpkgChoice {
+        layer,
+        boundary_layer,
+        filter: filter.map(parse_filter).transpose()?,
+    })
+}
+
+/// α strictly between 0 and 1.
+pub fn check_alpha(alpha: f64) -> Result<(), Failure> {
+    if alpha > 0.0 && alpha < 1.0 {
+        Ok(())
+    } else {
+        Err(Failure::Input(format!(
+            "--alpha {alpha}: the significance level must lie strictly between 0 and 1\n  what to do: use e.g. --alpha 0.05"
+        )))
+    }
+}
