@@ -69,6 +69,7 @@ mod audit;
 mod density;
 mod error;
 mod input;
+pub mod memory;
 mod progress;
 mod protocol;
 mod recheck;
