@@ -54,7 +54,7 @@ pub fn coord_choice(word: &str) -> Result<CoordChoice, Error> {
 /// The x, y pairs of `bytes`: native-endian f64 values, x and y in turn
 /// (what `array.array("d").tobytes()` and numpy's `tobytes()` give).
 pub fn pairs(bytes: &[u8]) -> Result<Vec<[f64; 2]>, Error> {
-    if bytes.len() % 16 != 0 {
+    if !bytes.len().is_multiple_of(16) {
         return Err(setting(
             "points",
             "the coordinates do not come in x, y pairs",
