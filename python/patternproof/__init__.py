@@ -27,6 +27,7 @@ from __future__ import annotations
 
 import html
 import json
+import operator
 import os
 import warnings as _warnings
 from array import array
@@ -94,7 +95,7 @@ def _words(name: str, value: Union[str, Iterable[Any]]) -> list:
     if isinstance(value, str):
         return [w for w in value.split(",")]
     try:
-        return [v if isinstance(v, str) else repr(v) for v in value]
+        return [v if isinstance(v, str) else str(v) for v in value]
     except TypeError:
         raise SettingError(
             f"--{name.replace('_', '-')}: {value!r} is not a list\n"
@@ -104,6 +105,10 @@ def _words(name: str, value: Union[str, Iterable[Any]]) -> list:
 
 def _count(name: str, value: Any) -> int:
     """A count or seed: a whole number of 0 or more (as the CLI's parser)."""
+    try:
+        value = operator.index(value)  # int, numpy integers; not bool or float
+    except TypeError:
+        value = None if isinstance(value, bool) else value
     if isinstance(value, bool) or not isinstance(value, int) or value < 0 or value >= 2**64:
         raise SettingError(
             f"--{name.replace('_', '-')} {value}: not a whole number of 0 or more that fits in 64 bits\n"
@@ -525,7 +530,7 @@ def recheck(
     'inconsistent'
     """
     given = [
-        (name, value if isinstance(value, str) else repr(value))
+        (name, value if isinstance(value, str) else str(value))
         for name, value in (
             ("ratio", ratio),
             ("z", z),

@@ -137,6 +137,9 @@ def test_numpy_list_and_two_sequences_give_the_same_report():
     from_list = patternproof.audit(xy, **kwargs).to_json()
     from_columns = patternproof.audit(([p[0] for p in xy], [p[1] for p in xy]), **kwargs).to_json()
     assert from_numpy == from_list == from_columns
+    # numpy scalars are numbers like any other.
+    numpy_options = dict(kwargs, sims=np.int64(99), buffers=[np.float64(0.5)])
+    assert patternproof.audit(xy, **numpy_options).to_json() == patternproof.audit(xy, **dict(kwargs, buffers="0.5")).to_json()
     # The same figures as the file: only where the points came from differs.
     from_file = patternproof.audit(POINTS, [BOUNDARY], sims=99).to_dict()
     memory = json.loads(from_numpy)
@@ -203,6 +206,14 @@ def test_a_bad_file_is_an_input_error_with_the_cli_message(tmp_path):
     assert str(e.value) == expected
     assert isinstance(e.value, ValueError)
     assert not (tmp_path / "never").exists()
+
+
+def test_a_negative_count_is_refused_in_the_cli_words():
+    with pytest.raises(patternproof.SettingError) as e:
+        patternproof.audit(POINTS, sims=-1)
+    assert str(e.value).startswith("--sims -1: not a whole number of 0 or more")
+    with pytest.raises(patternproof.SettingError):
+        patternproof.audit(POINTS, seed=1.5)
 
 
 def test_too_few_points():
