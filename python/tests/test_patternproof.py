@@ -224,9 +224,10 @@ def test_too_few_points():
 
 
 def test_no_testable_window():
-    same_place = [(1.0, 1.0)] * 10
+    # On one line along an axis: no rectangle, no hull, so no window.
+    on_a_line = [(float(i), 5.0) for i in range(40)]
     with pytest.raises(patternproof.NoTestableWindowError) as e:
-        patternproof.audit(same_place, coords="projected", sims=0)
+        patternproof.audit(on_a_line, coords="projected", sims=0)
     assert "no window could be tested" in str(e.value)
 
 

@@ -18,6 +18,7 @@ use patternproof_core::order::{canonical_permutation, permute};
 use patternproof_io::boundary::{RawBoundary, read_boundary};
 use patternproof_io::coords::{in_lat_range, in_lon_range, spherical_centre};
 use patternproof_io::geopackage::is_geopackage;
+use patternproof_io::magnitude::{MAX_COORDINATE, MIN_SPREAD, MIN_STEPS};
 use patternproof_io::{CoordChoice, CoordSystem, Dataset, Projection};
 use std::path::{Path, PathBuf};
 
@@ -81,7 +82,19 @@ pub fn points_in_memory(
             ));
         }
     }
+    if system == CoordSystem::Projected {
+        check_magnitude(&coords)?;
+    }
     let n_read = coords.len();
+    let distinct_points = distinct(&coords);
+    if distinct_points < 2 {
+        return Err(Error::refused(
+            Refusal::TooFewPoints,
+            subject,
+            format!("only {distinct_points} distinct point(s) to analyse"),
+            "the nearest-neighbour test needs at least two points",
+        ));
+    }
     let (points, projection, unit, reading) = match system {
         CoordSystem::Projected => (
             coords,
@@ -109,7 +122,7 @@ pub fn points_in_memory(
             (planar, Some(projection), "m".to_string(), reading)
         }
     };
-    let duplicates = n_read - distinct(&points);
+    let duplicates = n_read - distinct_points;
     let points = match canonical_permutation(&points) {
         Some(order) => permute(&points, &order),
         None => points,
@@ -137,6 +150,63 @@ pub fn points_in_memory(
         layer: None,
         srs: None,
     })
+}
+
+/// Refuse planar coordinates that floating point cannot measure, by the
+/// limits the file readers apply ([`patternproof_io::magnitude`]): beyond
+/// ±[`MAX_COORDINATE`], spread over less than [`MIN_SPREAD`], or with
+/// fewer than [`MIN_STEPS`] representable values across the spread.
+fn check_magnitude(coords: &[Xy]) -> Result<(), Error> {
+    let subject = POINTS_IN_MEMORY;
+    if let Some(i) = coords
+        .iter()
+        .position(|c| !(c[0].abs() <= MAX_COORDINATE && c[1].abs() <= MAX_COORDINATE))
+    {
+        return Err(Error::refused(
+            Refusal::Setting,
+            format!("{subject}, row {i}"),
+            format!(
+                "({:e}, {:e}) lies beyond ±{MAX_COORDINATE:e}, farther out than any map position in any unit; distances and areas this large cannot be computed reliably",
+                coords[i][0], coords[i][1]
+            ),
+            "check the numbers and their unit: give planar coordinates of the study area in m, ft or mm",
+        ));
+    }
+    let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
+    for c in coords {
+        for k in 0..2 {
+            lo[k] = lo[k].min(c[k]);
+            hi[k] = hi[k].max(c[k]);
+        }
+    }
+    let spread = (hi[0] - lo[0]).max(hi[1] - lo[1]);
+    if coords.len() < 2 || spread == 0.0 {
+        return Ok(());
+    }
+    if spread < MIN_SPREAD {
+        return Err(Error::refused(
+            Refusal::Setting,
+            subject,
+            format!(
+                "the points spread over only {spread:e}: below {MIN_SPREAD:e}, areas and intensities leave the range floating point can hold"
+            ),
+            "express the coordinates in a smaller unit (multiply them) and name it with unit=",
+        ));
+    }
+    let largest = lo.iter().chain(&hi).fold(0.0f64, |m, v| m.max(v.abs()));
+    let ulp = f64::from_bits(largest.to_bits() + 1) - largest;
+    if spread / ulp < MIN_STEPS {
+        return Err(Error::refused(
+            Refusal::Setting,
+            subject,
+            format!(
+                "the points spread over only {spread:e} at coordinates as large as {largest:e}: floating point holds just {:.0} distinct values across that spread",
+                (spread / ulp).floor()
+            ),
+            "subtract a local origin (e.g. the smallest x and y) from every coordinate and try again",
+        ));
+    }
+    Ok(())
 }
 
 /// The number of distinct points (+0.0 and −0.0 are one place).
@@ -275,6 +345,24 @@ mod tests {
             .expect_err("auto is refused");
         assert_eq!(e.kind(), crate::ErrorKind::Refused(Refusal::Setting));
         assert!(e.to_string().contains("coords=\"projected\""));
+    }
+
+    #[test]
+    fn coordinates_floating_point_cannot_measure_are_refused() {
+        // The limits of patternproof-io's magnitude module, the same as
+        // for a points file.
+        let refused = |coords: Vec<Xy>| {
+            points_in_memory(coords, CoordChoice::Projected, "m")
+                .expect_err("refused")
+                .to_string()
+        };
+        assert!(refused(vec![[0.0, 0.0], [2e13, 1.0]]).contains("row 1"));
+        assert!(refused(vec![[0.0, 0.0], [1e-13, 1e-13]]).contains("spread over only 1e-13"));
+        assert!(refused(vec![[1e12, 0.0], [1e12 + 0.5, 0.0]]).contains("distinct values"));
+        let one = points_in_memory(vec![[3.0, 4.0], [3.0, 4.0]], CoordChoice::Projected, "m")
+            .expect_err("one place");
+        assert_eq!(one.kind(), crate::ErrorKind::Refused(Refusal::TooFewPoints));
+        assert!(one.to_string().contains("only 1 distinct point(s)"));
     }
 
     #[test]
