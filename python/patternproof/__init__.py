@@ -12,7 +12,10 @@ subclass of :class:`patternproof.Error` with the command line's message.
 Points are a file path (read exactly as the command line reads it), an
 (n, 2) array, or a tuple ``(xs, ys)`` of two sequences. Coordinates in
 memory carry no system, so they need ``coords="projected"`` (with
-``unit=``) or ``coords="lonlat"``; nothing is guessed.
+``unit=``) or ``coords="lonlat"``; nothing is guessed. Boundaries are file
+paths, WKT text, WKB bytes, GeoJSON mappings or objects with
+``__geo_interface__`` (shapely), one or a list, or a ``{name: geometry}``
+dict; in memory they are in the points' coordinates.
 
 >>> import patternproof
 >>> r = patternproof.audit("demo-data/meadow-burrows.csv",
@@ -84,7 +87,16 @@ BANDWIDTHS = ("scott", "lcv", "0.5x", "2x")
 LEVELS = ("50", "95")
 DENSITY_EDGES = ("none", "uniform")
 
-_WKT_WORDS = ("POLYGON", "MULTIPOLYGON", "GEOMETRYCOLLECTION")
+# Text starting with a WKT type name is WKT, any other text a file path.
+_WKT_WORDS = (
+    "POLYGON",
+    "MULTIPOLYGON",
+    "GEOMETRYCOLLECTION",
+    "POINT",
+    "MULTIPOINT",
+    "LINESTRING",
+    "MULTILINESTRING",
+)
 
 
 # ---------------------------------------------------------------- inputs
@@ -178,6 +190,8 @@ def _boundary(item: Any, name: Optional[str] = None) -> tuple:
     """One boundary as (kind, payload, name) for the native module."""
     if isinstance(item, os.PathLike):
         return ("file", os.fspath(item), None)
+    if isinstance(item, (bytes, bytearray, memoryview)):
+        return ("wkb", bytes(item).hex(), name)
     if isinstance(item, str):
         head = item.lstrip()[:20].upper()
         if head.startswith("{"):
@@ -192,7 +206,7 @@ def _boundary(item: Any, name: Optional[str] = None) -> tuple:
         return ("text", json.dumps(item), name)
     raise SettingError(
         f"boundaries: {type(item).__name__} is not a boundary\n"
-        "  what to do: give a file path, WKT text, a GeoJSON mapping or an object with __geo_interface__"
+        "  what to do: give a file path, WKT text, WKB bytes, a GeoJSON mapping or an object with __geo_interface__"
     )
 
 
@@ -202,7 +216,7 @@ def _boundaries(boundaries: Any) -> list:
     if isinstance(boundaries, Mapping) and "type" not in boundaries:
         return [_boundary(g, str(n)) for n, g in boundaries.items()]
     if (
-        isinstance(boundaries, (str, os.PathLike, Mapping))
+        isinstance(boundaries, (str, os.PathLike, Mapping, bytes, bytearray, memoryview))
         or hasattr(boundaries, "__geo_interface__")
     ):
         return [_boundary(boundaries)]

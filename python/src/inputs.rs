@@ -138,6 +138,27 @@ pub fn boundary_text(text: &str, name: Option<String>, index: usize) -> Result<B
     Ok(Boundary::Memory(name, MultiPolygon(polygons)))
 }
 
+/// A boundary given as WKB bytes (as shapely's `to_wkb` writes them),
+/// read by the GeoPackage crate's checked decoder behind a minimal
+/// GeoPackage header (magic, version 0, little-endian, no envelope,
+/// system 0).
+pub fn boundary_wkb(wkb: &[u8], name: Option<String>, index: usize) -> Result<Boundary, Error> {
+    let subject = format!("boundaries[{index}]");
+    let hint = "give a Polygon or MultiPolygon as WKB bytes";
+    let mut blob = Vec::with_capacity(8 + wkb.len());
+    blob.extend_from_slice(b"GP\x00\x01");
+    blob.extend_from_slice(&0i32.to_le_bytes());
+    blob.extend_from_slice(wkb);
+    let decoded = patternproof_gpkg::blob::decode(&blob)
+        .map_err(|e| setting(subject.clone(), format!("cannot read the WKB ({e})"), hint))?;
+    match decoded.shape {
+        Some(patternproof_gpkg::blob::Shape::Polygons(mp)) if !mp.0.is_empty() => Ok(
+            Boundary::Memory(name.unwrap_or_else(|| format!("outline{}", index + 1)), mp),
+        ),
+        _ => Err(setting(subject, "a boundary must be polygons", hint)),
+    }
+}
+
 fn feature_name(f: &geojson::Feature) -> Option<String> {
     f.property("name")
         .and_then(|v| v.as_str())

@@ -42,8 +42,24 @@ fn boundary_args(
         .enumerate()
         .map(|(i, (kind, payload, name))| match kind.as_str() {
             "file" => Ok(Boundary::File(PathBuf::from(payload))),
+            "wkb" => {
+                let bytes = hex(&payload)
+                    .ok_or_else(|| Error::Internal("the WKB was not handed over as hex".into()))?;
+                inputs::boundary_wkb(&bytes, name, i)
+            }
             _ => inputs::boundary_text(&payload, name, i),
         })
+        .collect()
+}
+
+/// Bytes from the hex text Python's `bytes.hex()` writes.
+fn hex(text: &str) -> Option<Vec<u8>> {
+    if !text.len().is_multiple_of(2) {
+        return None;
+    }
+    (0..text.len())
+        .step_by(2)
+        .map(|i| u8::from_str_radix(text.get(i..i + 2)?, 16).ok())
         .collect()
 }
 

@@ -173,8 +173,9 @@ def test_a_shapely_polygon_is_a_boundary_through_geo_interface():
     by_shapely = patternproof.audit(POINTS, {"meadow-boundary": polygon}, sims=99).to_dict()
     by_wkt = patternproof.audit(POINTS, {"meadow-boundary": shapely.to_wkt(polygon, rounding_precision=-1)}, sims=99).to_dict()
     by_mapping = patternproof.audit(POINTS, {"meadow-boundary": ring}, sims=99).to_dict()
+    by_wkb = patternproof.audit(POINTS, {"meadow-boundary": shapely.to_wkb(polygon)}, sims=99).to_dict()
     assert by_shapely["results"] == by_file["results"]
-    assert by_wkt["results"] == by_file["results"] == by_mapping["results"]
+    assert by_wkt["results"] == by_file["results"] == by_mapping["results"] == by_wkb["results"]
     assert by_shapely["input"]["boundaries"] == [
         {"name": "meadow-boundary", "file": "(boundary meadow-boundary given in memory)"}
     ]
@@ -248,6 +249,15 @@ def test_sites_that_do_not_fit(tmp_path):
     with pytest.raises(patternproof.SitesError) as e:
         patternproof.sites(protocol, [POINTS, POINTS], site_field="burrow")
     assert "exactly one point file" in str(e.value)
+
+
+def test_a_boundary_that_is_not_a_polygon_is_refused():
+    with pytest.raises(patternproof.SettingError) as e:
+        patternproof.audit(POINTS, "LINESTRING(0 0, 10 10)")
+    assert str(e.value).startswith("boundaries[0]: a boundary must be polygons")
+    with pytest.raises(patternproof.SettingError) as e:
+        patternproof.audit(POINTS, shapely.to_wkb(shapely.Point(1, 2)))
+    assert "a boundary must be polygons" in str(e.value)
 
 
 def test_every_class_is_an_error():
