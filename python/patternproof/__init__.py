@@ -351,10 +351,15 @@ class RecheckResult(_Document):
         return self.to_dict()["matches"]
 
     def _repr_html_(self) -> str:
-        checks = self._doc.get("checks") or []
-        body = [[c.get("check", c.get("name", "")), c.get("ok", c.get("result", ""))] for c in checks]
-        return f"<p><b>{html.escape(self.verdict)}</b></p>" + (
-            _table(["check", "result"], body, "checks") if body else ""
+        def word(ok: Any) -> str:
+            return {True: "ok", False: "not ok"}.get(ok, "cannot tell")
+
+        body = [
+            [c["name"], c.get("reported") or "", c.get("recomputed_text") or "", word(c.get("ok"))]
+            for c in self._doc.get("checks") or []
+        ]
+        return f"<p><b>{html.escape(self.verdict)}</b></p>" + _table(
+            ["check", "reported", "recomputed", "result"], body, "checks"
         )
 
 
@@ -432,10 +437,11 @@ class DensityResult(_Document):
 
     def _repr_html_(self) -> str:
         body = [
-            [s.get("kernel"), s.get("bandwidth"), s.get("edge")] for s in self._doc.get("surfaces", [])
+            [s.get("kernel"), s.get("bandwidth_spec"), s.get("bandwidth"), s.get("edge")]
+            for s in self._doc.get("surfaces", [])
         ]
         return f"<p><b>{html.escape(self.verdict)}</b></p>" + _table(
-            ["kernel", "bandwidth", "edge"], body, "surfaces"
+            ["kernel", "bandwidth", "value", "edge"], body, "surfaces"
         )
 
 

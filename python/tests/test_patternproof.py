@@ -79,6 +79,8 @@ def test_recheck_json_is_the_cli_output():
     assert result.to_json() == expected
     assert result.consistent is False
     assert result.verdict.startswith("inconsistent")
+    page = result._repr_html_()
+    assert "<td>z from R and n</td><td>z = -4.9</td><td>[-4.515, -4.362]</td><td>not ok</td>" in page
 
 
 def test_recheck_with_points_is_the_cli_output():
@@ -95,6 +97,10 @@ def test_scales_json_is_the_cli_scales_json(tmp_path):
     assert result.to_json() == expected
     assert result.schema == "patternproof.scales/2"
     assert len(result.r) == 50
+    doc = json.loads(expected)
+    tests = [(w["id"], t["p"]) for w in doc["windows"] for t in w["tests"]]
+    assert [(r["window"], r["p"]) for r in result.rows] == tests
+    assert result._repr_html_().count("<td>isotropic</td>") == len(tests)
 
 
 def test_density_json_is_the_cli_density_json(tmp_path):
@@ -107,6 +113,7 @@ def test_density_json_is_the_cli_density_json(tmp_path):
     assert result.verdict == doc["verdict"]["sentence"]
     assert result.surfaces == doc["surfaces"]
     assert len(result.surfaces) == 2 * 2 * 2  # kernels × bandwidths × edges
+    assert result._repr_html_().count("<td>quartic</td>") == 4
 
 
 def test_sites_json_is_the_cli_sites_json(tmp_path):
