@@ -15,7 +15,9 @@ memory carry no system, so they need ``coords="projected"`` (with
 ``unit=``) or ``coords="lonlat"``; nothing is guessed. Boundaries are file
 paths, WKT text, WKB bytes, GeoJSON mappings or objects with
 ``__geo_interface__`` (shapely), one or a list, or a ``{name: geometry}``
-dict; in memory they are in the points' coordinates.
+dict; in memory they are in the points' coordinates. GeoPackage files take
+``layer=``, ``boundary_layer=`` and ``where="FIELD=VALUE"`` as the command
+line takes ``--layer``, ``--boundary-layer`` and ``--where``.
 
 >>> import patternproof
 >>> r = patternproof.audit("demo-data/meadow-burrows.csv",
@@ -482,6 +484,9 @@ def audit(
     coords: str = "auto",
     unit: str = "m",
     drop_duplicates: bool = False,
+    layer: Optional[str] = None,
+    boundary_layer: Optional[str] = None,
+    where: Optional[str] = None,
     buffers: Union[str, Sequence[Any]] = BUFFERS,
     concavity: float = 2.0,
     area: Optional[float] = None,
@@ -509,6 +514,7 @@ def audit(
         coords,
         unit,
         bool(drop_duplicates),
+        (layer, boundary_layer, where),
         _words("buffers", buffers),
         _number("concavity", concavity),
         _words("edges", edges),
@@ -586,6 +592,9 @@ def scales(
     coords: str = "auto",
     unit: str = "m",
     drop_duplicates: bool = False,
+    layer: Optional[str] = None,
+    boundary_layer: Optional[str] = None,
+    where: Optional[str] = None,
     buffers: Union[str, Sequence[Any]] = BUFFERS,
     concavity: float = 2.0,
     edges: Union[str, Sequence[str]] = SCALES_EDGES,
@@ -610,6 +619,7 @@ def scales(
         coords,
         unit,
         bool(drop_duplicates),
+        (layer, boundary_layer, where),
         _words("buffers", buffers),
         _number("concavity", concavity),
         _words("edges", edges),
@@ -631,6 +641,9 @@ def density(
     coords: str = "auto",
     unit: str = "m",
     drop_duplicates: bool = False,
+    layer: Optional[str] = None,
+    boundary_layer: Optional[str] = None,
+    where: Optional[str] = None,
     kernels: Union[str, Sequence[str]] = KERNELS,
     bandwidths: Union[str, Sequence[Any]] = BANDWIDTHS,
     cell: Optional[float] = None,
@@ -646,20 +659,21 @@ def density(
     >>> len(d.surfaces)
     2
     """
-    where = os.fspath(points) if isinstance(points, (str, os.PathLike)) else "<points in memory>"
+    source = os.fspath(points) if isinstance(points, (str, os.PathLike)) else "<points in memory>"
     text, warnings = _native.density(
         _points(points),
         _boundaries(boundaries),
         coords,
         unit,
         bool(drop_duplicates),
+        (layer, boundary_layer, where),
         _words("kernels", kernels),
         _words("bandwidths", bandwidths),
         _number("cell", cell),
         _words("levels", levels),
         _words("edge", edge),
         reference,
-        f"patternproof.density({where!r}) (Python)",
+        f"patternproof.density({source!r}) (Python)",
     )
     _warn(warnings)
     return DensityResult(text, warnings)
@@ -715,6 +729,8 @@ def plan_sites(
     inputs: Union[PathLike, Sequence[PathLike]],
     *,
     site_field: Optional[str] = None,
+    layer: Optional[str] = None,
+    where: Optional[str] = None,
     boundaries: Optional[PathLike] = None,
     boundary_layer: Optional[str] = None,
     boundary_field: str = "name",
@@ -730,6 +746,8 @@ def plan_sites(
         os.fspath(protocol_file),
         [os.fspath(i) for i in inputs],
         site_field,
+        layer,
+        where,
         None if boundaries is None else os.fspath(boundaries),
         boundary_layer,
         boundary_field,
@@ -748,6 +766,8 @@ def sites(
     inputs: Union[PathLike, Sequence[PathLike]],
     *,
     site_field: Optional[str] = None,
+    layer: Optional[str] = None,
+    where: Optional[str] = None,
     boundaries: Optional[PathLike] = None,
     boundary_layer: Optional[str] = None,
     boundary_field: str = "name",
@@ -765,6 +785,8 @@ def sites(
         protocol_file,
         inputs,
         site_field=site_field,
+        layer=layer,
+        where=where,
         boundaries=boundaries,
         boundary_layer=boundary_layer,
         boundary_field=boundary_field,

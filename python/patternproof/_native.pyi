@@ -6,6 +6,7 @@ from typing import List, Optional, Sequence, Tuple, Union
 
 Boundary = Tuple[str, str, Optional[str]]  # (kind "file" | "text", path or text, name)
 Points = Union[str, bytes]  # a path, or native f64 bytes x0 y0 x1 y1 …
+Gpkg = Tuple[Optional[str], Optional[str], Optional[str]]  # layer, boundary layer, where
 
 def audit(
     points: Points,
@@ -13,6 +14,7 @@ def audit(
     coords: str,
     unit: str,
     drop_duplicates: bool,
+    gpkg: Gpkg,
     buffers: Sequence[str],
     concavity: float,
     edges: Sequence[str],
@@ -38,6 +40,7 @@ def scales(
     coords: str,
     unit: str,
     drop_duplicates: bool,
+    gpkg: Gpkg,
     buffers: Sequence[str],
     concavity: float,
     edges: Sequence[str],
@@ -54,6 +57,7 @@ def density(
     coords: str,
     unit: str,
     drop_duplicates: bool,
+    gpkg: Gpkg,
     kernels: Sequence[str],
     bandwidths: Sequence[str],
     cell: Optional[float],
@@ -77,6 +81,8 @@ def plan_sites(
     protocol_file: str,
     inputs: Sequence[str],
     site_field: Optional[str],
+    layer: Optional[str],
+    where: Optional[str],
     boundaries: Optional[str],
     boundary_layer: Optional[str],
     boundary_field: str,

@@ -8,6 +8,7 @@ use crate::errors::setting;
 use geo::{Geometry, MultiPolygon, Polygon};
 use patternproof::memory::{add_boundary, add_boundary_file, input_with_memory, points_in_memory};
 use patternproof::{CoordChoice, Dataset, Error, Input, LoadOptions};
+use patternproof_io::GpkgChoice;
 use std::path::PathBuf;
 use std::str::FromStr;
 
@@ -35,6 +36,35 @@ pub struct Reading {
     pub unit: String,
     /// `drop_duplicates=`.
     pub drop_duplicates: bool,
+    /// `layer=`, `boundary_layer=` and `where=` (GeoPackage files).
+    pub gpkg: GpkgChoice,
+}
+
+/// `layer=`, `boundary_layer=` and `where="FIELD=VALUE"`, as the command
+/// line reads `--layer`, `--boundary-layer` and `--where`.
+pub fn gpkg_choice(
+    layer: Option<String>,
+    boundary_layer: Option<String>,
+    filter: Option<&str>,
+) -> Result<GpkgChoice, Error> {
+    let filter = filter
+        .map(|text| {
+            patternproof_io::geopackage::parse_filter(text).map_err(|message| {
+                // The reader's message is whole ("--where …: … what to do:
+                // …"); split it into the parts a refusal prints the same way.
+                let (head, hint) = message
+                    .split_once("\n  what to do: ")
+                    .unwrap_or((message.as_str(), "give FIELD=VALUE"));
+                let (subject, what) = head.split_once(": ").unwrap_or(("", head));
+                setting(subject, what, hint)
+            })
+        })
+        .transpose()?;
+    Ok(GpkgChoice {
+        layer,
+        boundary_layer,
+        filter,
+    })
 }
 
 /// `coords="auto" | "projected" | "lonlat"`.
@@ -178,7 +208,8 @@ pub fn input(
         coords: reading.coords,
         unit: reading.unit.clone(),
         drop_duplicates: reading.drop_duplicates,
-        ..LoadOptions::default()
+        field: None,
+        gpkg: reading.gpkg.clone(),
     };
     match points {
         Points::File(file) => {
@@ -221,10 +252,22 @@ pub fn input(
                     "remove the repeated rows from the array before the call",
                 ));
             }
+            if reading.gpkg.layer.is_some() || reading.gpkg.filter.is_some() {
+                return Err(setting(
+                    "layer, where",
+                    "apply to points read from a GeoPackage file",
+                    "select the rows before the call, or leave them out",
+                ));
+            }
             let mut data = points_in_memory(xy, reading.coords, &reading.unit)?;
             for b in boundaries {
                 match b {
-                    Boundary::File(f) => add_boundary_file(&mut data, &f, reading.coords)?,
+                    Boundary::File(f) => add_boundary_file(
+                        &mut data,
+                        &f,
+                        reading.gpkg.boundary_layer.as_deref(),
+                        reading.coords,
+                    )?,
                     Boundary::Memory(name, shape) => {
                         add_boundary(&mut data, &name, shape, reading.coords)?
                     }

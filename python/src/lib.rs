@@ -63,11 +63,20 @@ fn hex(text: &str) -> Option<Vec<u8>> {
         .collect()
 }
 
-fn reading(coords: &str, unit: &str, drop_duplicates: bool) -> Result<Reading, Error> {
+/// `layer=`, `boundary_layer=` and `where=` as handed over.
+type Gpkg = (Option<String>, Option<String>, Option<String>);
+
+fn reading(
+    coords: &str,
+    unit: &str,
+    drop_duplicates: bool,
+    (layer, boundary_layer, filter): Gpkg,
+) -> Result<Reading, Error> {
     Ok(Reading {
         coords: inputs::coord_choice(coords)?,
         unit: unit.to_string(),
         drop_duplicates,
+        gpkg: inputs::gpkg_choice(layer, boundary_layer, filter.as_deref())?,
     })
 }
 
@@ -78,7 +87,7 @@ fn json<T: serde::Serialize>(value: &T) -> Result<String, Error> {
 
 /// The nearest-neighbour audit: `report.json` and the loading warnings.
 #[pyfunction]
-#[pyo3(signature = (points, boundaries, coords, unit, drop_duplicates, buffers, concavity, edges, sims, seed, alpha, guard, area))]
+#[pyo3(signature = (points, boundaries, coords, unit, drop_duplicates, gpkg, buffers, concavity, edges, sims, seed, alpha, guard, area))]
 #[allow(clippy::too_many_arguments)]
 fn audit(
     py: Python<'_>,
@@ -87,6 +96,7 @@ fn audit(
     coords: String,
     unit: String,
     drop_duplicates: bool,
+    gpkg: Gpkg,
     buffers: Vec<String>,
     concavity: f64,
     edges: Vec<String>,
@@ -105,7 +115,7 @@ fn audit(
         let alpha = options::alpha(alpha)?;
         let area = options::area(area)?;
         let guard = options::guard(guard)?;
-        let reading = reading(&coords, &unit, drop_duplicates)?;
+        let reading = reading(&coords, &unit, drop_duplicates, gpkg)?;
         let (input, data) = inputs::input(points, boundary_args(boundaries)?, &reading)?;
         let options = AuditOptions {
             windows: WindowOptions {
@@ -182,7 +192,7 @@ fn recheck(
         let f = figures(&n, &given, one_sided)?;
         let (input, warnings): (Option<Input>, Vec<String>) = match points {
             Some(points) => {
-                let reading = reading(&coords, &unit, drop_duplicates)?;
+                let reading = reading(&coords, &unit, drop_duplicates, (None, None, None))?;
                 let (input, data) = inputs::input(points, boundary_args(boundaries)?, &reading)?;
                 (Some(input), data.warnings)
             }
@@ -199,7 +209,7 @@ fn recheck(
 /// Ripley's K across the windows: `scales.json`, the notes on windows
 /// left out, and the loading warnings.
 #[pyfunction]
-#[pyo3(signature = (points, boundaries, coords, unit, drop_duplicates, buffers, concavity, edges, test_edges, rmax, steps, sims, seed, alpha))]
+#[pyo3(signature = (points, boundaries, coords, unit, drop_duplicates, gpkg, buffers, concavity, edges, test_edges, rmax, steps, sims, seed, alpha))]
 #[allow(clippy::too_many_arguments)]
 fn scales(
     py: Python<'_>,
@@ -208,6 +218,7 @@ fn scales(
     coords: String,
     unit: String,
     drop_duplicates: bool,
+    gpkg: Gpkg,
     buffers: Vec<String>,
     concavity: f64,
     edges: Vec<String>,
@@ -232,7 +243,7 @@ fn scales(
         let alpha = options::alpha(alpha)?;
         let rmax = options::rmax(rmax)?;
         let steps = options::steps(steps)?;
-        let reading = reading(&coords, &unit, drop_duplicates)?;
+        let reading = reading(&coords, &unit, drop_duplicates, gpkg)?;
         let (input, data) = inputs::input(points, boundary_args(boundaries)?, &reading)?;
         let options = ScalesOptions {
             corrections,
@@ -257,7 +268,7 @@ fn scales(
 /// Kernel density across kernels, bandwidths and edge handlings:
 /// `density.json` and the warnings.
 #[pyfunction]
-#[pyo3(signature = (points, boundaries, coords, unit, drop_duplicates, kernels, bandwidths, cell, levels, edge, reference, command_line))]
+#[pyo3(signature = (points, boundaries, coords, unit, drop_duplicates, gpkg, kernels, bandwidths, cell, levels, edge, reference, command_line))]
 #[allow(clippy::too_many_arguments)]
 fn density(
     py: Python<'_>,
@@ -266,6 +277,7 @@ fn density(
     coords: String,
     unit: String,
     drop_duplicates: bool,
+    gpkg: Gpkg,
     kernels: Vec<String>,
     bandwidths: Vec<String>,
     cell: Option<f64>,
@@ -286,7 +298,7 @@ fn density(
                 "pass one --boundary (or none for the convex hull of the points)",
             ));
         }
-        let reading = reading(&coords, &unit, drop_duplicates)?;
+        let reading = reading(&coords, &unit, drop_duplicates, gpkg)?;
         let (input, data) = inputs::input(points, boundary_args(boundaries)?, &reading)?;
         let words = options::DensityWords {
             kernels: &kernels,
@@ -429,13 +441,15 @@ fn sites_json(runs: &[SiteRun], protocol: &Protocol, sweep_sims: usize) -> Resul
 
 /// Read a protocol (refused when changed) and load its sites.
 #[pyfunction]
-#[pyo3(signature = (protocol_file, inputs, site_field, boundaries, boundary_layer, boundary_field, coords, unit, drop_duplicates, sweep_sims))]
+#[pyo3(signature = (protocol_file, inputs, site_field, layer, filter, boundaries, boundary_layer, boundary_field, coords, unit, drop_duplicates, sweep_sims))]
 #[allow(clippy::too_many_arguments)]
 fn plan_sites(
     py: Python<'_>,
     protocol_file: PathBuf,
     inputs: Vec<PathBuf>,
     site_field: Option<String>,
+    layer: Option<String>,
+    filter: Option<String>,
     boundaries: Option<PathBuf>,
     boundary_layer: Option<String>,
     boundary_field: String,
@@ -446,7 +460,8 @@ fn plan_sites(
 ) -> PyResult<SitePlan> {
     let run = move || -> Result<SitePlan, Error> {
         let protocol = patternproof::read_verified(&protocol_file)?;
-        let reading = reading(&coords, &unit, drop_duplicates)?;
+        // The boundary layer is the sites source's own, not the loader's.
+        let reading = reading(&coords, &unit, drop_duplicates, (layer, None, filter))?;
         let source = SitesSource {
             inputs,
             site_field,
@@ -457,7 +472,8 @@ fn plan_sites(
                 coords: reading.coords,
                 unit: reading.unit,
                 drop_duplicates,
-                ..patternproof::LoadOptions::default()
+                field: None,
+                gpkg: reading.gpkg,
             },
         };
         let loaded =

@@ -116,6 +116,22 @@ def test_density_json_is_the_cli_density_json(tmp_path):
     assert result._repr_html_().count("<td>quartic</td>") == 4
 
 
+def test_a_geopackage_layer_is_read_as_the_cli_reads_it(tmp_path):
+    gpkg = "reference/gpkg/survey.gpkg"
+    cli("audit", gpkg, "--layer", "plots_utm", "--sims", "99", "--out", str(tmp_path / "g"), "--quiet")
+    expected = (tmp_path / "g" / "report.json").read_text()
+    # The reader's warnings, printed on stderr by the command line, are
+    # Python warnings here and stay on the result.
+    with pytest.warns(UserWarning, match="2 feature\\(s\\) without geometry skipped"):
+        result = patternproof.audit(gpkg, layer="plots_utm", sims=99)
+    assert result.to_json() == expected
+    assert result.warnings == tuple(json.loads(expected)["input"]["warnings"])
+    message = cli_error("audit", gpkg, "--layer", "plots_utm", "--where", "nothing", "--out", str(tmp_path / "n"))
+    with pytest.raises(patternproof.SettingError) as e:
+        patternproof.audit(gpkg, layer="plots_utm", where="nothing")
+    assert str(e.value) == message
+
+
 def test_sites_json_is_the_cli_sites_json(tmp_path):
     protocol = tmp_path / "protocol.json"
     cli("protocol", "new", "--window", "boundary", "--sims", "19", "--out", str(protocol))

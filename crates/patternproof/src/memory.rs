@@ -273,15 +273,17 @@ pub fn add_boundary(
     add_raw(data, &file, raw, choice)
 }
 
-/// Add a boundary file (GeoJSON, WKT or a GeoPackage's only polygon
-/// layer) to points given in memory, read and checked as `--boundary`.
+/// Add a boundary file (GeoJSON, WKT, or a GeoPackage's polygon layer
+/// `layer`, which may be left out when it has only one) to points given
+/// in memory, read and checked as `--boundary`.
 pub fn add_boundary_file(
     data: &mut Dataset,
     file: &Path,
+    layer: Option<&str>,
     choice: CoordChoice,
 ) -> Result<(), Error> {
     let raw = if is_geopackage(file) {
-        patternproof_io::geopackage::read_boundary(file, None, choice)?.raw
+        patternproof_io::geopackage::read_boundary(file, layer, choice)?.raw
     } else {
         read_boundary(file)?
     };
