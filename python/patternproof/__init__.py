@@ -10,7 +10,11 @@ whose ``_repr_html_`` shows the verdict in a notebook. Failures raise a
 subclass of :class:`patternproof.Error` with the command line's message.
 
 Points are a file path (read exactly as the command line reads it), an
-(n, 2) array, or a tuple ``(xs, ys)`` of two sequences. Coordinates in
+(n, 2) array, a tuple ``(xs, ys)`` of two sequences, or a table (a mapping
+of columns, a pandas or polars data frame, a pyarrow table) whose columns
+are named as in a CSV file: x, y or easting, northing with
+``coords="projected"``, lon, lat or longitude, latitude with
+``coords="lonlat"``. Coordinates in
 memory carry no system, so they need ``coords="projected"`` (with
 ``unit=``) or ``coords="lonlat"``; nothing is guessed. Boundaries are file
 paths, WKT text, WKB bytes, GeoJSON mappings or objects with
@@ -162,12 +166,73 @@ def _pack_rows(rows: Iterable[Any]) -> bytes:
     return out.tobytes()
 
 
-def _points(points: Any) -> Union[str, bytes]:
+# Column names of a table's coordinates, by coords=, as the CSV reader
+# names them.
+_COLUMNS = {
+    "projected": (("x", "y"), ("easting", "northing")),
+    "lonlat": (("lon", "lat"), ("longitude", "latitude")),
+}
+
+
+def _column_names(points: Any) -> Optional[list]:
+    """The column names of a table (a mapping of columns, pandas, polars, pyarrow), else None."""
+    if isinstance(points, Mapping):
+        return [str(k) for k in points.keys()]
+    names = getattr(points, "column_names", None)  # pyarrow
+    if names is None and not hasattr(points, "shape"):
+        return None
+    if names is None:
+        names = getattr(points, "columns", None)  # pandas, polars
+    if names is None:
+        return None
+    try:
+        return [str(n) for n in names]
+    except TypeError:
+        return None
+
+
+def _table_points(points: Any, names: list, coords: str) -> bytes:
+    """The x, y columns of a table, chosen by name for ``coords``."""
+    lower = {n.lower(): n for n in names}
+    if coords not in _COLUMNS:
+        raise SettingError(
+            f"points: a table with columns {', '.join(names)} does not say whether they are "
+            "planar coordinates or lon/lat degrees\n"
+            '  what to do: say which with coords="projected" (columns x, y or easting, northing) '
+            'or coords="lonlat" (columns lon, lat or longitude, latitude)'
+        )
+    for xname, yname in _COLUMNS[coords]:
+        if xname in lower and yname in lower:
+            return _points((points[lower[xname]], points[lower[yname]]))
+    wanted = " or ".join(f"{a}, {b}" for a, b in _COLUMNS[coords])
+    raise SettingError(
+        f"points: the table has no columns {wanted} (it has {', '.join(names)})\n"
+        "  what to do: rename the coordinate columns, or pass an (n, 2) array"
+    )
+
+
+def _points(points: Any, coords: str = "auto") -> Union[str, bytes]:
     """A file path as text, or the coordinates as native f64 bytes x0 y0 x1 y1 …"""
     if isinstance(points, (str, os.PathLike)):
         return os.fspath(points)
+    names = _column_names(points)
+    if names is not None:
+        lower = {n.lower() for n in names}
+        known = any(a in lower and b in lower for pairs in _COLUMNS.values() for a, b in pairs)
+        if known or isinstance(points, Mapping) or not hasattr(points, "__array__"):
+            return _table_points(points, names, coords)
     if isinstance(points, tuple) and len(points) == 2:
         xs, ys = points
+        if hasattr(xs, "__array__") or hasattr(ys, "__array__"):
+            import numpy as np
+
+            try:
+                xs, ys = np.asarray(xs, dtype=np.float64), np.asarray(ys, dtype=np.float64)
+            except (TypeError, ValueError):
+                raise _not_pairs() from None
+            if xs.ndim != 1 or xs.shape != ys.shape:
+                raise _not_pairs()
+            return np.ascontiguousarray(np.column_stack([xs, ys])).tobytes()
         try:
             xs, ys = list(xs), list(ys)
         except TypeError:
@@ -509,7 +574,7 @@ def audit(
     200
     """
     text, warnings = _native.audit(
-        _points(points),
+        _points(points, coords),
         _boundaries(boundaries),
         coords,
         unit,
@@ -575,7 +640,7 @@ def recheck(
         str(n),
         given,
         bool(one_sided),
-        None if points is None else _points(points),
+        None if points is None else _points(points, coords),
         _boundaries(boundaries),
         coords,
         unit,
@@ -614,7 +679,7 @@ def scales(
     'patternproof.scales/2'
     """
     text, notes, warnings = _native.scales(
-        _points(points),
+        _points(points, coords),
         _boundaries(boundaries),
         coords,
         unit,
@@ -661,7 +726,7 @@ def density(
     """
     source = os.fspath(points) if isinstance(points, (str, os.PathLike)) else "<points in memory>"
     text, warnings = _native.density(
-        _points(points),
+        _points(points, coords),
         _boundaries(boundaries),
         coords,
         unit,

@@ -171,6 +171,33 @@ def test_numpy_list_and_two_sequences_give_the_same_report():
     assert memory["provenance"]["inputs"] == from_file["provenance"]["inputs"][1:]
 
 
+def test_a_table_of_named_columns_gives_the_same_report():
+    xy = np.array(demo_xy())
+    kwargs = dict(boundaries=[BOUNDARY], sims=99)
+    from_array = patternproof.audit(xy, coords="projected", **kwargs).to_json()
+    # A mapping of columns stands for any table (pandas, polars, pyarrow):
+    # the columns are picked by name, as the CSV reader names them.
+    table = {"burrow": [f"B{i}" for i in range(len(xy))], "X": xy[:, 0], "Y": list(xy[:, 1])}
+    assert patternproof.audit(table, coords="projected", **kwargs).to_json() == from_array
+    with pytest.raises(patternproof.SettingError) as e:
+        patternproof.audit(table, **kwargs)
+    assert 'coords="projected" (columns x, y or easting, northing)' in str(e.value)
+    with pytest.raises(patternproof.SettingError) as e:
+        patternproof.audit(table, coords="lonlat", **kwargs)
+    assert "no columns lon, lat or longitude, latitude (it has burrow, X, Y)" in str(e.value)
+
+
+def test_pandas_and_pyarrow_tables_give_the_numpy_report():
+    import pandas as pd
+    import pyarrow as pa
+
+    frame = pd.read_csv(REPO / POINTS)
+    kwargs = dict(boundaries=[BOUNDARY], coords="projected", sims=99)
+    from_numpy = patternproof.audit(frame[["x", "y"]].to_numpy(), **kwargs).to_json()
+    assert patternproof.audit(frame, **kwargs).to_json() == from_numpy
+    assert patternproof.audit(pa.Table.from_pandas(frame), **kwargs).to_json() == from_numpy
+
+
 def test_numbers_in_memory_are_never_guessed():
     with pytest.raises(patternproof.SettingError) as e:
         patternproof.audit(np.array(demo_xy()))
