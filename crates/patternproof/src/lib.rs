@@ -70,6 +70,7 @@ pub mod cost;
 mod density;
 mod error;
 mod input;
+pub mod memory;
 pub mod options;
 mod progress;
 mod protocol;

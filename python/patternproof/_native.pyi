@@ -1,0 +1,92 @@
+"""Type stubs of the compiled module. The public API is in ``patternproof``;
+these functions take the options already normalised and return the JSON
+document with the warnings the command line prints."""
+
+from typing import List, Optional, Sequence, Tuple, Union
+
+Boundary = Tuple[str, str, Optional[str]]  # (kind "file" | "text", path or text, name)
+Points = Union[str, bytes]  # a path, or native f64 bytes x0 y0 x1 y1 …
+Gpkg = Tuple[Optional[str], Optional[str], Optional[str]]  # layer, boundary layer, where
+
+def audit(
+    points: Points,
+    boundaries: Sequence[Boundary],
+    coords: str,
+    unit: str,
+    drop_duplicates: bool,
+    gpkg: Gpkg,
+    buffers: Sequence[str],
+    concavity: float,
+    edges: Sequence[str],
+    sims: int,
+    seed: int,
+    alpha: float,
+    guard: Optional[float],
+    area: Optional[float],
+) -> Tuple[str, List[str]]: ...
+def recheck(
+    n: str,
+    given: Sequence[Tuple[str, str]],
+    one_sided: bool,
+    points: Optional[Points],
+    boundaries: Sequence[Boundary],
+    coords: str,
+    unit: str,
+    drop_duplicates: bool,
+) -> Tuple[str, List[str]]: ...
+def scales(
+    points: Points,
+    boundaries: Sequence[Boundary],
+    coords: str,
+    unit: str,
+    drop_duplicates: bool,
+    gpkg: Gpkg,
+    buffers: Sequence[str],
+    concavity: float,
+    edges: Sequence[str],
+    test_edges: Sequence[str],
+    rmax: Optional[float],
+    steps: int,
+    sims: int,
+    seed: int,
+    alpha: float,
+) -> Tuple[str, List[str], List[str]]: ...
+def density(
+    points: Points,
+    boundaries: Sequence[Boundary],
+    coords: str,
+    unit: str,
+    drop_duplicates: bool,
+    gpkg: Gpkg,
+    kernels: Sequence[str],
+    bandwidths: Sequence[str],
+    cell: Optional[float],
+    levels: Sequence[str],
+    edge: Sequence[str],
+    reference: str,
+) -> Tuple[str, List[str]]: ...
+
+class SiteRunHandle:
+    def row_json(self) -> str: ...
+
+class SitePlan:
+    def names(self) -> List[str]: ...
+    def warnings(self) -> List[str]: ...
+    def run_site(self, index: int) -> SiteRunHandle: ...
+    def combine(self, runs: Sequence[SiteRunHandle]) -> str: ...
+    def run_all(self) -> str: ...
+
+def plan_sites(
+    protocol_file: str,
+    inputs: Sequence[str],
+    site_field: Optional[str],
+    layer: Optional[str],
+    where: Optional[str],
+    boundaries: Optional[str],
+    boundary_layer: Optional[str],
+    boundary_field: str,
+    coords: str,
+    unit: str,
+    drop_duplicates: bool,
+    sweep_sims: int,
+) -> SitePlan: ...

@@ -1,0 +1,301 @@
+//! The options of each job, checked with the command line's words: a
+//! bad value names the flag it stands for (`alpha` is `--alpha`), what is
+//! wrong and what to do, exactly as `patternproof` prints it.
+
+use crate::errors::setting;
+use patternproof::{BufferRule, Correction, Edge, Error};
+
+/// `--buffers 0.5x,1x,2x` or `--buffers 5,10`.
+pub fn buffers(words: &[String]) -> Result<Vec<BufferRule>, Error> {
+    let hint = "give distances in the unit (e.g. 5,10) or multiples of the mean nearest-neighbour distance (e.g. 0.5x,1x)";
+    words
+        .iter()
+        .map(|w| {
+            let w = w.trim();
+            let (num, multiple) = match w.strip_suffix('x') {
+                Some(n) => (n, true),
+                None => (w, false),
+            };
+            let rule = num.parse::<f64>().ok().map(|v| {
+                if multiple {
+                    BufferRule::MeanNnMultiple(v)
+                } else {
+                    BufferRule::Distance(v)
+                }
+            });
+            match rule.map(|r| (r, r.problem())) {
+                Some((r, None)) => Ok(r),
+                Some((_, Some(problem))) => {
+                    Err(setting("--buffers", format!("`{w}` is {problem}"), hint))
+                }
+                None => Err(setting(
+                    "--buffers",
+                    format!("`{w}` is not a positive distance"),
+                    hint,
+                )),
+            }
+        })
+        .collect()
+}
+
+/// `--concavity`.
+pub fn concavity(c: f64) -> Result<f64, Error> {
+    if c > 0.0 && c.is_finite() {
+        Ok(c)
+    } else {
+        Err(setting(
+            format!("--concavity {c}"),
+            "must be a positive number",
+            "leave it out for geo's default 2.0",
+        ))
+    }
+}
+
+/// `--edges none,donnelly,…` of the nearest-neighbour audit.
+pub fn edges(words: &[String]) -> Result<Vec<Edge>, Error> {
+    let mut out = Vec::new();
+    for w in words {
+        let e = Edge::parse(w).ok_or_else(|| {
+            setting(
+                "--edges",
+                format!("`{w}` is not an edge handling"),
+                "choose from none, donnelly, border, toroidal, simulation",
+            )
+        })?;
+        if !out.contains(&e) {
+            out.push(e);
+        }
+    }
+    Ok(out)
+}
+
+/// α strictly between 0 and 1.
+pub fn alpha(alpha: f64) -> Result<f64, Error> {
+    if alpha > 0.0 && alpha < 1.0 {
+        Ok(alpha)
+    } else {
+        Err(setting(
+            format!("--alpha {alpha}"),
+            "the significance level must lie strictly between 0 and 1",
+            "use e.g. --alpha 0.05",
+        ))
+    }
+}
+
+/// `--area`: positive, and within what a map can hold.
+pub fn area(area: Option<f64>) -> Result<Option<f64>, Error> {
+    use patternproof::options::{MAX_AREA, MIN_AREA};
+    let Some(a) = area else { return Ok(None) };
+    if !(a > 0.0 && a.is_finite()) {
+        return Err(setting(
+            format!("--area {a}"),
+            "the area must be a positive number (in the unit squared)",
+            "give the study area the analysis used, e.g. --area 12500",
+        ));
+    }
+    if !(MIN_AREA..=MAX_AREA).contains(&a) {
+        return Err(setting(
+            format!("--area {a:e}"),
+            format!(
+                "the area must lie between {MIN_AREA:e} and {MAX_AREA:e} (in the unit squared); beyond that no map in any unit reaches (the Earth's surface is 5.1·10¹⁴ m²), and floating point cannot measure the intensities"
+            ),
+            "check the number and its unit, and give the study area the analysis used, e.g. --area 12500",
+        ));
+    }
+    Ok(Some(a))
+}
+
+/// `--guard`: a non-negative distance.
+pub fn guard(g: Option<f64>) -> Result<Option<f64>, Error> {
+    match g {
+        Some(g) if !(g >= 0.0 && g.is_finite()) => Err(setting(
+            format!("--guard {g}"),
+            "the guard width must be a non-negative distance",
+            "give a width in the data's unit, or leave it out for the default",
+        )),
+        g => Ok(g),
+    }
+}
+
+/// `--rmax` of `scales`.
+pub fn rmax(r: Option<f64>) -> Result<Option<f64>, Error> {
+    match r {
+        Some(r) if !(r > 0.0 && r.is_finite()) => Err(setting(
+            format!("--rmax {r}"),
+            "the largest distance must be a positive number in the data's unit",
+            "give e.g. --rmax 40, or leave it out for a quarter of the window's shorter side",
+        )),
+        r => Ok(r),
+    }
+}
+
+/// Largest accepted `--steps` (as the command line).
+const MAX_STEPS: usize = 10_000;
+
+/// `--steps` of `scales`.
+pub fn steps(steps: usize) -> Result<usize, Error> {
+    if steps == 0 || steps > MAX_STEPS {
+        return Err(setting(
+            format!("--steps {steps}"),
+            format!("the distance grid needs between 1 and {MAX_STEPS} steps"),
+            "use e.g. --steps 50",
+        ));
+    }
+    Ok(steps)
+}
+
+/// `--edges` / `--test-edges` of `scales`.
+pub fn corrections(flag: &str, words: &[String]) -> Result<Vec<Correction>, Error> {
+    let mut out = Vec::new();
+    for w in words {
+        let c = Correction::parse(w).ok_or_else(|| {
+            setting(
+                flag,
+                format!("`{w}` is not an edge correction for K"),
+                "choose from border, isotropic, translation",
+            )
+        })?;
+        if !out.contains(&c) {
+            out.push(c);
+        }
+    }
+    if out.is_empty() {
+        return Err(setting(
+            flag,
+            "no correction given",
+            "name at least one of border, isotropic, translation",
+        ));
+    }
+    Ok(out)
+}
+
+/// The choices of `density`, read as `patternproof density` reads its
+/// flags.
+pub struct DensityWords<'a> {
+    /// `--kernels`.
+    pub kernels: &'a [String],
+    /// `--bandwidths`.
+    pub bandwidths: &'a [String],
+    /// `--cell`.
+    pub cell: Option<f64>,
+    /// `--levels`, in per cent.
+    pub levels: &'a [String],
+    /// `--edge`.
+    pub edges: &'a [String],
+    /// `--reference`.
+    pub reference: &'a str,
+}
+
+fn bad(option: &str, what: String, todo: &str) -> Error {
+    setting(option, what, todo)
+}
+
+/// The density configuration of `w` for coordinates in `unit`.
+pub fn density(w: &DensityWords<'_>, unit: &str) -> Result<patternproof::DensityConfig, Error> {
+    use patternproof::options::{FIXED_RANGE, MULTIPLE_RANGE};
+    use patternproof::{BandwidthSpec, DensityEdge, Kernel};
+    let mut ks = Vec::new();
+    for k in w.kernels {
+        let kernel = Kernel::parse(k).ok_or_else(|| {
+            bad(
+                "--kernels",
+                format!("unknown kernel {k:?}"),
+                "use gaussian, quartic, epanechnikov, triangular or uniform",
+            )
+        })?;
+        if !ks.contains(&kernel) {
+            ks.push(kernel);
+        }
+    }
+    if ks.is_empty() {
+        ks = patternproof::options::ALL_KERNELS.to_vec();
+    }
+    let mut bs = Vec::new();
+    for b in w.bandwidths {
+        let spec = BandwidthSpec::parse(b).ok_or_else(|| {
+            bad(
+                "--bandwidths",
+                format!("{b:?} is not a bandwidth"),
+                &format!(
+                    "use scott, lcv, a multiple of Scott's value such as 0.5x (from {:e}x to {:e}x), or a number in the unit (from {:e} to {:e})",
+                    MULTIPLE_RANGE.0, MULTIPLE_RANGE.1, FIXED_RANGE.0, FIXED_RANGE.1
+                ),
+            )
+        })?;
+        if !bs.contains(&spec) {
+            bs.push(spec);
+        }
+    }
+    let mut edges = Vec::new();
+    for e in w.edges {
+        let edge = DensityEdge::parse(e).ok_or_else(|| {
+            bad(
+                "--edge",
+                format!("unknown edge handling {e:?}"),
+                "use none, uniform or diggle",
+            )
+        })?;
+        if !edges.contains(&edge) {
+            edges.push(edge);
+        }
+    }
+    let mut levels = Vec::new();
+    for l in w.levels {
+        let v: f64 = l.trim().trim_end_matches('%').parse().map_err(|_| {
+            bad(
+                "--levels",
+                format!("{l:?} is not a number"),
+                "give percentages between 0 and 100, e.g. --levels 50,95",
+            )
+        })?;
+        if !(v > 0.0 && v < 100.0) {
+            return Err(bad(
+                "--levels",
+                format!("{v} is outside (0, 100)"),
+                "give percentages strictly between 0 and 100",
+            ));
+        }
+        levels.push(v / 100.0);
+    }
+    levels.sort_by(f64::total_cmp);
+    levels.dedup();
+    if let Some(c) = w.cell
+        && !(c.is_finite() && c > 0.0)
+    {
+        return Err(bad(
+            "--cell",
+            format!("{c} is not a positive cell size"),
+            "give the cell side in the unit of the coordinates",
+        ));
+    }
+    let not_reference = || {
+        bad(
+            "--reference",
+            format!("{:?} is not KERNEL:BANDWIDTH[:EDGE]", w.reference),
+            "e.g. --reference gaussian:scott or quartic:lcv:uniform",
+        )
+    };
+    let parts: Vec<&str> = w.reference.split(':').collect();
+    let reference = match parts.as_slice() {
+        [k, b] | [k, b, _] => {
+            let e = match parts.get(2) {
+                Some(e) => DensityEdge::parse(e),
+                None => Some(edges.first().copied().unwrap_or(DensityEdge::None)),
+            };
+            match (Kernel::parse(k), BandwidthSpec::parse(b), e) {
+                (Some(k), Some(b), Some(e)) => (k, b, e),
+                _ => return Err(not_reference()),
+            }
+        }
+        _ => return Err(not_reference()),
+    };
+    Ok(patternproof::DensityConfig {
+        kernels: ks,
+        bandwidths: bs,
+        edges,
+        levels,
+        cell: w.cell,
+        reference,
+        unit: unit.to_string(),
+    })
+}
