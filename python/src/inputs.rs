@@ -49,8 +49,14 @@ pub fn gpkg_choice(
 ) -> Result<GpkgChoice, Error> {
     let filter = filter
         .map(|text| {
-            // The reader's refusal is whole (flag, what, what to do).
-            patternproof::options::parse_filter(text).map_err(Error::from)
+            // An option, so a SettingError, in the reader's words.
+            patternproof::options::parse_filter(text).map_err(|e| {
+                let subject = match &e.location {
+                    Some(place) => format!("{}, {place}", e.file.display()),
+                    None => e.file.display().to_string(),
+                };
+                setting(subject, e.what, e.hint)
+            })
         })
         .transpose()?;
     Ok(GpkgChoice {
