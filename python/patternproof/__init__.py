@@ -40,7 +40,7 @@ import operator
 import os
 import warnings as _warnings
 from array import array
-from typing import Any, Iterable, Mapping, Optional, Sequence, Union
+from typing import Any, Iterable, List, Mapping, Optional, Sequence, Union
 
 from . import _native
 from .errors import (
@@ -352,6 +352,38 @@ class AuditResult(_Document):
         """The overall verdict across windows and edge handlings, in words."""
         return self._doc["summary"]["verdict"]
 
+    def write_report(
+        self,
+        dir: PathLike,
+        *,
+        force: bool = False,
+        no_map: bool = False,
+        picture_window: Optional[str] = None,
+    ) -> List[str]:
+        """Write the report folder ``patternproof audit --out DIR`` writes
+        (``report.json``, the tables, the pictures, ``windows.geojson``,
+        ``windows.gpkg``, ``index.html``), all or nothing; the page names
+        this Python call as its command. ``force`` replaces an earlier
+        report there (only one this tool wrote). Returns the file names.
+
+        >>> import tempfile, os
+        >>> r = audit("demo-data/meadow-burrows.csv", ["demo-data/meadow-boundary.geojson"], sims=19)
+        >>> out = os.path.join(tempfile.mkdtemp(), "report")
+        >>> "report.json" in r.write_report(out)
+        True
+        """
+        folder = getattr(self, "_folder", None)
+        if folder is None:
+            raise SettingError("this result has no report folder to write (it was not made by audit())")
+        target = os.fspath(dir)
+        return folder.write(
+            target,
+            bool(force),
+            bool(no_map),
+            picture_window,
+            f"{self._call}.write_report({target!r}) in Python",
+        )
+
     @property
     def n(self) -> int:
         """Points analysed."""
@@ -575,7 +607,7 @@ def audit(
     >>> r.n
     200
     """
-    text, warnings = _native.audit(
+    text, warnings, folder = _native.audit(
         _points(points, coords),
         _boundaries(boundaries),
         coords,
@@ -592,7 +624,14 @@ def audit(
         _number("area", area),
     )
     _warn(warnings)
-    return AuditResult(text, warnings)
+    result = AuditResult(text, warnings)
+    result._folder = folder
+    result._call = (
+        f"patternproof.audit({os.fspath(points)!r}, …)"
+        if isinstance(points, (str, os.PathLike))
+        else "patternproof.audit(<points in memory>, …)"
+    )
+    return result
 
 
 def recheck(

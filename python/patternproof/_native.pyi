@@ -23,7 +23,18 @@ def audit(
     alpha: float,
     guard: Optional[float],
     area: Optional[float],
-) -> Tuple[str, List[str]]: ...
+) -> Tuple[str, List[str], AuditFolder]: ...
+
+class AuditFolder:
+    def write(
+        self,
+        dir: str,
+        force: bool,
+        no_map: bool,
+        picture_window: Optional[str],
+        command_line: str,
+    ) -> List[str]: ...
+
 def recheck(
     n: str,
     given: Sequence[Tuple[str, str]],

@@ -85,7 +85,115 @@ fn json<T: serde::Serialize>(value: &T) -> Result<String, Error> {
         .map_err(|e| Error::Internal(format!("could not write the JSON: {e}")))
 }
 
-/// The nearest-neighbour audit: `report.json` and the loading warnings.
+/// What an audit's report folder needs besides its document: the points
+/// in the plane they were measured in, and that plane.
+#[pyclass(module = "patternproof._native", frozen)]
+pub struct AuditFolder {
+    report: patternproof::AuditReport,
+    points: Vec<[f64; 2]>,
+    /// The centre of the equal-area plane of lon/lat input.
+    projection: Option<(f64, f64)>,
+    srs: patternproof::SpatialRef,
+}
+
+#[pymethods]
+impl AuditFolder {
+    /// Write the report folder the command line writes for the same run
+    /// into `dir`, all or nothing; `command_line` is what its page shows
+    /// as the command. Returns the names of the files written.
+    #[pyo3(signature = (dir, force, no_map, picture_window, command_line))]
+    fn write(
+        &self,
+        py: Python<'_>,
+        dir: PathBuf,
+        force: bool,
+        no_map: bool,
+        picture_window: Option<String>,
+        command_line: String,
+    ) -> PyResult<Vec<String>> {
+        py.detach(|| self.write_folder(&dir, force, no_map, picture_window, command_line))
+            .map_err(to_py)
+    }
+}
+
+impl AuditFolder {
+    fn write_folder(
+        &self,
+        dir: &std::path::Path,
+        force: bool,
+        no_map: bool,
+        picture_window: Option<String>,
+        command_line: String,
+    ) -> Result<Vec<String>, Error> {
+        use patternproof_report::{
+            FolderError, Plane, RenderChoices, RenderError, RunContext, WriteOptions, audit_folder,
+            write_folder,
+        };
+        let projection = match self.projection {
+            Some((lon0, lat0)) => Some(
+                patternproof::Projection::centred_at(lon0, lat0).ok_or_else(|| {
+                    Error::Internal(format!("no projection centred at {lon0}, {lat0}"))
+                })?,
+            ),
+            None => None,
+        };
+        let unproject = projection
+            .as_ref()
+            .map(|p| move |x: f64, y: f64| p.inverse(x, y));
+        let plane = Plane {
+            points: &self.points,
+            unproject: unproject
+                .as_ref()
+                .map(|f| f as &(dyn Fn(f64, f64) -> _ + Sync)),
+            srs: &self.srs,
+        };
+        let choices = RenderChoices {
+            picture_window,
+            no_map,
+            scales: None,
+        };
+        let run = RunContext {
+            command_line,
+            stamp: None,
+            protocol: None,
+        };
+        // The command line's words for the same refusals.
+        let folder = audit_folder(&self.report, plane, &choices, &run).map_err(|e| match e {
+            RenderError::UnknownWindow { id, known } => setting(
+                format!("picture_window={id:?}"),
+                "no window has this id",
+                format!("choose one of {}", known.join(", ")),
+            ),
+            RenderError::NoSimulations { id } => setting(
+                format!("picture_window={id:?}"),
+                "this window has no simulations (simulations need an outline and sims above 0)",
+                "choose a window with an outline, or leave the option out",
+            ),
+            e => Error::Internal(e.to_string()),
+        })?;
+        let options = if force {
+            WriteOptions::FORCE
+        } else {
+            WriteOptions::KEEP
+        };
+        match write_folder(dir, &folder, options) {
+            Ok(_) => Ok(folder.names().map(str::to_string).collect()),
+            Err(FolderError::BadName(n)) => Err(Error::Internal(format!(
+                "the report has a file named `{n}`, which is not a plain relative path"
+            ))),
+            Err(e) => {
+                let text = e.to_string();
+                let (what, hint) = text
+                    .split_once("\n  what to do: ")
+                    .unwrap_or((text.as_str(), "choose another folder, or pass force=True"));
+                Err(setting("", what, hint))
+            }
+        }
+    }
+}
+
+/// The nearest-neighbour audit: `report.json`, the loading warnings and
+/// what its report folder needs.
 #[pyfunction]
 #[pyo3(signature = (points, boundaries, coords, unit, drop_duplicates, gpkg, buffers, concavity, edges, sims, seed, alpha, guard, area))]
 #[allow(clippy::too_many_arguments)]
@@ -105,9 +213,9 @@ fn audit(
     alpha: f64,
     guard: Option<f64>,
     area: Option<f64>,
-) -> PyResult<Document> {
+) -> PyResult<(String, Vec<String>, AuditFolder)> {
     let points = points_arg(points)?;
-    let run = move || -> Result<Document, Error> {
+    let run = move || -> Result<(String, Vec<String>, AuditFolder), Error> {
         // The command line's order: options first, then the files.
         let buffers = options::buffers(&buffers)?;
         let concavity = options::concavity(concavity)?;
@@ -136,7 +244,13 @@ fn audit(
             .map_err(|e| Error::Internal(format!("could not write report.json: {e}")))?;
         let text = String::from_utf8(buf)
             .map_err(|e| Error::Internal(format!("report.json is not UTF-8: {e}")))?;
-        Ok((text, data.warnings))
+        let folder = AuditFolder {
+            points: data.points.clone(),
+            projection: data.projection.as_ref().map(|p| (p.lon0, p.lat0)),
+            srs: data.plane_srs(),
+            report,
+        };
+        Ok((text, data.warnings, folder))
     };
     py.detach(run).map_err(to_py)
 }
@@ -489,6 +603,7 @@ fn plan_sites(
 #[pymodule]
 fn _native(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(audit, m)?)?;
+    m.add_class::<AuditFolder>()?;
     m.add_function(wrap_pyfunction!(recheck, m)?)?;
     m.add_function(wrap_pyfunction!(scales, m)?)?;
     m.add_function(wrap_pyfunction!(density, m)?)?;

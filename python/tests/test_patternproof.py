@@ -7,6 +7,7 @@ same call, and every message the one it prints.
 """
 
 import json
+import re
 import os
 import subprocess
 from pathlib import Path
@@ -55,6 +56,36 @@ def demo_xy():
 
 
 # ----------------------------------------------------------- same bytes
+
+
+def test_write_report_writes_the_cli_folder(tmp_path):
+    cli("audit", POINTS, "--boundary", BOUNDARY, "--sims", "99", "--out", str(tmp_path / "cli"), "--quiet")
+    result = patternproof.audit(POINTS, boundaries=[BOUNDARY], sims=99)
+    names = result.write_report(tmp_path / "py")
+    made = sorted(p.name for p in (tmp_path / "py").iterdir())
+    assert made == sorted(p.name for p in (tmp_path / "cli").iterdir())
+    assert sorted(names) == sorted(n for n in made if n != ".patternproof")
+    for name in made:
+        a = (tmp_path / "cli" / name).read_bytes()
+        b = (tmp_path / "py" / name).read_bytes()
+        if name in ("index.html", ".patternproof"):
+            continue
+        assert a == b, name
+    # The page differs only in the command it names.
+    strip = lambda page: re.sub(r"<pre>[^<]*</pre>", "<pre></pre>", page)
+    cli_page = (tmp_path / "cli" / "index.html").read_text()
+    py_page = (tmp_path / "py" / "index.html").read_text()
+    assert strip(cli_page) == strip(py_page)
+    assert "write_report(" in py_page
+    # A second write needs force=True, in the command line's words.
+    with pytest.raises(patternproof.SettingError) as e:
+        result.write_report(tmp_path / "py")
+    assert "what to do:" in str(e.value)
+    assert "report.json" in result.write_report(tmp_path / "py", force=True)
+    with pytest.raises(patternproof.SettingError) as e:
+        result.write_report(tmp_path / "other", picture_window="nowhere")
+    assert str(e.value).startswith('picture_window="nowhere": no window has this id')
+    assert not (tmp_path / "other").exists()
 
 
 def test_audit_json_is_the_cli_report_json(tmp_path):

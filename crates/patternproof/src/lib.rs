@@ -99,7 +99,7 @@ pub use patternproof_density::Config as DensityConfig;
 pub use patternproof_density::bandwidth::BandwidthSpec;
 pub use patternproof_density::edge::DensityEdge;
 pub use patternproof_density::kernels::Kernel;
-pub use patternproof_io::{CoordChoice, Dataset, InputError, LoadOptions, Projection};
+pub use patternproof_io::{CoordChoice, Dataset, InputError, LoadOptions, Projection, SpatialRef};
 pub use patternproof_protocol::Protocol;
 pub use patternproof_recheck::{Figures, Recheck};
 pub use patternproof_scales::{Correction, ScalesOptions, ScalesRun};
