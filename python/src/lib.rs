@@ -9,10 +9,10 @@
 
 mod errors;
 mod inputs;
-mod options;
 
 use errors::{setting, to_py};
 use inputs::{Boundary, Points, Reading};
+use patternproof::words as options;
 use patternproof::{
     AuditOptions, Error, Figures, Input, LoadedSites, Protocol, ScalesOptions, SiteRun,
     SitesOptions, SitesSource, WindowOptions,

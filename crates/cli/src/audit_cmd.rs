@@ -2,14 +2,15 @@
 
 use crate::args::AuditArgs;
 use crate::budget;
-use crate::common::{check_alpha, command_line, load, print_reading};
+use crate::common::{command_line, load, print_reading};
 use crate::fail::Failure;
 use crate::progress::Progress;
 use crate::scales_cmd;
 use patternproof::Dataset;
 use patternproof::ScalesJob;
 use patternproof::cost::audit as simulation;
-use patternproof::options::{AuditOptions, Edge, MAX_AREA, MIN_AREA, ScalesOptions, WindowOptions};
+use patternproof::options::{AuditOptions, ScalesOptions, WindowOptions};
+use patternproof::words;
 use patternproof_report::{
     AuditReport, OutputFolder, Plane, RenderChoices, RunContext, audit_folder, table,
 };
@@ -17,29 +18,10 @@ use patternproof_report::{
 /// Run the command.
 pub fn run(a: &AuditArgs) -> Result<(), Failure> {
     let (buffers, concavity) = a.window.checked()?;
-    let edges = parse_edges(&a.edges)?;
-    check_alpha(a.alpha)?;
-    if let Some(area) = a.area
-        && !(area > 0.0 && area.is_finite())
-    {
-        return Err(Failure::Input(format!(
-            "--area {area}: the area must be a positive number (in the unit squared)\n  what to do: give the study area the analysis used, e.g. --area 12500"
-        )));
-    }
-    if let Some(area) = a.area
-        && !(MIN_AREA..=MAX_AREA).contains(&area)
-    {
-        return Err(Failure::Input(format!(
-            "--area {area:e}: the area must lie between {MIN_AREA:e} and {MAX_AREA:e} (in the unit squared); beyond that no map in any unit reaches (the Earth's surface is 5.1·10¹⁴ m²), and floating point cannot measure the intensities\n  what to do: check the number and its unit, and give the study area the analysis used, e.g. --area 12500"
-        )));
-    }
-    if let Some(g) = a.guard
-        && !(g >= 0.0 && g.is_finite())
-    {
-        return Err(Failure::Input(format!(
-            "--guard {g}: the guard width must be a non-negative distance\n  what to do: give a width in the data's unit, or leave it out for the default"
-        )));
-    }
+    let edges = words::edges(&a.edges)?;
+    words::alpha(a.alpha)?;
+    words::area(a.area)?;
+    words::guard(a.guard)?;
     if let Some(r) = a.scales_rmax
         && !(r > 0.0 && r.is_finite())
     {
@@ -150,22 +132,6 @@ fn check_budget(
         budget::check_time("--sims", a.sims, seconds, threads, a.quiet)?;
     }
     Ok(())
-}
-
-/// `--edges none,donnelly,…`.
-pub fn parse_edges(words: &[String]) -> Result<Vec<Edge>, Failure> {
-    let mut out = Vec::new();
-    for w in words {
-        let e = Edge::parse(w).ok_or_else(|| {
-            Failure::Input(format!(
-                "--edges: `{w}` is not an edge handling\n  what to do: choose from none, donnelly, border, toroidal, simulation"
-            ))
-        })?;
-        if !out.contains(&e) {
-            out.push(e);
-        }
-    }
-    Ok(out)
 }
 
 fn print_summary(report: &AuditReport, out: &std::path::Path, folder: &OutputFolder) {

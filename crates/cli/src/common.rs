@@ -1,6 +1,6 @@
 //! What several commands share: reading the inputs with the shared flags
-//! and saying how they were read, the command line for a report's page,
-//! and the significance level's check.
+//! and saying how they were read, and the command line for a report's
+//! page.
 
 use crate::args::InputArgs;
 use crate::fail::Failure;
@@ -67,15 +67,4 @@ pub fn gpkg_choice(
         boundary_layer,
         filter: filter.map(parse_filter).transpose()?,
     })
-}
-
-/// α strictly between 0 and 1.
-pub fn check_alpha(alpha: f64) -> Result<(), Failure> {
-    if alpha > 0.0 && alpha < 1.0 {
-        Ok(())
-    } else {
-        Err(Failure::Input(format!(
-            "--alpha {alpha}: the significance level must lie strictly between 0 and 1\n  what to do: use e.g. --alpha 0.05"
-        )))
-    }
 }

@@ -4,10 +4,7 @@
 
 use crate::fail::Failure;
 use clap::Args;
-use patternproof::options::{
-    ALL_KERNELS, BandwidthSpec, DensityConfig as Config, DensityEdge, FIXED_RANGE, Kernel,
-    MULTIPLE_RANGE,
-};
+use patternproof::options::DensityConfig as Config;
 use patternproof_report::RunContext;
 use patternproof_report::density::RunInfo;
 use patternproof_report::html::shell_quote;
@@ -66,135 +63,26 @@ pub struct DensityArgs {
     pub output: crate::args::OutArgs,
 }
 
-fn bad(option: &str, what: String, todo: &str) -> Failure {
-    Failure::Input(format!("{option}: {what}\n  what to do: {todo}"))
-}
-
+/// The flags as the facade's words read them.
 fn parse_config(a: &DensityArgs, unit: &str) -> Result<Config, Failure> {
-    let mut ks = Vec::new();
-    for k in &a.kernels {
-        let kernel = Kernel::parse(k).ok_or_else(|| {
-            bad(
-                "--kernels",
-                format!("unknown kernel {k:?}"),
-                "use gaussian, quartic, epanechnikov, triangular or uniform",
-            )
-        })?;
-        if !ks.contains(&kernel) {
-            ks.push(kernel);
-        }
-    }
-    if ks.is_empty() {
-        ks = ALL_KERNELS.to_vec();
-    }
-    let mut bs = Vec::new();
-    for b in &a.bandwidths {
-        let spec = BandwidthSpec::parse(b).ok_or_else(|| {
-            bad(
-                "--bandwidths",
-                format!("{b:?} is not a bandwidth"),
-                &format!(
-                    "use scott, lcv, a multiple of Scott's value such as 0.5x (from {:e}x to {:e}x), or a number in the unit (from {:e} to {:e})",
-                    MULTIPLE_RANGE.0, MULTIPLE_RANGE.1, FIXED_RANGE.0, FIXED_RANGE.1
-                ),
-            )
-        })?;
-        if !bs.contains(&spec) {
-            bs.push(spec);
-        }
-    }
-    let mut edges = Vec::new();
-    for e in &a.edge {
-        let edge = DensityEdge::parse(e).ok_or_else(|| {
-            bad(
-                "--edge",
-                format!("unknown edge handling {e:?}"),
-                "use none, uniform or diggle",
-            )
-        })?;
-        if !edges.contains(&edge) {
-            edges.push(edge);
-        }
-    }
-    let mut levels = Vec::new();
-    for l in &a.levels {
-        let v: f64 = l.trim().trim_end_matches('%').parse().map_err(|_| {
-            bad(
-                "--levels",
-                format!("{l:?} is not a number"),
-                "give percentages between 0 and 100, e.g. --levels 50,95",
-            )
-        })?;
-        if !(v > 0.0 && v < 100.0) {
-            return Err(bad(
-                "--levels",
-                format!("{v} is outside (0, 100)"),
-                "give percentages strictly between 0 and 100",
-            ));
-        }
-        levels.push(v / 100.0);
-    }
-    levels.sort_by(f64::total_cmp);
-    levels.dedup();
-    if let Some(c) = a.cell
-        && !(c.is_finite() && c > 0.0)
-    {
-        return Err(bad(
-            "--cell",
-            format!("{c} is not a positive cell size"),
-            "give the cell side in the unit of the coordinates",
-        ));
-    }
-    let parts: Vec<&str> = a.reference.split(':').collect();
-    let reference = match parts.as_slice() {
-        [k, b] | [k, b, _] => {
-            let k = Kernel::parse(k);
-            let b = BandwidthSpec::parse(b);
-            let e = match parts.get(2) {
-                Some(e) => DensityEdge::parse(e),
-                None => Some(edges.first().copied().unwrap_or(DensityEdge::None)),
-            };
-            match (k, b, e) {
-                (Some(k), Some(b), Some(e)) => (k, b, e),
-                _ => {
-                    return Err(bad(
-                        "--reference",
-                        format!("{:?} is not KERNEL:BANDWIDTH[:EDGE]", a.reference),
-                        "e.g. --reference gaussian:scott or quartic:lcv:uniform",
-                    ));
-                }
-            }
-        }
-        _ => {
-            return Err(bad(
-                "--reference",
-                format!("{:?} is not KERNEL:BANDWIDTH[:EDGE]", a.reference),
-                "e.g. --reference gaussian:scott or quartic:lcv:uniform",
-            ));
-        }
-    };
-    Ok(Config {
-        kernels: ks,
-        bandwidths: bs,
-        edges,
-        levels,
+    let words = patternproof::words::DensityWords {
+        kernels: &a.kernels,
+        bandwidths: &a.bandwidths,
         cell: a.cell,
-        reference,
-        unit: unit.to_string(),
-    })
+        levels: &a.levels,
+        edges: &a.edge,
+        reference: &a.reference,
+    };
+    Ok(patternproof::words::density(&words, unit)?)
 }
 
 /// Run the command.
 pub fn run(a: &DensityArgs) -> Result<(), Failure> {
     if a.input.boundaries.len() > 1 {
-        return Err(bad(
-            "--boundary",
-            format!(
-                "{} boundaries given; density uses one window",
-                a.input.boundaries.len()
-            ),
-            "pass one --boundary (or none for the convex hull of the points)",
-        ));
+        return Err(Failure::Input(format!(
+            "--boundary: {} boundaries given; density uses one window\n  what to do: pass one --boundary (or none for the convex hull of the points)",
+            a.input.boundaries.len()
+        )));
     }
     let data = crate::common::load(&a.input)?;
     if !a.quiet {

@@ -7,17 +7,15 @@
 
 use crate::args::{InputArgs, OutArgs, count};
 use crate::budget;
-use crate::common::{check_alpha, load};
+use crate::common::load;
 use crate::fail::Failure;
 use crate::progress::Progress;
 use crate::window_args::WindowArgs;
 use clap::Args;
 use patternproof::cost::scales as memory;
-use patternproof::options::{Correction, ScalesOptions};
+use patternproof::options::ScalesOptions;
+use patternproof::words;
 use patternproof::{ScalesJob, ScalesResult, WindowOptions};
-
-/// Largest accepted `--steps`.
-const MAX_STEPS: usize = 10_000;
 
 /// `patternproof scales`.
 ///
@@ -70,50 +68,19 @@ pub struct ScalesArgs {
     pub output: OutArgs,
 }
 
-fn parse_corrections(flag: &str, words: &[String]) -> Result<Vec<Correction>, Failure> {
-    let mut out = Vec::new();
-    for w in words {
-        let c = Correction::parse(w).ok_or_else(|| {
-            Failure::Input(format!(
-                "{flag}: `{w}` is not an edge correction for K\n  what to do: choose from border, isotropic, translation"
-            ))
-        })?;
-        if !out.contains(&c) {
-            out.push(c);
-        }
-    }
-    if out.is_empty() {
-        return Err(Failure::Input(format!(
-            "{flag}: no correction given\n  what to do: name at least one of border, isotropic, translation"
-        )));
-    }
-    Ok(out)
-}
-
 /// Run the command.
 pub fn run(a: &ScalesArgs) -> Result<(), Failure> {
     let (buffers, concavity) = a.window.checked()?;
-    let mut corrections = parse_corrections("--edges", &a.edges)?;
-    let tested = parse_corrections("--test-edges", &a.test_edges)?;
+    let mut corrections = words::corrections("--edges", &a.edges)?;
+    let tested = words::corrections("--test-edges", &a.test_edges)?;
     for &t in &tested {
         if !corrections.contains(&t) {
             corrections.push(t);
         }
     }
-    check_alpha(a.alpha)?;
-    if let Some(r) = a.rmax
-        && !(r > 0.0 && r.is_finite())
-    {
-        return Err(Failure::Input(format!(
-            "--rmax {r}: the largest distance must be a positive number in the data's unit\n  what to do: give e.g. --rmax 40, or leave it out for a quarter of the window's shorter side"
-        )));
-    }
-    if a.steps == 0 || a.steps > MAX_STEPS {
-        return Err(Failure::Input(format!(
-            "--steps {}: the distance grid needs between 1 and {MAX_STEPS} steps\n  what to do: use e.g. --steps 50",
-            a.steps
-        )));
-    }
+    words::alpha(a.alpha)?;
+    words::rmax(a.rmax)?;
+    words::steps(a.steps)?;
     let data = load(&a.input)?;
     crate::common::print_reading(&data);
     let options = ScalesOptions {

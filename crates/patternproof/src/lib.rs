@@ -77,6 +77,7 @@ mod protocol;
 mod recheck;
 mod scales;
 mod sites;
+pub mod words;
 
 pub use audit::{audit, audit_in, frame, outlined_windows};
 pub use density::{DensityResult, density};

@@ -1,9 +1,15 @@
-//! The options of each job, checked with the command line's words: a
-//! bad value names the flag it stands for (`alpha` is `--alpha`), what is
-//! wrong and what to do, exactly as `patternproof` prints it.
+//! Option values from the words a person types — a command-line flag, a
+//! Python keyword — checked once for every front end: a bad value is a
+//! [`Refusal::Setting`] that names the flag it stands for (`alpha` is
+//! `--alpha`), what is wrong and what to do.
 
-use crate::errors::setting;
-use patternproof::{BufferRule, Correction, Edge, Error};
+use crate::error::{Error, Refusal};
+use patternproof_audit::{BufferRule, Edge};
+use patternproof_scales::Correction;
+
+fn setting(subject: impl Into<String>, what: impl Into<String>, hint: impl Into<String>) -> Error {
+    Error::refused(Refusal::Setting, subject, what, hint)
+}
 
 /// `--buffers 0.5x,1x,2x` or `--buffers 5,10`.
 pub fn buffers(words: &[String]) -> Result<Vec<BufferRule>, Error> {
@@ -84,7 +90,7 @@ pub fn alpha(alpha: f64) -> Result<f64, Error> {
 
 /// `--area`: positive, and within what a map can hold.
 pub fn area(area: Option<f64>) -> Result<Option<f64>, Error> {
-    use patternproof::options::{MAX_AREA, MIN_AREA};
+    use crate::options::{MAX_AREA, MIN_AREA};
     let Some(a) = area else { return Ok(None) };
     if !(a > 0.0 && a.is_finite()) {
         return Err(setting(
@@ -129,8 +135,8 @@ pub fn rmax(r: Option<f64>) -> Result<Option<f64>, Error> {
     }
 }
 
-/// Largest accepted `--steps` (as the command line).
-const MAX_STEPS: usize = 10_000;
+/// Largest accepted `--steps`.
+pub const MAX_STEPS: usize = 10_000;
 
 /// `--steps` of `scales`.
 pub fn steps(steps: usize) -> Result<usize, Error> {
@@ -191,9 +197,8 @@ fn bad(option: &str, what: String, todo: &str) -> Error {
 }
 
 /// The density configuration of `w` for coordinates in `unit`.
-pub fn density(w: &DensityWords<'_>, unit: &str) -> Result<patternproof::DensityConfig, Error> {
-    use patternproof::options::{FIXED_RANGE, MULTIPLE_RANGE};
-    use patternproof::{BandwidthSpec, DensityEdge, Kernel};
+pub fn density(w: &DensityWords<'_>, unit: &str) -> Result<crate::DensityConfig, Error> {
+    use crate::options::{BandwidthSpec, DensityEdge, FIXED_RANGE, Kernel, MULTIPLE_RANGE};
     let mut ks = Vec::new();
     for k in w.kernels {
         let kernel = Kernel::parse(k).ok_or_else(|| {
@@ -208,7 +213,7 @@ pub fn density(w: &DensityWords<'_>, unit: &str) -> Result<patternproof::Density
         }
     }
     if ks.is_empty() {
-        ks = patternproof::options::ALL_KERNELS.to_vec();
+        ks = crate::options::ALL_KERNELS.to_vec();
     }
     let mut bs = Vec::new();
     for b in w.bandwidths {
@@ -289,7 +294,7 @@ pub fn density(w: &DensityWords<'_>, unit: &str) -> Result<patternproof::Density
         }
         _ => return Err(not_reference()),
     };
-    Ok(patternproof::DensityConfig {
+    Ok(crate::DensityConfig {
         kernels: ks,
         bandwidths: bs,
         edges,
