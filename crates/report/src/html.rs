@@ -8,7 +8,7 @@
 
 use crate::document::AuditReport;
 use crate::numbers::{fixed, p_value, percent, sig};
-use crate::page::{page, trusted_svg};
+use crate::page::{page, prose, trusted_svg};
 use crate::table::{call_symbol, call_word, flip_lines};
 use maud::{Markup, html};
 
@@ -84,7 +84,7 @@ pub fn index_html(
             " choices), " (report.settings.sims) " CSR simulations per window, α = "
             (report.alpha.to_string()) "."
         }
-        p.verdict { (s.verdict) "." }
+        p.verdict { (prose(&s.verdict)) "." }
 
         h2 id="input" { "Input" }
         table {
@@ -106,12 +106,12 @@ pub fn index_html(
                 tr { th { "boundary" } td { code { (b.name) } " from " code { (b.file) } } }
             }
             @for w in &i.warnings {
-                tr { th { "warning" } td { (w) } }
+                tr { th { "warning" } td { (prose(w)) } }
             }
         }
 
         @for p in pictures {
-            h2 { (p.title) }
+            h2 { (prose(&p.title)) }
             figure {
                 (trusted_svg(&p.svg))
                 figcaption { (p.caption) }
@@ -146,7 +146,7 @@ pub fn index_html(
                     td.num { (r.p.map_or_else(dash, p_value)) }
                     td { (call_symbol(r.call)) " " (call_word(r.call)) }
                     td.num { (r.size_under_csr.map_or_else(dash, percent)) }
-                    td { (r.note.as_deref().unwrap_or("")) }
+                    td { (prose(r.note.as_deref().unwrap_or(""))) }
                 }
             }
         }
@@ -154,7 +154,7 @@ pub fn index_html(
             p { "Not computed:" }
             ul {
                 @for k in &report.skipped {
-                    li { code { (k.window) } " with " code { (k.edge.to_string()) } ": " (k.reason) }
+                    li { code { (k.window) } " with " code { (k.edge.to_string()) } ": " (prose(&k.reason)) }
                 }
             }
         }
@@ -184,7 +184,7 @@ pub fn index_html(
         h2 id="flip" { "Where the call flips" }
         ul {
             @for l in flip_lines(report) {
-                li { (l) }
+                li { (prose(&l)) }
             }
         }
 
@@ -195,12 +195,12 @@ pub fn index_html(
 
         h2 id="methods" { "Methods paragraph" }
         p { "Ready to paste into a manuscript; it states every choice the result depends on." }
-        p.methods { (crate::methods::methods_paragraph(report)) }
+        p.methods { (prose(&crate::methods::methods_paragraph(report))) }
 
         h2 id="cautions" { "What this does and does not show" }
         ul {
             @for c in &report.cautions {
-                li.caution { (c) }
+                li.caution { (prose(c)) }
             }
         }
 

@@ -12,7 +12,13 @@ pub fn methods_paragraph(r: &AuditReport) -> String {
         .iter()
         .map(|w| format!("`{}` ({} {u}²)", w.id, sig(w.area, 4)))
         .collect();
-    let edges = r.settings.edges.join(", ");
+    let edges = r
+        .settings
+        .edges
+        .iter()
+        .map(|e| edge_coverage(r, e))
+        .collect::<Vec<_>>()
+        .join(", ");
     let mut s = format!(
         "We tested the {n} mapped points for departure from complete spatial randomness with the nearest-neighbour test of Clark & Evans (1954), two-sided at α = {alpha}.",
         n = r.input.n,
@@ -38,9 +44,7 @@ pub fn methods_paragraph(r: &AuditReport) -> String {
         " Because the expected nearest-neighbour distance depends on the study area, we repeated the test for every window we considered defensible: {}.",
         windows.join(", ")
     ));
-    s.push_str(&format!(
-        " Edge effects were handled in each window as follows: {edges}."
-    ));
+    s.push_str(&format!(" Edge effects were handled as follows: {edges}."));
     if r.settings.edges.iter().any(|e| e == "donnelly") {
         s.push_str(" `donnelly` uses the perimeter-corrected moments of Donnelly (1978).");
     }
@@ -64,4 +68,32 @@ pub fn methods_paragraph(r: &AuditReport) -> String {
     s.push_str(r.tool_version);
     s.push('.');
     s
+}
+
+/// An edge handling as the paragraph names it: alone when every window
+/// has its row, otherwise with the windows it ran in and why not the
+/// others (the torus needs a rectangle, so it runs in `bbox` only).
+fn edge_coverage(r: &AuditReport, edge: &str) -> String {
+    let mut ran: Vec<&str> = Vec::new();
+    for row in r.results.iter().filter(|row| row.edge.as_str() == edge) {
+        if !ran.contains(&row.window.as_str()) {
+            ran.push(&row.window);
+        }
+    }
+    let why = r
+        .skipped
+        .iter()
+        .find(|k| k.edge.as_str() == edge)
+        .map(|k| k.reason.as_str());
+    match why {
+        None => format!("`{edge}`"),
+        Some(why) if ran.is_empty() => format!("`{edge}` (in no window: {why})"),
+        Some(why) => format!(
+            "`{edge}` (in {} only: {why})",
+            ran.iter()
+                .map(|w| format!("`{w}`"))
+                .collect::<Vec<_>>()
+                .join(", ")
+        ),
+    }
 }

@@ -21,6 +21,26 @@ figure{margin:1em 0}figure svg{max-width:100%;height:auto;border:1px solid #ddd}
 pre{white-space:pre-wrap;word-break:break-all;background:#f2f2f2;padding:.5em}\
 .caution{color:#5a3a00}.flag{font-weight:bold}@media print{figure{break-inside:avoid}}";
 
+/// A sentence the tool wrote, whose ids and choices are marked as code
+/// spans (`hull`, `none`): each span becomes a `<code>` element and the
+/// rest escaped text, so no raw backtick reaches the page. An unpaired
+/// backtick (from a name in a user's file) stays as text.
+pub fn prose(s: &str) -> Markup {
+    let parts: Vec<&str> = s.split('`').collect();
+    let last = parts.len() - 1;
+    html! {
+        @for (k, part) in parts.iter().enumerate() {
+            @if k % 2 == 1 && k < last {
+                code { (part) }
+            } @else if k % 2 == 1 {
+                "`" (part)
+            } @else {
+                (part)
+            }
+        }
+    }
+}
+
 /// A whole page: the head with `title` and the stylesheet, then `body`.
 pub fn page(title: &str, body: Markup) -> String {
     let mut s = html! {
@@ -70,5 +90,21 @@ mod tests {
             "<!DOCTYPE html><html lang=\"en\"><head><meta charset=\"utf-8\"/><meta name=\"viewport\" content=\"width=device-width, initial-scale=1\"/>"
         ));
         assert!(s.ends_with("</body></html>\n"));
+    }
+}
+
+#[cfg(test)]
+mod prose_tests {
+    use super::prose;
+
+    #[test]
+    fn code_spans_become_code_and_the_rest_is_escaped() {
+        assert_eq!(
+            prose("not significant on `hull` with edge `none` <b>").into_string(),
+            "not significant on <code>hull</code> with edge <code>none</code> &lt;b&gt;"
+        );
+        // An unpaired backtick (a user's name) stays as text.
+        assert_eq!(prose("on `a`b` x").into_string(), "on <code>a</code>b` x");
+        assert_eq!(prose("plain").into_string(), "plain");
     }
 }

@@ -84,7 +84,7 @@ pub fn simulation_svg(report: &AuditReport, id: &str) -> Option<String> {
         let mut chart = ChartBuilder::on(&plot)
             .caption(
                 format!(
-                    "Simulated mean nearest-neighbour distance in `{id}`: {} CSR patterns of {} points",
+                    "Simulated mean nearest-neighbour distance in {id}: {} CSR patterns of {} points",
                     means.len(),
                     row.n_used
                 ),

@@ -518,3 +518,35 @@ fn window_outlines_are_cut_at_the_antimeridian() {
         }
     }
 }
+
+/// Issue 22: the page and the pictures show ids as code, never as raw
+/// Markdown backticks, and the methods paragraph says where the torus ran
+/// (in rectangles only: on the demo, `bbox`).
+#[test]
+fn pages_and_pictures_carry_no_raw_backticks_and_the_methods_say_where_the_torus_ran() {
+    let dir = tmp();
+    let out = dir.path().join("r");
+    demo_audit(&out, &["--scales", "--scales-sims", "19"]);
+    for name in [
+        "index.html",
+        "sensitivity.svg",
+        "simulation.svg",
+        "windows.svg",
+        "scales.svg",
+        "corrections.svg",
+    ] {
+        let text = read(&out.join(name));
+        assert!(!text.contains('`'), "{name} shows a raw backtick");
+    }
+    let page = read(&out.join("index.html"));
+    assert!(
+        page.contains("<code>bbox</code>"),
+        "ids are code in the page"
+    );
+    let md = read(&out.join("verdict.md"));
+    assert!(
+        md.contains("`toroidal` (in `bbox` only: torus distances need an axis-aligned rectangle)"),
+        "{md}"
+    );
+    assert!(!md.contains("handled in each window"), "{md}");
+}

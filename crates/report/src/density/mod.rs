@@ -243,11 +243,11 @@ pub fn index_html(
         }
         section id="density" {
             h2 { "Density" }
-            p.verdict { (a.verdict.sentence) }
+            p.verdict { (crate::page::prose(&a.verdict.sentence)) }
             h3 { "What a density surface shows, and what it does not" }
             ul {
                 @for c in cautions() {
-                    li.caution { (c) }
+                    li.caution { (crate::page::prose(&c)) }
                 }
             }
             @if !warnings.is_empty() {

@@ -137,8 +137,8 @@ fn window_panel(
         hi += 0.6 * (hi - lo);
     }
     let title = match test {
-        Some(t) => format!("`{}` (n = {}): MAD p = {}", w.id, w.n, p_value(t.p)),
-        None => format!("`{}` (n = {}): no test", w.id, w.n),
+        Some(t) => format!("{} (n = {}): MAD p = {}", w.id, w.n, p_value(t.p)),
+        None => format!("{} (n = {}): no test", w.id, w.n),
     };
     let mut chart = l_chart(area, run, title, lo, hi)?;
     if let Some(t) = test {
@@ -216,7 +216,7 @@ fn correction_panel(area: &Canvas<'_>, run: &ScalesRun, c: Correction) -> Option
                 &mut chart,
                 points(&run.r, &curve.l_minus_r),
                 ink(k),
-                Some(format!("`{}`", w.id)),
+                Some(w.id.clone()),
             )?;
         }
     }

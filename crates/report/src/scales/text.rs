@@ -193,7 +193,7 @@ pub fn html_section(run: &ScalesRun, svg: Option<&str>) -> Markup {
         }
         ul {
             @for v in &run.verdicts {
-                li { strong { (v.correction.as_str()) " correction:" } " " (v.sentence) "." }
+                li { strong { (v.correction.as_str()) " correction:" } " " (crate::page::prose(&v.sentence)) "." }
             }
             @if run.verdicts.is_empty() {
                 li { "No envelope test was run (no simulations)." }
@@ -232,7 +232,7 @@ pub fn html_section(run: &ScalesRun, svg: Option<&str>) -> Markup {
         }
         ul {
             @for c in &run.cautions {
-                li.caution { (c) }
+                li.caution { (crate::page::prose(c)) }
             }
         }
         p {

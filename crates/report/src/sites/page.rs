@@ -27,7 +27,7 @@ pub fn index_html(
             }
         }
         @for n in &doc.notes {
-            p.caution { b { "Caution:" } " " (n) "." }
+            p.caution { b { "Caution:" } " " (crate::page::prose(n)) "." }
         }
         @if let Some(svg) = forest {
             figure { (trusted_svg(svg.trim())) }
