@@ -139,7 +139,7 @@ fn demo_pictures_carry_series_markers_and_thresholds() {
     assert!(
         texts
             .iter()
-            .any(|t| t.contains("`boundary`") && t.contains("199 CSR patterns"))
+            .any(|t| t.contains("in boundary:") && t.contains("199 CSR patterns"))
     );
 
     // Window map: every window id and the unit of the scale bar.
@@ -189,7 +189,7 @@ fn tiny_data_set_pictures() {
     assert!(
         texts
             .iter()
-            .any(|t| t.contains("`hull`") && t.contains("99 CSR patterns"))
+            .any(|t| t.contains("in hull:") && t.contains("99 CSR patterns"))
     );
 }
 
