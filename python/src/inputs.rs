@@ -6,7 +6,7 @@
 
 use crate::errors::setting;
 use geo::{Geometry, MultiPolygon, Polygon};
-use patternproof::memory::{add_boundary, add_boundary_file, input_with_memory, points_in_memory};
+use patternproof::memory::{add_boundary, add_boundary_file, points_in_memory};
 use patternproof::options::GpkgChoice;
 use patternproof::{CoordChoice, Dataset, Error, Input, LoadOptions};
 use std::path::PathBuf;
@@ -196,7 +196,7 @@ fn feature_name(f: &geojson::Feature) -> Option<String> {
 
 /// The input of a job. A points file with boundary files only is read
 /// exactly as the command line reads it (`load`, then
-/// `Input::from_dataset`); anything given in memory joins through the
+/// `Input::checksummed`); anything given in memory joins through the
 /// facade's `memory` module. Boundaries keep the order given.
 pub fn input(
     points: Points,
@@ -222,7 +222,7 @@ pub fn input(
                 .collect();
             let mut data = patternproof::load(&file, &files, &options)?;
             if all_files {
-                let input = Input::from_dataset(&data)?;
+                let input = Input::checksummed(&data)?;
                 return Ok((input, data));
             }
             // Files came first from `load`; put every boundary back in its
@@ -240,7 +240,7 @@ pub fn input(
                     }
                 }
             }
-            let input = input_with_memory(&data)?;
+            let input = Input::checksummed(&data)?;
             Ok((input, data))
         }
         Points::Memory(xy) => {
@@ -272,7 +272,7 @@ pub fn input(
                     }
                 }
             }
-            let input = input_with_memory(&data)?;
+            let input = Input::checksummed(&data)?;
             Ok((input, data))
         }
     }

@@ -31,7 +31,7 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
     }
     let data = load(&a.input)?;
     print_reading(&data);
-    let input = patternproof::Input::from_dataset(&data)?;
+    let input = patternproof::Input::checksummed(&data)?;
     let windows = patternproof::outlined_windows(buffers.len(), input.boundaries.len());
     let scales_options = a.scales.then(|| ScalesOptions {
         rmax: a.scales_rmax,

@@ -90,7 +90,7 @@ pub fn run(a: &DensityArgs) -> Result<(), Failure> {
     }
     let config = parse_config(a, &data.unit)?;
     let points_name = a.input.points.display().to_string();
-    let input = patternproof::Input::from_dataset(&data)?;
+    let input = patternproof::Input::from_dataset(&data);
     let patternproof::DensityResult {
         analysis,
         window_source: source,

@@ -116,10 +116,7 @@ pub fn run(a: &RecheckArgs) -> Result<(), Failure> {
         }
         None => None,
     };
-    let input = data
-        .as_ref()
-        .map(patternproof::Input::from_dataset)
-        .transpose()?;
+    let input = data.as_ref().map(patternproof::Input::from_dataset);
     let result = patternproof::recheck(&f, input.as_ref())?;
     if let Some(d) = &data {
         for w in &d.warnings {

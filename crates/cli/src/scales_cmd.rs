@@ -94,7 +94,7 @@ pub fn run(a: &ScalesArgs) -> Result<(), Failure> {
     };
     let windows = budget::outlined_windows(buffers.len(), data.boundaries.len());
     check_memory("--sims", &options, data.points.len(), windows, 0)?;
-    let input = patternproof::Input::from_dataset(&data)?;
+    let input = patternproof::Input::from_dataset(&data);
     let windows = WindowOptions {
         buffers,
         area: None,

@@ -41,18 +41,31 @@ pub struct Input {
 }
 
 impl Input {
-    /// The input of a loaded data set; reads every file once more for its
-    /// checksum, so a report names exactly the bytes it was made from.
-    pub fn from_dataset(data: &Dataset) -> Result<Self, Error> {
-        let files: Vec<PathBuf> = std::iter::once(data.points_file.clone())
-            .chain(data.boundaries.iter().map(|b| b.file.clone()))
-            .collect();
-        Ok(Self {
+    /// The input of a loaded data set, without checksums: for jobs whose
+    /// documents record none (`scales`, `density`, `recheck`), so their
+    /// files are not read a second time.
+    pub fn from_dataset(data: &Dataset) -> Self {
+        Self {
             points: data.points.clone(),
             boundaries: named_shapes(data),
             summary: input_summary(data),
-            digests: digests(&files, "while the audit runs")?,
+            digests: Vec::new(),
             subject: data.points_file.display().to_string(),
+        }
+    }
+
+    /// The input of a loaded data set with the SHA-256 of every file it was
+    /// read from (parts given in memory have none), as `report.json`
+    /// records them: each file is read once more, so a report names
+    /// exactly the bytes it was made from.
+    pub fn checksummed(data: &Dataset) -> Result<Self, Error> {
+        let files: Vec<PathBuf> = std::iter::once(data.points_file.clone())
+            .chain(data.boundaries.iter().map(|b| b.file.clone()))
+            .filter(|f| !crate::memory::in_memory(f))
+            .collect();
+        Ok(Self {
+            digests: digests(&files, "while the audit runs")?,
+            ..Self::from_dataset(data)
         })
     }
 

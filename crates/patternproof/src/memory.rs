@@ -9,9 +9,8 @@
 //! points take the same canonical order, so a run on memory gives the
 //! same figures as a run on a file holding the same points.
 
-use crate::document::FileDigest;
 use crate::error::{Error, Refusal};
-use crate::input::{Input, digests, input_summary, named_shapes};
+
 use geo::{Intersects, MultiPolygon};
 use patternproof_core::Xy;
 use patternproof_core::order::{canonical_permutation, permute};
@@ -314,23 +313,6 @@ fn add_raw(
     Ok(())
 }
 
-/// The input of a data set some of whose parts were given in memory: the
-/// checksums cover the files only.
-pub fn input_with_memory(data: &Dataset) -> Result<Input, Error> {
-    let files: Vec<PathBuf> = std::iter::once(data.points_file.clone())
-        .chain(data.boundaries.iter().map(|b| b.file.clone()))
-        .filter(|f| !in_memory(f))
-        .collect();
-    let digests: Vec<FileDigest> = digests(&files, "while the audit runs")?;
-    Ok(Input {
-        points: data.points.clone(),
-        boundaries: named_shapes(data),
-        summary: input_summary(data),
-        digests,
-        subject: data.points_file.display().to_string(),
-    })
-}
-
 /// Whether `file` is one of the names standing for data given in memory.
 pub fn in_memory(file: &Path) -> bool {
     let name = file.display().to_string();
@@ -340,6 +322,7 @@ pub fn in_memory(file: &Path) -> bool {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::input::Input;
     use geo::{Rect, coord};
 
     #[test]
@@ -410,7 +393,7 @@ mod tests {
             CoordChoice::Projected,
         )
         .expect("covers both");
-        let input = input_with_memory(&data).expect("input");
+        let input = Input::checksummed(&data).expect("input");
         assert!(input.digests.is_empty());
         assert_eq!(
             input.summary.boundaries[0].file,
