@@ -102,7 +102,7 @@ pub struct ResultRow {
 }
 
 impl ResultRow {
-    fn empty(window: &str, edge: Edge, n_used: usize) -> Self {
+    pub(crate) fn empty(window: &str, edge: Edge, n_used: usize) -> Self {
         Self {
             window: window.to_string(),
             edge,

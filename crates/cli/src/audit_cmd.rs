@@ -2,7 +2,7 @@
 
 use crate::args::AuditArgs;
 use crate::budget;
-use crate::common::{command_line, load, print_reading};
+use crate::common::{Screen, command_line, load, print_reading};
 use crate::fail::Failure;
 use crate::progress::Progress;
 use crate::scales_cmd;
@@ -11,6 +11,7 @@ use patternproof::ScalesJob;
 use patternproof::cost::audit as simulation;
 use patternproof::options::{AuditOptions, ScalesOptions, WindowOptions};
 use patternproof::words;
+use patternproof_report::matrix::{self, VerdictMatrix};
 use patternproof_report::{
     AuditReport, OutputFolder, Plane, RenderChoices, RunContext, audit_folder, table,
 };
@@ -138,17 +139,29 @@ fn print_summary(report: &AuditReport, out: &std::path::Path, folder: &OutputFol
     for w in &report.input.warnings {
         eprintln!("patternproof: warning: {w}");
     }
+    let screen = Screen::stdout();
+    print!(
+        "{}",
+        VerdictMatrix::new(report).terminal(screen.layout_width(), screen.colour)
+    );
+    let width = screen.layout_width();
+    let verdict = format!("Verdict: {}.", report.summary.verdict);
+    println!("\n{}", matrix::paragraph(&verdict, width, "", "  "));
+    println!(
+        "{}\n",
+        matrix::paragraph(&matrix::counts_line(report), width, "  ", "  ")
+    );
     println!("{}", table::terminal_table(report, None));
     for n in &report.window_notes {
-        println!("note: {n}");
+        println!("{}", matrix::paragraph(n, width, "note: ", "  "));
     }
     println!("\nWhere the call flips:");
     for line in table::flip_lines(report) {
-        println!("  {line}");
+        println!("{}", matrix::paragraph(&line, width, "  ", "    "));
     }
-    println!("\nVerdict: {}.", report.summary.verdict);
+    println!();
     for c in &report.summary.cautions {
-        println!("  caution: {c}");
+        println!("{}", matrix::paragraph(c, width, "caution: ", "  "));
     }
     println!(
         "\nwrote {} to {}",

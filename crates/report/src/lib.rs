@@ -46,6 +46,7 @@ pub mod folder;
 pub mod html;
 pub mod markdown;
 pub mod markdown_escape;
+pub mod matrix;
 pub mod methods;
 pub mod numbers;
 pub mod outlines;

@@ -18,7 +18,13 @@ pub fn write_markdown<W: io::Write>(report: &AuditReport, mut out: W) -> io::Res
         "# Nearest-neighbour audit of {}\n",
         code(&i.points_file)
     )?;
+    writeln!(
+        out,
+        "{}",
+        crate::matrix::VerdictMatrix::new(report).markdown()
+    )?;
     writeln!(out, "**Verdict:** {}.\n", prose(&report.summary.verdict))?;
+    writeln!(out, "{}.\n", text(&crate::matrix::counts_line(report)))?;
     writeln!(
         out,
         "{} points analysed ({} read, {} duplicate(s){}); coordinates {}; distances in {u}, areas in {u}²; α = {} (two-sided, critical |z| = {:.4}); observed mean nearest-neighbour distance {} {u}.\n",

@@ -354,8 +354,15 @@ fn points_outside_a_boundary_are_counted_and_flagged() {
     );
     let md = std::fs::read_to_string(out.join("verdict.md")).unwrap();
     assert!(md.contains(caution), "{md}");
+    // The terminal has no Markdown: the same words without backticks,
+    // wrapped between words.
     let terminal = stdout(&o);
-    assert!(terminal.contains(caution), "{terminal}");
+    let words = terminal.split_whitespace().collect::<Vec<_>>().join(" ");
+    assert!(
+        words.contains("window boundary leaves out 20 of 36 points (56 %)"),
+        "{terminal}"
+    );
+    assert!(!terminal.contains('`'), "{terminal}");
 }
 
 /// A window that leaves out a few points, under 5 %, gets its row note but
