@@ -7,6 +7,7 @@
 //! The Python package (`patternproof/__init__.py`) turns these into typed
 //! result objects; nothing here computes a statistic of its own.
 
+mod arrow;
 mod errors;
 mod inputs;
 
@@ -98,6 +99,12 @@ pub struct AuditFolder {
 
 #[pymethods]
 impl AuditFolder {
+    /// The verdict at a glance (matrix, sentence, counts) as the report's
+    /// page opens, with its styles: what a notebook shows.
+    fn glance_html(&self) -> String {
+        patternproof_report::matrix::glance_html(&self.report)
+    }
+
     /// Write the report folder the command line writes for the same run
     /// into `dir`, all or nothing; `command_line` is what its page shows
     /// as the command. Returns the names of the files written.
@@ -610,5 +617,7 @@ fn _native(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(plan_sites, m)?)?;
     m.add_class::<SitePlan>()?;
     m.add_class::<SiteRunHandle>()?;
+    m.add_function(wrap_pyfunction!(arrow::arrow_points, m)?)?;
+    m.add_class::<arrow::ArrowTable>()?;
     Ok(())
 }

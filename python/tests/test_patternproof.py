@@ -6,6 +6,7 @@ must be byte for byte the file or output the command line writes for the
 same call, and every message the one it prints.
 """
 
+import html
 import json
 import re
 import os
@@ -99,9 +100,14 @@ def test_audit_json_is_the_cli_report_json(tmp_path):
     assert result.mean_nn == doc["mean_nn"]
     assert result.rows == doc["results"]
     assert result.to_dict() == doc
+    # The notebook shows the page's opening: the same matrix markup, one
+    # row per window plus the header, and the sentence.
     page = result._repr_html_()
     assert page.count("<tr>") == 1 + len({row["window"] for row in doc["results"]})
-    assert "<td>boundary</td><td>clustered</td>" in page
+    matrix = page[page.index('<table class="matrix">'):page.index("</table>") + len("</table>")]
+    assert "<th><code>boundary</code></th>" in matrix
+    assert matrix in (tmp_path / "r" / "index.html").read_text()
+    assert html.escape(doc["summary"]["verdict"], quote=False) in page
 
 
 def test_recheck_json_is_the_cli_output():
@@ -227,6 +233,86 @@ def test_pandas_and_pyarrow_tables_give_the_numpy_report():
     from_numpy = patternproof.audit(frame[["x", "y"]].to_numpy(), **kwargs).to_json()
     assert patternproof.audit(frame, **kwargs).to_json() == from_numpy
     assert patternproof.audit(pa.Table.from_pandas(frame), **kwargs).to_json() == from_numpy
+
+
+class _ArrowOnly:
+    """An Arrow producer with nothing but the PyCapsule interface, as a
+    DuckDB result or any other library offers it."""
+
+    def __init__(self, table):
+        self._table = table
+
+    def __arrow_c_stream__(self, requested_schema=None):
+        return self._table.__arrow_c_stream__(requested_schema)
+
+
+def test_any_arrow_producer_gives_the_numpy_report():
+    import pyarrow as pa
+
+    xy = np.array(demo_xy())
+    kwargs = dict(boundaries=[BOUNDARY], coords="projected", sims=99)
+    from_numpy = patternproof.audit(xy, **kwargs).to_json()
+    table = pa.table({"site": ["m"] * len(xy), "Easting": xy[:, 0], "Northing": xy[:, 1]})
+    # Split into batches of 50 rows: the stream is read batch by batch.
+    batches = table.to_batches(max_chunksize=50)
+    assert len(batches) == 3
+    reader = pa.RecordBatchReader.from_batches(table.schema, batches)
+    for given in (table, _ArrowOnly(table), reader):
+        assert patternproof.audit(given, **kwargs).to_json() == from_numpy
+    # Whole numbers and float32 are widened exactly (the demo has 0.01 m
+    # steps; whole centimetres keep every value exact in both).
+    cm = pa.table({"x": pa.array(np.round(xy[:, 0] * 100).astype(np.int64)),
+                   "y": pa.array(np.round(xy[:, 1] * 100).astype(np.int32))})
+    from_cm = patternproof.audit(np.round(xy * 100), coords="projected", sims=19).to_json()
+    assert patternproof.audit(_ArrowOnly(cm), coords="projected", sims=19).to_json() == from_cm
+
+
+def test_an_arrow_table_with_gaps_or_text_is_refused():
+    import pyarrow as pa
+
+    gaps = pa.table({"x": [1.0, None, 3.0], "y": [1.0, 2.0, 3.0]})
+    with pytest.raises(patternproof.SettingError) as e:
+        patternproof.audit(_ArrowOnly(gaps), coords="projected")
+    assert "column x has 1 missing value(s), the first in row 2" in str(e.value)
+    text = pa.table({"x": ["1", "2"], "y": [1.0, 2.0]})
+    with pytest.raises(patternproof.SettingError) as e:
+        patternproof.audit(_ArrowOnly(text), coords="projected")
+    assert "column x holds Utf8, not numbers" in str(e.value)
+    with pytest.raises(patternproof.SettingError) as e:
+        patternproof.audit(_ArrowOnly(gaps))
+    assert "does not say whether they are planar coordinates" in str(e.value)
+    with pytest.raises(patternproof.SettingError) as e:
+        patternproof.audit(_ArrowOnly(gaps), coords="lonlat")
+    assert "no columns lon, lat or longitude, latitude (it has x, y)" in str(e.value)
+
+
+def test_tables_out_are_the_documents_rows(tmp_path):
+    import pyarrow as pa
+
+    result = patternproof.audit(POINTS, boundaries=[BOUNDARY], sims=19)
+    table = result.table()
+    assert isinstance(table, pa.Table)
+    rows = result.to_dict()["results"]
+    assert table.num_rows == len(rows) == 29
+    assert table.column_names == list(rows[0].keys())
+    assert table.schema.field("ratio").type == pa.float64()
+    assert table.schema.field("n_used").type == pa.int64()
+    assert table.schema.field("call").type == pa.string()
+    # The same values as the document, column by column.
+    for name in table.column_names:
+        assert table.column(name).to_pylist() == [r[name] for r in rows], name
+    frame = table.to_pandas()
+    assert list(frame["window"].unique()[:2]) == ["bbox", "hull"]
+    # Any Arrow consumer takes the native table through the capsule.
+    native = patternproof._arrow_table(rows)
+    assert pa.table(native).equals(table)
+    # Every result has its rows as a table.
+    scales = patternproof.scales(POINTS, [BOUNDARY], sims=19, steps=5)
+    assert scales.table().num_rows == len(scales.rows) > 0
+    density = patternproof.density(POINTS, [BOUNDARY], kernels="gaussian", bandwidths="scott", edge="none")
+    assert density.table().num_rows == len(density.surfaces) == 1
+    recheck = patternproof.recheck("64", ratio="0.71", z="-4.9", p="<0.001")
+    assert recheck.table().num_rows == 0
 
 
 def test_numbers_in_memory_are_never_guessed():

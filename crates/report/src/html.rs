@@ -74,13 +74,10 @@ pub fn index_html(
     let i = &report.input;
     let u = i.unit.as_str();
     let s = &report.summary;
-    let matrix = crate::matrix::VerdictMatrix::new(report);
     let dash = || "—".to_string();
     let body = html! {
         h1 { "Does the call survive the choice of study area?" }
-        (matrix.html())
-        p.verdict { (prose(&s.verdict)) "." }
-        p.counts { (crate::matrix::counts_line(report)) "." }
+        (crate::matrix::glance(report))
         p.job {
             "Nearest-neighbour audit of " code { (i.points_file) } ": "
             (i.n) " points, " (report.windows.len()) " windows × "

@@ -38,6 +38,13 @@ pub struct VerdictMatrix {
     pub alpha: f64,
 }
 
+/// The matrix's styles, part of every page's stylesheet and of the
+/// fragment a notebook shows ([`glance_html`]): tints paired with the
+/// symbols, never instead of them.
+pub const STYLE: &str = ".matrix td{white-space:nowrap;font-weight:bold}.matrix td.m-clustered{background:#fbe7bf;color:#6b4700}\
+.matrix td.m-dispersed{background:#c9eee2;color:#00513b}.matrix td.m-ns{background:#efefef;color:#444;font-weight:normal}\
+.matrix td.m-none{color:#999;text-align:center}.matrix .m-flag{color:#8a2a00}.key,.counts{color:#333;font-size:.95em}";
+
 /// The mark beside a cell whose p-value is not to be trusted.
 pub const INFLATED_MARK: &str = "!";
 
@@ -302,6 +309,25 @@ impl VerdictMatrix {
             }
         }
     }
+}
+
+/// The answer at a glance, as `index.html` opens: the matrix, the
+/// sentence under it and the counts.
+pub fn glance(report: &AuditReport) -> Markup {
+    html! {
+        (VerdictMatrix::new(report).html())
+        p.verdict { (crate::page::prose(&report.summary.verdict)) "." }
+        p.counts { (counts_line(report)) "." }
+    }
+}
+
+/// [`glance`] with its styles, for a notebook cell (no page around it).
+pub fn glance_html(report: &AuditReport) -> String {
+    html! {
+        style { (maud::PreEscaped(STYLE)) }
+        (glance(report))
+    }
+    .into_string()
 }
 
 /// What the `!` mark means.

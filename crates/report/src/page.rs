@@ -19,9 +19,6 @@ td.num{text-align:right;font-variant-numeric:tabular-nums}th{background:#e8e8e8}
 figure{margin:1em 0}figure svg{max-width:100%;height:auto;border:1px solid #ddd}figcaption{font-size:.9em;color:#333}\
 .methods{background:#f7f7f7;padding:.8em;border:1px dashed #888}code,pre{font-family:monospace;font-size:.9em}\
 pre{white-space:pre-wrap;word-break:break-all;background:#f2f2f2;padding:.5em}\
-.matrix td{white-space:nowrap;font-weight:bold}.matrix td.m-clustered{background:#fbe7bf;color:#6b4700}\
-.matrix td.m-dispersed{background:#c9eee2;color:#00513b}.matrix td.m-ns{background:#efefef;color:#444;font-weight:normal}\
-.matrix td.m-none{color:#999;text-align:center}.matrix .m-flag{color:#8a2a00}.key,.counts{color:#333;font-size:.95em}\
 .caution{color:#5a3a00}.flag{font-weight:bold}@media print{figure{break-inside:avoid}}";
 
 /// A sentence the tool wrote, whose ids and choices are marked as code
@@ -53,7 +50,7 @@ pub fn page(title: &str, body: Markup) -> String {
                 (PreEscaped("<meta charset=\"utf-8\"/>"))
                 (PreEscaped("<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\"/>"))
                 title { (title) }
-                style { (PreEscaped(STYLE)) }
+                style { (PreEscaped(STYLE)) (PreEscaped(crate::matrix::STYLE)) }
             }
             body { (body) }
         }
