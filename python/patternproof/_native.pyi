@@ -2,7 +2,7 @@
 these functions take the options already normalised and return the JSON
 document with the warnings the command line prints."""
 
-from typing import List, Optional, Sequence, Tuple, Union
+from typing import Any, List, Optional, Sequence, Tuple, Union
 
 Boundary = Tuple[str, str, Optional[str]]  # (kind "file" | "text", path or text, name)
 Points = Union[str, bytes]  # a path, or native f64 bytes x0 y0 x1 y1 …
