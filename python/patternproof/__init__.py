@@ -50,6 +50,7 @@ from .errors import (
     InternalError,
     NoTestableWindowError,
     NotFiniteError,
+    StoppedError,
     ProtocolError,
     SettingError,
     SitesError,
@@ -79,6 +80,7 @@ __all__ = [
     "SitesError",
     "InputGoneError",
     "NotFiniteError",
+    "StoppedError",
     "InternalError",
 ]
 

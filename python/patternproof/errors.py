@@ -23,6 +23,7 @@ __all__ = [
     "SitesError",
     "InputGoneError",
     "NotFiniteError",
+    "StoppedError",
     "InternalError",
 ]
 
@@ -61,6 +62,11 @@ class InputGoneError(Error, OSError):
 
 class NotFiniteError(Error, ValueError):
     """A coordinate that is not a finite number (NaN or infinite)."""
+
+
+class StoppedError(Error):
+    """The run was asked to stop before it finished (Ctrl-C itself raises
+    KeyboardInterrupt, as everywhere in Python)."""
 
 
 class InternalError(Error):

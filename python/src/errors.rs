@@ -16,6 +16,7 @@ pub fn class_name(kind: ErrorKind) -> &'static str {
         ErrorKind::Refused(Refusal::Setting) => "SettingError",
         ErrorKind::Refused(Refusal::InputGone) => "InputGoneError",
         ErrorKind::Refused(Refusal::NotFinite) => "NotFiniteError",
+        ErrorKind::Refused(Refusal::Stopped) => "StoppedError",
         ErrorKind::Internal => "InternalError",
     }
 }

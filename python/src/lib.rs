@@ -10,9 +10,11 @@
 mod arrow;
 mod errors;
 mod inputs;
+mod interrupt;
 
 use errors::{setting, to_py};
 use inputs::{Boundary, Points, Reading};
+use interrupt::{StopFlag, interruptible};
 use patternproof::words as options;
 use patternproof::{
     AuditOptions, Error, Figures, Input, LoadedSites, Protocol, ScalesOptions, SiteRun,
@@ -222,7 +224,7 @@ fn audit(
     area: Option<f64>,
 ) -> PyResult<(String, Vec<String>, AuditFolder)> {
     let points = points_arg(points)?;
-    let run = move || -> Result<(String, Vec<String>, AuditFolder), Error> {
+    let run = move |stop: &StopFlag| -> Result<(String, Vec<String>, AuditFolder), Error> {
         // The command line's order: options first, then the files.
         let buffers = options::buffers(&buffers)?;
         let concavity = options::concavity(concavity)?;
@@ -244,7 +246,7 @@ fn audit(
             sims,
             seed,
         };
-        let report = patternproof::audit(&input, &options, &patternproof::Silent)?;
+        let report = patternproof::audit(&input, &options, stop)?;
         let mut buf = Vec::new();
         report
             .write_json(&mut buf)
@@ -259,7 +261,7 @@ fn audit(
         };
         Ok((text, data.warnings, folder))
     };
-    py.detach(run).map_err(to_py)
+    interruptible(py, run)
 }
 
 fn figures(n: &str, given: &[(String, String)], one_sided: bool) -> Result<Figures, Error> {
@@ -351,7 +353,7 @@ fn scales(
     alpha: f64,
 ) -> PyResult<(String, Vec<String>, Vec<String>)> {
     let points = points_arg(points)?;
-    let run = move || -> Result<(String, Vec<String>, Vec<String>), Error> {
+    let run = move |stop: &StopFlag| -> Result<(String, Vec<String>, Vec<String>), Error> {
         let buffers = options::buffers(&buffers)?;
         let concavity = options::concavity(concavity)?;
         let mut corrections = options::corrections("--edges", &edges)?;
@@ -380,10 +382,10 @@ fn scales(
             area: None,
             concavity,
         };
-        let result = patternproof::scales(&input, &windows, &options, &patternproof::Silent)?;
+        let result = patternproof::scales(&input, &windows, &options, stop)?;
         Ok((json(&result.run)?, result.notes, data.warnings))
     };
-    py.detach(run).map_err(to_py)
+    interruptible(py, run)
 }
 
 /// Kernel density across kernels, bandwidths and edge handlings:
@@ -543,10 +545,10 @@ impl SitePlan {
         let options = SitesOptions {
             sweep_sims: self.sweep_sims,
         };
-        let runs = py.detach(|| {
-            patternproof::sites(&self.loaded, &self.protocol, options, &patternproof::Silent)
-        });
-        sites_json(&runs, &self.protocol, self.sweep_sims).map_err(to_py)
+        interruptible(py, |stop| {
+            let runs = patternproof::sites(&self.loaded, &self.protocol, options, stop)?;
+            sites_json(&runs, &self.protocol, self.sweep_sims)
+        })
     }
 }
 

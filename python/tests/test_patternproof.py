@@ -429,7 +429,7 @@ def test_a_boundary_that_is_not_a_polygon_is_refused():
 
 def test_every_class_is_an_error():
     for name in ["InputError", "SettingError", "TooFewPointsError", "NoTestableWindowError",
-                 "ProtocolError", "SitesError", "InputGoneError", "NotFiniteError",
+                 "ProtocolError", "SitesError", "InputGoneError", "NotFiniteError", "StoppedError",
                  "InternalError"]:
         assert issubclass(getattr(patternproof, name), patternproof.Error)
     assert issubclass(patternproof.InputGoneError, OSError)
@@ -445,3 +445,27 @@ def test_the_docstring_examples_run():
         failures, tried = doctest.testmod(module)
         assert failures == 0, module.__name__
         assert tried > 0, module.__name__
+
+
+def test_ctrl_c_stops_a_long_run_and_leaves_nothing_running():
+    import signal
+    import threading
+    import time
+
+    # 999 999 simulations in each of 7 windows: minutes of work, which a
+    # SIGINT half a second in must cut short. The interrupt is raised from
+    # inside the call (the native wait loop), not after the run.
+    timer = threading.Timer(0.5, lambda: os.kill(os.getpid(), signal.SIGINT))
+    started = time.monotonic()
+    timer.start()
+    with pytest.raises(KeyboardInterrupt) as e:
+        patternproof.audit(POINTS, [BOUNDARY], sims=999_999)
+    waited = time.monotonic() - started
+    timer.join()
+    assert "_native.audit(" in str(e.traceback[-1].statement), e.traceback[-1]
+    # The run stopped long before its end (it needs minutes): a generous
+    # bound, not a speed goal.
+    assert waited < 60, waited
+    assert threading.active_count() == 1
+    # The engine is ready for the next call.
+    assert patternproof.audit(POINTS, [BOUNDARY], sims=19).n == 143

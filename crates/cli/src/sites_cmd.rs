@@ -93,7 +93,7 @@ pub fn run(a: &SitesArgs) -> Result<(), Failure> {
         sweep_sims: a.sweep_sims,
     };
     check_budget(&inputs, &protocol, opts, a.quiet)?;
-    let runs = patternproof::sites(&loaded, &protocol, opts, &Progress::new(a.quiet));
+    let runs = patternproof::sites(&loaded, &protocol, opts, &Progress::new(a.quiet))?;
     let folder = outputs(a, &protocol, sites, datasets, &runs)?;
     a.output.write(&folder)?;
 

@@ -4,7 +4,7 @@
 use crate::document::AuditReport;
 use crate::error::{Error, Refusal, sweep_refused};
 use crate::input::Input;
-use crate::progress::Progress;
+use crate::progress::{Progress, stoppable, ticker};
 use patternproof_audit::AuditOptions;
 use patternproof_audit::sweep::{Frame, frame as build_frame, run_in};
 use patternproof_audit::window::WindowOptions;
@@ -59,9 +59,9 @@ pub fn audit_in(
         options.sims.saturating_mul(windows) as u64,
         "simulating CSR",
     );
-    let audit = run_in(frame, options, &|| progress.step());
+    let audit = stoppable(&input.subject, || run_in(frame, options, &ticker(progress)));
     progress.finish();
-    let audit = audit.map_err(|e| sweep_refused(&input.subject, e))?;
+    let audit = audit?.map_err(|e| sweep_refused(&input.subject, e))?;
     if !audit.results.iter().any(|r| r.p.is_some()) {
         let hint = if !audit.windows.is_empty() && audit.n < MIN_N_ANALYTIC {
             "with so few points only the simulation test applies, and it needs an outline: give the surveyed outline with --boundary (and --sims above 0)"

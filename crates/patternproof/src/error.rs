@@ -53,6 +53,8 @@ pub enum Refusal {
     /// A coordinate is not a finite number (points given in memory; the
     /// readers refuse such files first).
     NotFinite,
+    /// The caller's [`crate::Progress`] asked the run to stop.
+    Stopped,
 }
 
 /// What kind of error, in one word: the command line maps it to an exit

@@ -8,7 +8,7 @@
 
 use crate::error::{Error, Refusal};
 use crate::input::Input;
-use crate::progress::Progress;
+use crate::progress::{Progress, stoppable, ticker};
 use geo::Translate;
 use patternproof_audit::sweep::{Frame, centre};
 use patternproof_audit::window::{NamedShape, Window, WindowKind, WindowOptions, build_windows};
@@ -115,8 +115,11 @@ impl ScalesJob {
             plan.simulated_patterns(options) as u64,
             "simulating CSR for K",
         );
-        let run = plan.run(&self.unit, options, &|| progress.step());
+        let run = stoppable(&self.subject, || {
+            plan.run(&self.unit, options, &ticker(progress))
+        });
         progress.finish();
+        let run = run?;
         if run.windows.is_empty() {
             let mut why: Vec<String> = self.notes.clone();
             why.extend(

@@ -10,7 +10,7 @@
 use crate::document::{AuditReport, BoundarySource, InputSummary};
 use crate::error::{Error, Refusal};
 use crate::input::{digests, input_summary};
-use crate::progress::Progress;
+use crate::progress::{Progress, stoppable, ticker};
 use patternproof_audit::window::NamedShape;
 use patternproof_io::boundary::read_named_boundaries;
 use patternproof_io::geopackage::{self, is_geopackage};
@@ -265,19 +265,22 @@ fn read_sites(source: &SitesSource) -> Result<LoadedSites, Error> {
 }
 
 /// Run every site under `protocol` (sites in parallel) and adjust the
-/// p-values across them.
+/// p-values across them. Refused only when `progress` asks the run to
+/// stop ([`Refusal::Stopped`]).
 pub fn sites(
     loaded: &LoadedSites,
     protocol: &Protocol,
     options: RunOptions,
     progress: &dyn Progress,
-) -> Vec<SiteRun> {
+) -> Result<Vec<SiteRun>, Error> {
     let inputs: Vec<SiteInput> = loaded.sites.iter().map(|s| s.input.clone()).collect();
     progress.start(
         patternproof_sites::simulated_patterns(&inputs, protocol, options),
         "simulating CSR at every site",
     );
-    let runs = patternproof_sites::run_sites_with(&inputs, protocol, options, &|| progress.step());
+    let runs = stoppable("the sites", || {
+        patternproof_sites::run_sites_with(&inputs, protocol, options, &ticker(progress))
+    });
     progress.finish();
     runs
 }

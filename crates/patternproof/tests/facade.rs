@@ -8,6 +8,7 @@ use patternproof::{
 };
 use patternproof_protocol::{Adjust, SCHEMA, WindowRule};
 use std::path::PathBuf;
+use std::sync::atomic::{AtomicU64, Ordering};
 
 fn repo() -> PathBuf {
     PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../..")
@@ -105,7 +106,7 @@ fn sites_one_at_a_time_then_adjusted_equal_the_whole_run() {
     let protocol = protocol(WindowRule::Boundary);
     let loaded = load_sites(&source, &protocol, "p.json").expect("the demo plots load");
     let options = SitesOptions { sweep_sims: 19 };
-    let whole = sites(&loaded, &protocol, options, &Silent);
+    let whole = sites(&loaded, &protocol, options, &Silent).expect("nothing stops it");
     let mut pieces: Vec<_> = loaded
         .sites
         .iter()
@@ -118,4 +119,71 @@ fn sites_one_at_a_time_then_adjusted_equal_the_whole_run() {
     };
     assert_eq!(json(&whole), json(&pieces));
     assert!(whole.iter().any(|r| r.row.p_adjusted.is_some()));
+}
+
+/// A progress that asks the run to stop after `after` steps, as a
+/// notebook's Ctrl-C does.
+struct StopAfter {
+    after: u64,
+    steps: AtomicU64,
+    total: AtomicU64,
+}
+
+impl patternproof::Progress for StopAfter {
+    fn start(&self, total: u64, _what: &str) {
+        self.total.store(total, Ordering::SeqCst);
+    }
+    fn step(&self) {
+        self.steps.fetch_add(1, Ordering::SeqCst);
+    }
+    fn cancelled(&self) -> bool {
+        self.steps.load(Ordering::SeqCst) >= self.after
+    }
+}
+
+/// A stop asked for by the progress ends the audit early with its own
+/// kind of refusal, and nothing is printed or left running; a progress
+/// that never asks changes nothing.
+#[test]
+fn a_progress_can_stop_a_long_run() {
+    let points: Vec<[f64; 2]> = (0..200)
+        .map(|i| [(i * 37 % 101) as f64, (i * 53 % 97) as f64])
+        .collect();
+    let options = AuditOptions {
+        sims: 2000,
+        ..AuditOptions::default()
+    };
+    let input = Input::from_points(points, "m");
+    let stop = StopAfter {
+        after: 50,
+        steps: AtomicU64::new(0),
+        total: AtomicU64::new(0),
+    };
+    let Err(e) = audit(&input, &options, &stop) else {
+        panic!("the run should have stopped");
+    };
+    assert_eq!(e.kind(), ErrorKind::Refused(Refusal::Stopped), "{e}");
+    assert!(e.to_string().contains("stopped before it finished"), "{e}");
+    let (steps, total) = (
+        stop.steps.load(Ordering::SeqCst),
+        stop.total.load(Ordering::SeqCst),
+    );
+    // Each worker thread finishes at most the pattern it is on.
+    assert!(steps < 50 + 64, "{steps} of {total} steps ran");
+    assert!(total >= 2000 * 3, "{total}");
+    let never = StopAfter {
+        after: u64::MAX,
+        steps: AtomicU64::new(0),
+        total: AtomicU64::new(0),
+    };
+    let small = AuditOptions {
+        sims: 19,
+        ..AuditOptions::default()
+    };
+    let a = audit(&input, &small, &never).expect("runs");
+    let b = audit(&input, &small, &Silent).expect("runs");
+    assert_eq!(
+        serde_json::to_string(&a).expect("json"),
+        serde_json::to_string(&b).expect("json")
+    );
 }
