@@ -10,6 +10,7 @@ mod bad_inputs;
 mod density;
 mod gpkg;
 mod output_folder;
+mod pictures;
 mod recheck;
 mod reference;
 mod report;
