@@ -134,7 +134,7 @@ pub fn sensitivity_svg(report: &AuditReport) -> Option<String> {
         .iter()
         .partition(|t| t.area >= lo && t.area <= hi);
     let bands = call_bands(report);
-    let entries = legend_entries(report, s, !inside.is_empty());
+    let entries = legend_entries(report, s, !inside.is_empty(), &bands);
     let legend_h = canvas::legend_height(entries.len(), 2, canvas::LEGEND_FONT) + 8;
     let notes = footer_lines(report, s, &inside, &outside);
     let footer_h = (12 + FOOTER_LINE * notes.len() as i32) as u32;
@@ -359,8 +359,14 @@ fn shade(
     Some(())
 }
 
-/// Every line, marker and shade of the picture, in the order drawn.
-fn legend_entries(report: &AuditReport, s: &Sensitivity, flips: bool) -> Vec<Entry> {
+/// Every line, marker and shade of the picture, in the order drawn (a
+/// shade only if some area has it).
+fn legend_entries(
+    report: &AuditReport,
+    s: &Sensitivity,
+    flips: bool,
+    bands: &[(f64, f64, Call)],
+) -> Vec<Entry> {
     let mut out: Vec<Entry> = s
         .curves
         .iter()
@@ -410,6 +416,9 @@ fn legend_entries(report: &AuditReport, s: &Sensitivity, flips: bool) -> Vec<Ent
         format!("±z for α = {}", report.alpha),
     ));
     for (call, t) in CALL_TINTS {
+        if !bands.iter().any(|b| b.2 == call) {
+            continue;
+        }
         out.push(Entry::new(
             Swatch::FramedFill(t, RGBColor(150, 150, 150)),
             format!(
