@@ -74,7 +74,7 @@ pub fn audit_folder(
     if let Some(svg) = sensitivity_plot::sensitivity_svg(report) {
         pictures.push(Picture {
             title: "How R and z change with the study area".into(),
-            caption: "Does the call survive every defensible window, and where does it flip? Lines: each analytic edge handling over windows of the hull's shape scaled up and down; markers: the verdict-table rows at the named windows; bars: the 95 % range of R under CSR in each exact window; solid verticals: the flip thresholds.".into(),
+            caption: "Does the call survive every defensible window, and where does it flip? Lines: each analytic edge handling over windows of the hull's shape scaled up and down; markers: the verdict-table rows at the named windows; bars: the 95 % range of R under CSR in each exact window; solid verticals: the flip thresholds; shading: the call of the plain test (edge handling none) at each area.".into(),
             svg: svg.clone(),
         });
         folder.add("sensitivity.svg", svg.into_bytes());

@@ -6,7 +6,7 @@
 //! observed one. The closed-form CSR expectation without edge correction
 //! is drawn too, so the reader sees how far the edge effect moves it.
 
-use crate::canvas;
+use crate::canvas::{self, Entry, Swatch};
 use crate::document::AuditReport;
 use crate::numbers::{p_value, sig};
 use crate::palette::{Ink, edge_ink};
@@ -79,8 +79,53 @@ pub fn simulation_svg(report: &AuditReport, id: &str) -> Option<String> {
     let top = counts.iter().copied().max().unwrap_or(1) as f64 * 1.25;
     let width = (hi - lo) / BINS as f64;
 
-    canvas::svg((900, 560), |root| {
-        let (plot, footer) = root.split_vertically(480);
+    let fill = RGBColor(200, 200, 200);
+    let thicker = |ink: Ink| Ink {
+        width: ink.width + 1,
+        ..ink
+    };
+    let mut lines: Vec<(f64, Ink, String)> = vec![(
+        observed,
+        thicker(edge_ink(Edge::None)),
+        format!("observed: {} {unit}", sig(observed, 4)),
+    )];
+    if let (Some(q1), Some(q2)) = (row.sim_q025, row.sim_q975) {
+        let ink = thicker(edge_ink(Edge::Simulation));
+        lines.push((
+            q1,
+            ink,
+            format!("2.5 % of simulations: {} {unit}", sig(q1, 4)),
+        ));
+        lines.push((
+            q2,
+            ink,
+            format!("97.5 % of simulations: {} {unit}", sig(q2, 4)),
+        ));
+    }
+    lines.push((
+        formula,
+        thicker(edge_ink(Edge::Donnelly)),
+        format!(
+            "CSR formula without edge correction: {} {unit}",
+            sig(formula, 4)
+        ),
+    ));
+    let mut entries = vec![Entry::new(
+        Swatch::FramedFill(fill, RGBColor(90, 90, 90)),
+        "simulated means (histogram)",
+    )];
+    entries.extend(
+        lines
+            .iter()
+            .map(|(_, ink, label)| Entry::new(Swatch::Line(*ink), label.clone())),
+    );
+    let legend_h = canvas::legend_height(entries.len(), 2, canvas::LEGEND_FONT) + 8;
+    let plot_h = 470;
+    let footer_h = 56;
+
+    canvas::svg((900, plot_h + legend_h + footer_h), |root| {
+        let (plot, rest) = root.split_vertically(plot_h);
+        let (legend, footer) = rest.split_vertically(legend_h);
         let mut chart = ChartBuilder::on(&plot)
             .caption(
                 format!(
@@ -104,16 +149,14 @@ pub fn simulation_svg(report: &AuditReport, id: &str) -> Option<String> {
             .y_label_formatter(&|v| format!("{v:.0}"))
             .draw()
             .ok()?;
-        let fill = RGBColor(200, 200, 200).filled();
+        canvas::frame(&chart)?;
         let edge = ShapeStyle::from(&RGBColor(90, 90, 90)).stroke_width(1);
         chart
             .draw_series(counts.iter().enumerate().map(|(k, &c)| {
                 let x0 = lo + k as f64 * width;
-                Rectangle::new([(x0, 0.0), (x0 + width, c as f64)], fill)
+                Rectangle::new([(x0, 0.0), (x0 + width, c as f64)], fill.filled())
             }))
-            .ok()?
-            .label("simulated means (histogram)")
-            .legend(move |(x, y)| Rectangle::new([(x, y - 5), (x + 20, y + 5)], fill));
+            .ok()?;
         chart
             .draw_series(
                 counts
@@ -126,48 +169,11 @@ pub fn simulation_svg(report: &AuditReport, id: &str) -> Option<String> {
                     }),
             )
             .ok()?;
-        let mut vline = |x: f64, ink: Ink, label: String| {
-            let ink = Ink {
-                width: ink.width + 1,
-                ..ink
-            };
-            canvas::line(
-                &mut chart,
-                vec![(x, 0.0), (x, top * 0.92)],
-                ink,
-                Some(label),
-            )
-        };
-        vline(
-            observed,
-            edge_ink(Edge::None),
-            format!("observed: {} {unit}", sig(observed, 4)),
-        )?;
-        if let (Some(q1), Some(q2)) = (row.sim_q025, row.sim_q975) {
-            let ink = edge_ink(Edge::Simulation);
-            vline(
-                q1,
-                ink,
-                format!("2.5 % of simulations: {} {unit}", sig(q1, 4)),
-            )?;
-            vline(
-                q2,
-                ink,
-                format!("97.5 % of simulations: {} {unit}", sig(q2, 4)),
-            )?;
+        for (x, ink, _) in &lines {
+            canvas::line(&mut chart, vec![(*x, 0.0), (*x, top * 0.92)], *ink)?;
         }
-        vline(
-            formula,
-            edge_ink(Edge::Donnelly),
-            format!(
-                "CSR formula without edge correction: {} {unit}",
-                sig(formula, 4)
-            ),
-        )?;
-        canvas::legend(&mut chart)
-            .position(SeriesLabelPosition::UpperRight)
-            .draw()
-            .ok()?;
+        let legend = legend.margin(2, 4, 14, 14);
+        canvas::legend_band(&legend, &entries, 2, canvas::LEGEND_FONT)?;
         let call = crate::table::call_word(row.call);
         let lines = [
             format!(
@@ -182,7 +188,7 @@ pub fn simulation_svg(report: &AuditReport, id: &str) -> Option<String> {
             footer
                 .draw(&Text::new(
                     l.clone(),
-                    (20, 10 + 20 * k as i32),
+                    (20, 8 + 20 * k as i32),
                     ("sans-serif", 13).into_font().color(&BLACK),
                 ))
                 .ok()?;

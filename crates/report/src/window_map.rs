@@ -1,7 +1,8 @@
 //! `windows.svg`: the points and every window outline on one map, with a
-//! scale bar in the data's unit and a legend naming the windows by id.
+//! scale bar in the data's unit and a legend naming the windows by id in
+//! a band beside the map.
 
-use crate::canvas;
+use crate::canvas::{self, Entry, Mark, Shape, Swatch};
 use crate::document::AuditReport;
 use crate::palette::ink;
 use geo::{BoundingRect, LineString};
@@ -43,25 +44,36 @@ pub fn window_map_svg(report: &AuditReport, points: &[Xy]) -> Option<String> {
     let half_x = span * (px_w as f64 - 60.0) / 2.0 * 1.04;
     let half_y = span * (px_h as f64 - 120.0) / 2.0 * 1.04;
     let unit = &report.input.unit;
-    // The legend gets a strip of its own on the right, at the map's scale.
+    // The legend gets a band of its own on the right, beside the map.
     let legend_px = 190u32;
-    let legend_room = span * 1.04 * legend_px as f64;
-    canvas::svg((px_w + legend_px, px_h), |root| {
-        let mut chart = ChartBuilder::on(root)
+    let dot = Mark {
+        shape: Shape::Circle,
+        colour: BLACK,
+        filled: true,
+        size: 2,
+    };
+    let mut entries = vec![Entry::new(Swatch::Mark(dot), "points")];
+    entries.extend(
+        shapes
+            .iter()
+            .enumerate()
+            .map(|(k, (id, _))| Entry::new(Swatch::Line(ink(k)), id.to_string())),
+    );
+    canvas::svg((px_w + legend_px, px_h), |whole| {
+        let (root, legend) = whole.split_horizontally(px_w);
+        let mut chart = ChartBuilder::on(&root)
             .caption(
                 format!(
                     "Windows of {} ({} points)",
-                    report.input.points_file,
+                    canvas::plain(&report.input.points_file),
                     points.len()
                 ),
                 ("sans-serif", 18),
             )
             .margin(20)
-            .build_cartesian_2d(
-                (cx - half_x)..(cx + half_x + legend_room),
-                (cy - half_y)..(cy + half_y),
-            )
+            .build_cartesian_2d((cx - half_x)..(cx + half_x), (cy - half_y)..(cy + half_y))
             .ok()?;
+        canvas::frame(&chart)?;
         // Above MAP_ALL_POINTS, one dot per 2 × 2 pixel block (the first
         // point in it, in file order): the dots are 4 pixels across, so the
         // map looks the same, and a million points no longer make a file of
@@ -83,21 +95,15 @@ pub fn window_map_svg(report: &AuditReport, points: &[Xy]) -> Option<String> {
         let dots: Vec<Circle<(f64, f64), i32>> = shown
             .map(|p| Circle::new((p[0], p[1]), 2, BLACK.filled()))
             .collect();
-        chart
-            .draw_series(dots)
-            .ok()?
-            .label("points")
-            .legend(|(x, y)| Circle::new((x + 10, y), 2, BLACK.filled()));
-        for (k, (id, shape)) in shapes.iter().enumerate() {
+        chart.draw_series(dots).ok()?;
+        for (k, (_, shape)) in shapes.iter().enumerate() {
             let rings: Vec<&LineString<f64>> = shape
                 .iter()
                 .flat_map(|p| std::iter::once(p.exterior()).chain(p.interiors()))
                 .collect();
-            // One legend entry per window, on its first ring.
-            let mut label = Some(id.to_string());
             for ring in rings {
                 let coords: Vec<(f64, f64)> = ring.coords().map(|c| (c.x, c.y)).collect();
-                canvas::line(&mut chart, coords, ink(k), label.take())?;
+                canvas::line(&mut chart, coords, ink(k))?;
             }
         }
         // Label each outline at the vertex farthest in its own direction,
@@ -162,13 +168,7 @@ pub fn window_map_svg(report: &AuditReport, points: &[Xy]) -> Option<String> {
                 ("sans-serif", 14),
             )))
             .ok()?;
-        chart
-            .configure_series_labels()
-            .background_style(WHITE.mix(0.85))
-            .border_style(BLACK)
-            .position(SeriesLabelPosition::UpperRight)
-            .draw()
-            .ok()?;
-        Some(())
+        let legend = legend.margin(50, 10, 0, 10);
+        canvas::legend_band(&legend, &entries, 1, canvas::LEGEND_FONT)
     })
 }

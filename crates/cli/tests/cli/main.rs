@@ -11,6 +11,7 @@ mod density;
 mod glance;
 mod gpkg;
 mod output_folder;
+mod pictures;
 mod recheck;
 mod reference;
 mod report;

@@ -177,6 +177,8 @@ fn demo_plots_flag_the_window_sensitive_ones() {
         assert!(text.contains(&hash), "{f} lacks the protocol hash");
     }
     assert!(out.join("sites.svg").exists());
+    // sites.svg and each tested site's three pictures, legends off the data.
+    assert_eq!(crate::pictures::check_folder(&out), 1 + 5 * 3);
     assert!(
         !out.join("site/plot-f").exists(),
         "no sweep for a site too small to test"

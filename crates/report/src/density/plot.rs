@@ -8,11 +8,12 @@
 //! window white. No point is drawn: the maps show where the surface is high,
 //! not where the locations are.
 
-use crate::canvas;
+use crate::canvas::{self, Entry, Mark, Shape, Swatch};
 use crate::html::escape;
 use crate::numbers::sig;
 use crate::palette::ink;
 use patternproof_density::isopleth::{mass_rank, outline};
+use patternproof_density::verdict::area_words;
 use patternproof_density::{Analysis, Surface};
 use plotters::prelude::*;
 use rayon::prelude::*;
@@ -141,8 +142,9 @@ pub fn small_multiples_svg(a: &Analysis, unit: &str) -> String {
     let scale = panel / g.nx.max(g.ny) as f64;
     let (pw, ph) = (g.nx as f64 * scale, g.ny as f64 * scale);
     let (left, top, gap) = (110.0, 70.0, 14.0);
-    let width = left + specs.len() as f64 * (pw + gap) + 10.0;
-    let height = top + kernels.len() as f64 * (ph + gap + 16.0) + 60.0;
+    let width = (left + specs.len() as f64 * (pw + gap) + 10.0)
+        .max(340.0 + 150.0 * a.config.levels.len() as f64);
+    let height = top + kernels.len() as f64 * (ph + gap + 16.0) + 56.0;
     let mut svg = String::new();
     let _ = write!(
         svg,
@@ -196,7 +198,7 @@ pub fn small_multiples_svg(a: &Analysis, unit: &str) -> String {
                         return String::new();
                     };
                     let x = left + c as f64 * (pw + gap);
-                    panel_svg(a, s, x, y, pw, ph, scale)
+                    panel_svg(a, s, unit, x, y, pw, ph, scale)
                 })
                 .collect();
             row.extend(panels);
@@ -204,31 +206,69 @@ pub fn small_multiples_svg(a: &Analysis, unit: &str) -> String {
         })
         .collect();
     svg.extend(drawn);
-    let ly = height - 30.0;
+    // The legend, framed, in the band under the panels: the ramp, then one
+    // stroke per isopleth level as the panels draw it.
+    let ly = height - 44.0;
+    let levels = &a.config.levels;
+    let _ = write!(
+        svg,
+        r##"<rect x="4" y="{:.1}" width="{:.1}" height="40" fill="none" stroke="#555555"/>"##,
+        ly - 8.0,
+        width - 8.0
+    );
     for k in 0..=10 {
         let t = k as f64 / 10.0;
         let (r, g2, b) = ramp(t);
         let _ = write!(
             svg,
-            r#"<rect x="{:.1}" y="{ly:.1}" width="24" height="12" fill="rgb({r},{g2},{b})"/>"#,
-            110.0 + k as f64 * 24.0
+            r#"<rect x="{:.1}" y="{ly:.1}" width="20" height="12" fill="rgb({r},{g2},{b})"/>"#,
+            90.0 + k as f64 * 20.0
         );
     }
     let _ = write!(
         svg,
-        r#"<text x="10" y="{:.1}">mass rank</text><text x="110" y="{:.1}">0 (densest)</text><text x="330" y="{:.1}">1</text><text x="380" y="{:.1}">solid: lowest level; dashed: highest level</text></svg>"#,
+        r#"<text x="12" y="{:.1}">mass rank</text><text x="90" y="{:.1}">0 (densest)</text><text x="300" y="{:.1}" text-anchor="end">1</text>"#,
         ly + 10.0,
         ly + 26.0,
         ly + 26.0,
-        ly + 10.0
     );
+    for (li, l) in levels.iter().enumerate() {
+        let x = 330.0 + li as f64 * 150.0;
+        let dash = if li + 1 == levels.len() && li > 0 {
+            r#" stroke-dasharray="5,3""#
+        } else {
+            ""
+        };
+        let _ = write!(
+            svg,
+            r#"<path d="M{x:.1},{:.1}L{:.1},{:.1}" fill="none" stroke="black" stroke-width="1.2"{dash}/><text x="{:.1}" y="{:.1}">{} % isopleth</text>"#,
+            ly + 6.0,
+            x + 30.0,
+            ly + 6.0,
+            x + 36.0,
+            ly + 10.0,
+            sig(l * 100.0, 3)
+        );
+    }
+    let _ = write!(svg, "</svg>");
     svg.push('\n');
     svg
 }
 
 /// One panel of the small multiples: the surface's raster, its frame, its
 /// isopleth outlines and its bandwidth caption, at (x, y).
-fn panel_svg(a: &Analysis, s: &Surface, x: f64, y: f64, pw: f64, ph: f64, scale: f64) -> String {
+#[allow(clippy::too_many_arguments)] // a panel's place, size and scale
+fn panel_svg(
+    a: &Analysis,
+    s: &Surface,
+    unit: &str,
+    x: f64,
+    y: f64,
+    pw: f64,
+    ph: f64,
+    scale: f64,
+) -> String {
+    let unit = escape(unit);
     let mut out = String::new();
     if let Some(png) = surface_png(a, s) {
         let _ = write!(
@@ -239,11 +279,11 @@ fn panel_svg(a: &Analysis, s: &Surface, x: f64, y: f64, pw: f64, ph: f64, scale:
     }
     let _ = write!(
         out,
-        r##"<rect x="{x:.1}" y="{y:.1}" width="{pw:.1}" height="{ph:.1}" fill="none" stroke="#999"/>"##
+        r##"<rect x="{x:.1}" y="{y:.1}" width="{pw:.1}" height="{ph:.1}" fill="none" stroke="#999999"/>"##
     );
     for li in 0..s.levels.len() {
         let d = outline_path(a, s, li, x, y, scale);
-        let dash = if li + 1 == s.levels.len() {
+        let dash = if li + 1 == s.levels.len() && li > 0 {
             r#" stroke-dasharray="5,3""#
         } else {
             ""
@@ -255,7 +295,7 @@ fn panel_svg(a: &Analysis, s: &Surface, x: f64, y: f64, pw: f64, ph: f64, scale:
     }
     let _ = write!(
         out,
-        r#"<text x="{x:.1}" y="{:.1}" font-size="10">h = {} (σ-equiv. {})</text>"#,
+        r#"<text x="{x:.1}" y="{:.1}" font-size="10">h = {} {unit} (σ-equiv. {} {unit})</text>"#,
         y + ph + 12.0,
         sig(s.bandwidth, 3),
         sig(s.gaussian_equivalent, 3)
@@ -263,8 +303,23 @@ fn panel_svg(a: &Analysis, s: &Surface, x: f64, y: f64, pw: f64, ph: f64, scale:
     out
 }
 
+/// The unit of a level's areas in `areas.svg` and the factor from unit²:
+/// km² where the summary sentence says km² for that level (the rule of
+/// [`area_words`], over every surface as the summary counts them).
+fn area_unit(a: &Analysis, level: usize, unit: &str) -> (String, f64) {
+    let areas = a.surfaces.iter().map(|s| s.levels[level].region.area);
+    let (lo, hi) = areas.fold((f64::INFINITY, 0.0f64), |(l, h), x| (l.min(x), h.max(x)));
+    let (_, _, words) = area_words(lo, hi, unit);
+    if words == "km²" {
+        (words, 1e-6)
+    } else {
+        (words, 1.0)
+    }
+}
+
 /// Isopleth area against the Gaussian-equivalent bandwidth, one line per
-/// kernel (first edge handling), one panel per level stacked.
+/// kernel (first edge handling), one panel per level stacked, the legend
+/// in a band under the panels.
 pub fn area_chart_svg(a: &Analysis, unit: &str) -> Option<String> {
     let edge = a.config.edges.first().copied()?;
     let levels = &a.config.levels;
@@ -275,7 +330,22 @@ pub fn area_chart_svg(a: &Analysis, unit: &str) -> Option<String> {
         return None;
     }
     let (x_lo, x_hi) = (x_lo / 1.15, x_hi * 1.15);
-    let height = 80 + 300 * levels.len() as u32;
+    let dot = |k: usize| Mark {
+        shape: Shape::Circle,
+        colour: ink(k).colour,
+        filled: true,
+        size: 3,
+    };
+    let entries: Vec<Entry> = a
+        .config
+        .kernels
+        .iter()
+        .enumerate()
+        .map(|(k, kernel)| Entry::new(Swatch::LineMark(ink(k), dot(k)), kernel.name()))
+        .collect();
+    let legend_h = canvas::legend_height(entries.len(), 3, canvas::LEGEND_FONT) + 10;
+    let panels_h = 300 * levels.len() as u32;
+    let height = 40 + panels_h + legend_h;
     canvas::svg((820, height), |root| {
         let root = root
             .titled(
@@ -286,9 +356,14 @@ pub fn area_chart_svg(a: &Analysis, unit: &str) -> Option<String> {
                 ("sans-serif", 18),
             )
             .ok()?;
-        let panels = root.split_evenly((levels.len().max(1), 1));
+        let (body, legend) = root.split_vertically(panels_h);
+        let panels = body.split_evenly((levels.len().max(1), 1));
         for (li, area) in panels.iter().enumerate().take(levels.len()) {
-            let ys: Vec<f64> = pts.iter().map(|s| s.levels[li].region.area).collect();
+            let (area_unit, factor) = area_unit(a, li, unit);
+            let ys: Vec<f64> = pts
+                .iter()
+                .map(|s| s.levels[li].region.area * factor)
+                .collect();
             let y_hi = ys.iter().copied().fold(0.0, f64::max) * 1.1;
             let mut chart = ChartBuilder::on(area)
                 .margin(10)
@@ -305,35 +380,27 @@ pub fn area_chart_svg(a: &Analysis, unit: &str) -> Option<String> {
                 .configure_mesh()
                 .disable_mesh()
                 .x_desc(format!(
-                    "Gaussian-equivalent bandwidth ({unit}, canonical scaling)"
+                    "Gaussian-equivalent bandwidth ({unit}, canonical scaling; log scale)"
                 ))
-                .y_desc(format!("area ({unit}²)"))
+                .y_desc(format!("area ({area_unit})"))
                 .x_label_formatter(&|v| sig(*v, 3))
                 .y_label_formatter(&|v| sig(*v, 3))
                 .draw()
                 .ok()?;
+            canvas::frame(&chart)?;
             for (k, kernel) in a.config.kernels.iter().enumerate() {
                 let mut line: Vec<(f64, f64)> = pts
                     .iter()
                     .filter(|s| s.kernel == *kernel)
-                    .map(|s| (s.gaussian_equivalent, s.levels[li].region.area))
+                    .map(|s| (s.gaussian_equivalent, s.levels[li].region.area * factor))
                     .collect();
                 line.sort_by(|p, q| p.0.total_cmp(&q.0));
-                let i = ink(k);
-                canvas::line(&mut chart, line.clone(), i, Some(kernel.name().into()))?;
-                chart
-                    .draw_series(
-                        line.iter()
-                            .map(|p| Circle::new(*p, 3, ShapeStyle::from(&i.colour).filled())),
-                    )
-                    .ok()?;
+                canvas::line(&mut chart, line.clone(), ink(k))?;
+                canvas::marks(chart.plotting_area(), dot(k), line)?;
             }
-            canvas::legend(&mut chart)
-                .position(SeriesLabelPosition::UpperLeft)
-                .draw()
-                .ok()?;
         }
-        Some(())
+        let legend = legend.margin(4, 6, 12, 12);
+        canvas::legend_band(&legend, &entries, 3, canvas::LEGEND_FONT)
     })
 }
 

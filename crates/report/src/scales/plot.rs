@@ -7,16 +7,42 @@
 //! * `corrections.svg` — small multiples, one panel per correction, with
 //!   every window's L̂ − r: how far the choice of window moves the curve.
 //!
+//! The panels of a picture share one y-scale, since they are read against
+//! each other, and one legend in a band under the panels. Both pictures are
+//! [`WIDTH`] pixels wide, under the width the page shows a figure at
+//! (1 040 pixels), so their text stays at the size written: every label
+//! is at least 11 pixels.
+//!
 //! Colours and dashes come from [`crate::palette`] (Okabe–Ito,
 //! each colour with its own dash pattern); no hot/cold colour convention.
 
-use crate::canvas::{self, Canvas};
+use crate::canvas::{self, Canvas, Entry, Swatch};
 use crate::numbers::{p_value, trimmed};
 use crate::palette::{Ink, ink};
 use patternproof_scales::k_function::Correction;
 use patternproof_scales::scales::{ScalesRun, WindowScales};
 use plotters::coord::types::RangedCoordf64;
 use plotters::prelude::*;
+
+/// Width of both pictures in pixels.
+pub const WIDTH: u32 = 1000;
+/// Font size (plotters units, 1.24 per SVG pixel) of tick labels, axis
+/// names and legends: 14 is 11.3 pixels.
+const TEXT: u32 = 14;
+/// The band of the global envelope.
+const BAND: RGBColor = RGBColor(215, 215, 215);
+/// The pointwise envelope.
+const THIN: Ink = Ink {
+    colour: RGBColor(120, 120, 120),
+    width: 1,
+    dash: Some((3, 3)),
+};
+/// The CSR line.
+const ZERO: Ink = Ink {
+    colour: RGBColor(120, 120, 120),
+    width: 1,
+    dash: None,
+};
 
 /// The ink of a correction, the same in every picture.
 pub fn correction_ink(c: Correction) -> Ink {
@@ -61,15 +87,10 @@ fn y_range<'a>(series: impl Iterator<Item = &'a [Option<f64>]>) -> (f64, f64) {
     (lo - pad, hi + pad)
 }
 
-/// A curve split at its gaps ([`points`]), labelled once.
-fn draw_line(
-    chart: &mut Chart<'_, '_>,
-    segs: Vec<Vec<(f64, f64)>>,
-    style: Ink,
-    mut label: Option<String>,
-) -> Option<()> {
+/// A curve split at its gaps ([`points`]).
+fn draw_line(chart: &mut Chart<'_, '_>, segs: Vec<Vec<(f64, f64)>>, style: Ink) -> Option<()> {
     for s in segs {
-        canvas::line(chart, s, style, label.take())?;
+        canvas::line(chart, s, style)?;
     }
     Some(())
 }
@@ -83,59 +104,49 @@ fn l_chart<'a, 'b>(
     hi: f64,
 ) -> Option<Chart<'a, 'b>> {
     let mut chart = ChartBuilder::on(area)
-        .caption(caption, ("sans-serif", 15))
+        .caption(caption, ("sans-serif", TEXT + 1))
         .margin(8)
-        .x_label_area_size(34)
-        .y_label_area_size(50)
+        .margin_right(14)
+        .x_label_area_size(40)
+        .y_label_area_size(58)
         .build_cartesian_2d(0.0..run.rmax, lo..hi)
         .ok()?;
     chart
         .configure_mesh()
         .disable_mesh()
+        .label_style(("sans-serif", TEXT))
+        .axis_desc_style(("sans-serif", TEXT))
+        .x_labels(6)
+        .y_labels(6)
         .x_desc(format!("distance r ({})", run.unit))
         .y_desc(format!("L(r) − r ({})", run.unit))
         .x_label_formatter(&|v| trimmed(*v, 3))
         .y_label_formatter(&|v| trimmed(*v, 3))
         .draw()
         .ok()?;
+    canvas::frame(&chart)?;
     Some(chart)
 }
 
-/// The legend, in the upper left corner of a panel.
-fn legend<'a, 'b: 'a>(chart: &mut Chart<'a, 'b>) -> Option<()> {
-    canvas::legend(chart)
-        .label_font(("sans-serif", 11))
-        .position(SeriesLabelPosition::UpperLeft)
-        .draw()
-        .ok()
+/// The tested curve and its test of a window: what `scales.svg` draws.
+fn tested(w: &WindowScales) -> Option<(Correction, &[Option<f64>])> {
+    let test = w.tests.first();
+    let c = test.map(|t| t.correction).unwrap_or(Correction::Isotropic);
+    let curve = w.curves.iter().find(|k| k.correction == c)?;
+    Some((c, curve.l_minus_r.as_slice()))
 }
 
-/// One window's panel. The legend is the same in every panel, so only the
-/// first draws it, above the curves in headroom of its own (a legend drawn
-/// over the data hid the observed curve where it rises highest).
+/// One window's panel, on the picture's common y-range.
 fn window_panel(
     area: &Canvas<'_>,
     run: &ScalesRun,
     w: &WindowScales,
-    with_legend: bool,
+    lo: f64,
+    hi: f64,
 ) -> Option<()> {
     let r = &run.r;
     let test = w.tests.first();
-    let tested = test.map(|t| t.correction).unwrap_or(Correction::Isotropic);
-    let curve = w.curves.iter().find(|c| c.correction == tested)?;
-    let mut all: Vec<&[Option<f64>]> = vec![curve.l_minus_r.as_slice()];
-    if let Some(t) = test {
-        all.extend([
-            t.lo.as_slice(),
-            t.hi.as_slice(),
-            t.pointwise_lo.as_slice(),
-            t.pointwise_hi.as_slice(),
-        ]);
-    }
-    let (lo, mut hi) = y_range(all.into_iter());
-    if with_legend {
-        hi += 0.6 * (hi - lo);
-    }
+    let (correction, observed) = tested(w)?;
     let title = match test {
         Some(t) => format!("{} (n = {}): MAD p = {}", w.id, w.n, p_value(t.p)),
         None => format!("{} (n = {}): no test", w.id, w.n),
@@ -154,73 +165,32 @@ fn window_panel(
             )
             .collect();
         if !band.is_empty() {
-            let fill = RGBColor(215, 215, 215).filled();
             chart
-                .draw_series(std::iter::once(Polygon::new(band, fill)))
-                .ok()?
-                .label(format!(
-                    "global envelope band (MAD test, α = {}, {} simulations)",
-                    t.alpha, t.sims
-                ))
-                .legend(move |(x, y)| Rectangle::new([(x, y - 5), (x + 20, y + 5)], fill));
+                .draw_series(std::iter::once(Polygon::new(band, BAND.filled())))
+                .ok()?;
         }
-        let thin = Ink {
-            colour: RGBColor(120, 120, 120),
-            width: 1,
-            dash: Some((3, 3)),
-        };
-        draw_line(
-            &mut chart,
-            points(r, &t.pointwise_lo),
-            thin,
-            Some("pointwise envelope (not a test)".into()),
-        )?;
-        draw_line(&mut chart, points(r, &t.pointwise_hi), thin, None)?;
+        draw_line(&mut chart, points(r, &t.pointwise_lo), THIN)?;
+        draw_line(&mut chart, points(r, &t.pointwise_hi), THIN)?;
     }
-    let zero = Ink {
-        colour: RGBColor(120, 120, 120),
-        width: 1,
-        dash: None,
-    };
-    draw_line(
-        &mut chart,
-        vec![vec![(0.0, 0.0), (run.rmax, 0.0)]],
-        zero,
-        Some("CSR: L(r) − r = 0".into()),
-    )?;
-    draw_line(
-        &mut chart,
-        points(r, &curve.l_minus_r),
-        correction_ink(tested),
-        Some(format!("observed, {} correction", tested.as_str())),
-    )?;
-    if with_legend {
-        legend(&mut chart)?;
-    }
-    Some(())
+    draw_line(&mut chart, vec![vec![(0.0, 0.0), (run.rmax, 0.0)]], ZERO)?;
+    draw_line(&mut chart, points(r, observed), correction_ink(correction))
 }
 
 /// One correction's panel: every window's L̂ − r, one ink per window.
-fn correction_panel(area: &Canvas<'_>, run: &ScalesRun, c: Correction) -> Option<()> {
-    let series: Vec<&[Option<f64>]> = run
-        .windows
-        .iter()
-        .filter_map(|w| w.curves.iter().find(|k| k.correction == c))
-        .map(|k| k.l_minus_r.as_slice())
-        .collect();
-    let (lo, hi) = y_range(series.iter().copied());
+fn correction_panel(
+    area: &Canvas<'_>,
+    run: &ScalesRun,
+    c: Correction,
+    lo: f64,
+    hi: f64,
+) -> Option<()> {
     let mut chart = l_chart(area, run, format!("{} correction", c.as_str()), lo, hi)?;
     for (k, w) in run.windows.iter().enumerate() {
         if let Some(curve) = w.curves.iter().find(|x| x.correction == c) {
-            draw_line(
-                &mut chart,
-                points(&run.r, &curve.l_minus_r),
-                ink(k),
-                Some(w.id.clone()),
-            )?;
+            draw_line(&mut chart, points(&run.r, &curve.l_minus_r), ink(k))?;
         }
     }
-    legend(&mut chart)
+    Some(())
 }
 
 fn grid_shape(k: usize) -> (usize, usize) {
@@ -235,19 +205,26 @@ fn grid_shape(k: usize) -> (usize, usize) {
 }
 
 /// A grid of `panels` panels under a one-line `title`, panel k drawn by
-/// `panel(k, area)`: the one frame of both pictures.
+/// `panel(k, area)`, with `legend` in a band under the panels: the one
+/// frame of both pictures.
 fn panel_grid(
     panels: usize,
     title: &str,
+    legend: &[Entry],
     mut panel: impl FnMut(usize, &Canvas<'_>) -> Option<()>,
 ) -> Option<String> {
     let (cols, rows) = grid_shape(panels);
-    canvas::svg((460 * cols as u32, 340 * rows as u32 + 40), |root| {
-        let (head, body) = root.split_vertically(40);
-        head.draw(&Text::new(
+    let panel_h: u32 = if cols == 3 { 300 } else { 330 };
+    let legend_cols = if legend.len() > 4 { 4 } else { 2 };
+    let legend_h = canvas::legend_height(legend.len(), legend_cols, TEXT) + 10;
+    let head = 36;
+    canvas::svg((WIDTH, head + panel_h * rows as u32 + legend_h), |root| {
+        let (top, rest) = root.split_vertically(head);
+        let (body, bottom) = rest.split_vertically(panel_h * rows as u32);
+        top.draw(&Text::new(
             title,
             (14, 12),
-            ("sans-serif", 15).into_font().color(&BLACK),
+            ("sans-serif", TEXT + 2).into_font().color(&BLACK),
         ))
         .ok()?;
         for (k, area) in body
@@ -258,7 +235,8 @@ fn panel_grid(
         {
             panel(k, area)?;
         }
-        Some(())
+        let bottom = bottom.margin(4, 6, 10, 10);
+        canvas::legend_band(&bottom, legend, legend_cols, TEXT)
     })
 }
 
@@ -268,10 +246,53 @@ pub fn scales_svg(run: &ScalesRun) -> Option<String> {
     if run.windows.is_empty() {
         return None;
     }
+    let mut all: Vec<&[Option<f64>]> = Vec::new();
+    for w in &run.windows {
+        if let Some((_, observed)) = tested(w) {
+            all.push(observed);
+        }
+        if let Some(t) = w.tests.first() {
+            all.extend([
+                t.lo.as_slice(),
+                t.hi.as_slice(),
+                t.pointwise_lo.as_slice(),
+                t.pointwise_hi.as_slice(),
+            ]);
+        }
+    }
+    let (lo, hi) = y_range(all.into_iter());
+    let mut legend = Vec::new();
+    if let Some(t) = run.windows.iter().find_map(|w| w.tests.first()) {
+        legend.push(Entry::new(
+            Swatch::Fill(BAND),
+            format!(
+                "global envelope band (MAD test, α = {}, {} simulations)",
+                t.alpha, t.sims
+            ),
+        ));
+        legend.push(Entry::new(
+            Swatch::Line(THIN),
+            "pointwise envelope (not a test)",
+        ));
+    }
+    legend.push(Entry::new(Swatch::Line(ZERO), "CSR: L(r) − r = 0"));
+    let mut shown: Vec<Correction> = Vec::new();
+    for w in &run.windows {
+        if let Some((c, _)) = tested(w)
+            && !shown.contains(&c)
+        {
+            shown.push(c);
+            legend.push(Entry::new(
+                Swatch::Line(correction_ink(c)),
+                format!("observed, {} correction", c.as_str()),
+            ));
+        }
+    }
     panel_grid(
         run.windows.len(),
         "L(r) − r in every window: above the shaded global band = clustering at r, below = regularity",
-        |k, area| window_panel(area, run, &run.windows[k], k == 0),
+        &legend,
+        |k, area| window_panel(area, run, &run.windows[k], lo, hi),
     )
 }
 
@@ -280,9 +301,24 @@ pub fn corrections_svg(run: &ScalesRun) -> Option<String> {
     if run.windows.is_empty() || run.corrections.is_empty() {
         return None;
     }
+    let series: Vec<&[Option<f64>]> = run
+        .windows
+        .iter()
+        .flat_map(|w| w.curves.iter())
+        .filter(|k| run.corrections.contains(&k.correction))
+        .map(|k| k.l_minus_r.as_slice())
+        .collect();
+    let (lo, hi) = y_range(series.into_iter());
+    let legend: Vec<Entry> = run
+        .windows
+        .iter()
+        .enumerate()
+        .map(|(k, w)| Entry::new(Swatch::Line(ink(k)), w.id.clone()))
+        .collect();
     panel_grid(
         run.corrections.len(),
         "L(r) − r by edge correction: one line per window (no test drawn here)",
-        |k, area| correction_panel(area, run, run.corrections[k]),
+        &legend,
+        |k, area| correction_panel(area, run, run.corrections[k], lo, hi),
     )
 }

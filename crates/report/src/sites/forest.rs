@@ -1,8 +1,9 @@
 //! `sites.svg`: every site's R with its 95 % interval on one common axis,
-//! window-sensitive sites marked, sites without a test listed.
+//! window-sensitive sites marked, and a legend under the plot that shows
+//! each marker.
 
-use crate::canvas;
-use crate::palette::INKS;
+use crate::canvas::{self, Entry, Mark, Shape, Swatch};
+use crate::palette::{INKS, Ink};
 use patternproof_core::Call;
 use patternproof_sites::SiteRun;
 use plotters::prelude::*;
@@ -27,9 +28,47 @@ pub fn forest_svg(runs: &[SiteRun]) -> Option<String> {
     let pad = 0.08 * (hi - lo).max(0.05);
     let (lo, hi) = (lo - pad, hi + pad);
     let rows = tested.len();
-    let height = (90 + 24 * rows as u32).min(20_000);
-    canvas::svg((900, height), |root| {
-        let mut chart = ChartBuilder::on(root)
+    let plain = INKS[0].colour;
+    let flagged = INKS[2].colour;
+    let mark = |shape, colour, filled| Mark {
+        shape,
+        colour,
+        filled,
+        size: if shape == Shape::Triangle { 6 } else { 5 },
+    };
+    let dashed = Ink {
+        colour: BLACK,
+        width: 1,
+        dash: Some((5, 4)),
+    };
+    let entries = [
+        Entry::new(
+            Swatch::Mark(mark(Shape::Circle, plain, true)),
+            "significant after adjustment",
+        ),
+        Entry::new(
+            Swatch::Mark(mark(Shape::Circle, plain, false)),
+            "not significant",
+        ),
+        Entry::new(
+            Swatch::Mark(mark(Shape::Triangle, flagged, false)),
+            "window-sensitive (filled if significant)",
+        ),
+        Entry::new(
+            Swatch::Line(Ink {
+                colour: plain,
+                width: 2,
+                dash: None,
+            }),
+            "95 % interval of R",
+        ),
+        Entry::new(Swatch::Line(dashed), "R = 1, the CSR value"),
+    ];
+    let legend_h = canvas::legend_height(entries.len(), 3, canvas::LEGEND_FONT) + 8;
+    let plot_h = (80 + 24 * rows as u32).min(20_000);
+    canvas::svg((900, plot_h + legend_h), |whole| {
+        let (root, legend) = whole.split_vertically(plot_h);
+        let mut chart = ChartBuilder::on(&root)
             .caption(
                 "R by site under the protocol (95 % interval)",
                 ("sans-serif", 17),
@@ -48,19 +87,13 @@ pub fn forest_svg(runs: &[SiteRun]) -> Option<String> {
             .x_label_formatter(&|v| format!("{v:.2}"))
             .draw()
             .ok()?;
-        chart
-            .draw_series(DashedLineSeries::new(
-                vec![(1.0, 0.0), (1.0, rows as f64)],
-                5,
-                4,
-                BLACK.stroke_width(1),
-            ))
-            .ok()?;
+        canvas::frame(&chart)?;
+        canvas::line(&mut chart, vec![(1.0, 0.0), (1.0, rows as f64)], dashed)?;
         for (k, r) in tested.iter().enumerate() {
             let y = rows as f64 - k as f64 - 0.5;
             let sensitive = r.window_sensitive == Some(true);
-            let ink = if sensitive { INKS[2] } else { INKS[0] };
-            let style = ShapeStyle::from(&ink.colour).stroke_width(2);
+            let colour = if sensitive { flagged } else { plain };
+            let style = ShapeStyle::from(&colour).stroke_width(2);
             if let (Some(a), Some(b)) = (r.ratio_low, r.ratio_high) {
                 chart
                     .draw_series(std::iter::once(PathElement::new(
@@ -71,16 +104,12 @@ pub fn forest_svg(runs: &[SiteRun]) -> Option<String> {
             }
             let x = r.ratio.unwrap_or(1.0);
             let filled = matches!(r.call, Some(Call::Clustered) | Some(Call::Dispersed));
-            let marker = if filled { style.filled() } else { style };
-            if sensitive {
-                chart
-                    .draw_series(std::iter::once(TriangleMarker::new((x, y), 7, marker)))
-                    .ok()?;
+            let shape = if sensitive {
+                Shape::Triangle
             } else {
-                chart
-                    .draw_series(std::iter::once(Circle::new((x, y), 5, marker)))
-                    .ok()?;
-            }
+                Shape::Circle
+            };
+            canvas::marks(chart.plotting_area(), mark(shape, colour, filled), [(x, y)])?;
             let label = format!(
                 "{}{}",
                 names[k],
@@ -89,16 +118,11 @@ pub fn forest_svg(runs: &[SiteRun]) -> Option<String> {
             root.draw(&Text::new(
                 label,
                 (14, chart.backend_coord(&(lo, y)).1 - 7),
-                ("sans-serif", 13).into_font().color(&ink.colour),
+                ("sans-serif", 13).into_font().color(&colour),
             ))
             .ok()?;
         }
-        root.draw(&Text::new(
-        "filled: significant after adjustment; open: not significant; triangle: window-sensitive",
-        (14, height as i32 - 16),
-        ("sans-serif", 12).into_font().color(&BLACK),
-    ))
-    .ok()?;
-        Some(())
+        let legend = legend.margin(0, 6, 12, 12);
+        canvas::legend_band(&legend, &entries, 3, canvas::LEGEND_FONT)
     })
 }
