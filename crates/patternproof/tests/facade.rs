@@ -140,9 +140,10 @@ fn default_simulation_counts_follow_the_rule() {
 fn checksummed_input_names_the_bytes_it_was_read_from() {
     use sha2::Digest;
     let track = repo().join("demo-data/marsh-hare-track.csv");
-    let data = patternproof::load(&track, &[], &LoadOptions::default()).unwrap();
-    let input = Input::checksummed(&data).unwrap();
-    let want: String = sha2::Sha256::digest(std::fs::read(&track).unwrap())
+    let data =
+        patternproof::load(&track, &[], &LoadOptions::default()).expect("the demo track loads");
+    let input = Input::checksummed(&data).expect("the track is hashed");
+    let want: String = sha2::Sha256::digest(std::fs::read(&track).expect("the track reads"))
         .iter()
         .map(|b| format!("{b:02x}"))
         .collect();
