@@ -32,8 +32,8 @@ run() {
     rm -rf "$work/out"
   done
 }
-run "gaussian:scott, edge none" --kernels gaussian --bandwidths scott --edge none
-run "gaussian:scott, edges none+uniform" --kernels gaussian --bandwidths scott --edge none,uniform
-run "5 kernels x scott,0.5x,2x, edge none" --bandwidths scott,0.5x,2x --edge none
-run "gaussian:lcv (binned, 41 bandwidths)" --kernels gaussian --bandwidths lcv --edge none
+run "gaussian:scott, edge none" --kernels gaussian --bandwidths scott --edges none
+run "gaussian:scott, edges none+uniform" --kernels gaussian --bandwidths scott --edges none,uniform
+run "5 kernels x scott,0.5x,2x, edge none" --bandwidths scott,0.5x,2x --edges none
+run "gaussian:lcv (binned, 41 bandwidths)" --kernels gaussian --bandwidths lcv --edges none
 rm -rf "$work"

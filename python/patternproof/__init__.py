@@ -607,7 +607,7 @@ class DensityResult(_Document):
     """Kernel density across kernels, bandwidths and edges (``density.json``).
 
     >>> d = density("demo-data/meadow-burrows.csv", ["demo-data/meadow-boundary.geojson"],
-    ...             kernels="gaussian", bandwidths="scott", edge="none")
+    ...             kernels="gaussian", bandwidths="scott", edges="none")
     >>> d.schema
     'patternproof.density/1'
     """
@@ -847,14 +847,14 @@ def density(
     bandwidths: Union[str, Sequence[Any]] = BANDWIDTHS,
     cell: Optional[float] = None,
     levels: Union[str, Sequence[Any]] = LEVELS,
-    edge: Union[str, Sequence[str]] = DENSITY_EDGES,
+    edges: Union[str, Sequence[str]] = DENSITY_EDGES,
     reference: str = "gaussian:scott",
 ) -> DensityResult:
     """Kernel density across kernels, bandwidths and edge handlings (``patternproof density``).
 
     ``to_json()`` gives the exact bytes of ``density.json``.
 
-    >>> d = density("demo-data/meadow-burrows.csv", kernels="gaussian,quartic", bandwidths="scott", edge="none")
+    >>> d = density("demo-data/meadow-burrows.csv", kernels="gaussian,quartic", bandwidths="scott", edges="none")
     >>> len(d.surfaces)
     2
     """
@@ -869,7 +869,7 @@ def density(
         _words("bandwidths", bandwidths),
         _number("cell", cell),
         _words("levels", levels),
-        _words("edge", edge),
+        _words("edges", edges),
         reference,
     )
     _warn(warnings)

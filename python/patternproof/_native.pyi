@@ -74,7 +74,7 @@ def density(
     bandwidths: Sequence[str],
     cell: Optional[float],
     levels: Sequence[str],
-    edge: Sequence[str],
+    edges: Sequence[str],
     reference: str,
 ) -> Tuple[str, List[str]]: ...
 

@@ -391,7 +391,7 @@ fn scales(
 /// Kernel density across kernels, bandwidths and edge handlings:
 /// `density.json` and the warnings.
 #[pyfunction]
-#[pyo3(signature = (points, boundaries, coords, unit, drop_duplicates, gpkg, kernels, bandwidths, cell, levels, edge, reference))]
+#[pyo3(signature = (points, boundaries, coords, unit, drop_duplicates, gpkg, kernels, bandwidths, cell, levels, edges, reference))]
 #[allow(clippy::too_many_arguments)]
 fn density(
     py: Python<'_>,
@@ -405,7 +405,7 @@ fn density(
     bandwidths: Vec<String>,
     cell: Option<f64>,
     levels: Vec<String>,
-    edge: Vec<String>,
+    edges: Vec<String>,
     reference: String,
 ) -> PyResult<Document> {
     let points = points_arg(points)?;
@@ -427,7 +427,7 @@ fn density(
             bandwidths: &bandwidths,
             cell,
             levels: &levels,
-            edges: &edge,
+            edges: &edges,
             reference: &reference,
         };
         let config = options::density(&words, &data.unit)?;
@@ -441,6 +441,7 @@ fn density(
             window_source: result.window_source.clone(),
             window_area: result.window_area,
             warnings: data.warnings.clone(),
+            inputs: Vec::new(),
         };
         let mut text = json(&patternproof_report::density::document(
             &result.analysis,

@@ -309,7 +309,7 @@ def test_tables_out_are_the_documents_rows(tmp_path):
     # Every result has its rows as a table.
     scales = patternproof.scales(POINTS, [BOUNDARY], sims=19, steps=5)
     assert scales.table().num_rows == len(scales.rows) > 0
-    density = patternproof.density(POINTS, [BOUNDARY], kernels="gaussian", bandwidths="scott", edge="none")
+    density = patternproof.density(POINTS, [BOUNDARY], kernels="gaussian", bandwidths="scott", edges="none")
     assert density.table().num_rows == len(density.surfaces) == 1
     recheck = patternproof.recheck("64", ratio="0.71", z="-4.9", p="<0.001")
     assert recheck.table().num_rows == 0

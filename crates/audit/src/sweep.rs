@@ -51,7 +51,7 @@ impl Default for AuditOptions {
             alpha: 0.05,
             edges: Edge::ALL.to_vec(),
             guard: None,
-            sims: 999,
+            sims: patternproof_core::default_sims::TEST_SIMS,
             seed: 1,
         }
     }

@@ -5,7 +5,7 @@ use crate::fail::Failure;
 use crate::interrupt;
 use crate::window_args::WindowArgs;
 use clap::{Args, Parser, Subcommand, ValueEnum};
-use patternproof::options::CoordChoice;
+use patternproof::options::{CoordChoice, SCREEN_SIMS, TEST_SIMS};
 use patternproof_report::{FolderError, OutputFolder, WriteOptions, write_folder};
 use std::path::PathBuf;
 
@@ -195,8 +195,10 @@ pub struct AuditArgs {
     /// Guard width for `border` (default: the observed mean nearest-neighbour distance).
     #[arg(long, value_name = "W", allow_negative_numbers = true)]
     pub guard: Option<f64>,
-    /// CSR simulations per window for the Monte Carlo test and the false-alarm rates.
-    #[arg(long, default_value_t = 999, value_parser = count::<usize>, allow_negative_numbers = true)]
+    /// CSR simulations per window for the Monte Carlo test and the false-alarm rates
+    /// (default by the one rule of every command: 999 where the p-value is the result, 99
+    /// where simulations screen windows or distances at α).
+    #[arg(long, default_value_t = TEST_SIMS, value_parser = count::<usize>, allow_negative_numbers = true)]
     pub sims: usize,
     /// Seed of every random stream (printed in the report).
     #[arg(long, default_value_t = 1, value_parser = count::<u64>, allow_negative_numbers = true)]
@@ -214,22 +216,33 @@ pub struct AuditArgs {
     #[arg(long)]
     pub stamp: bool,
     /// Also audit Ripley's K and the L function in every window (as
-    /// `patternproof scales` with its defaults), adding its files and a
-    /// section to `index.html`.
+    /// `patternproof scales` with its defaults, so the same sims, seed, rmax and
+    /// steps give the same bands), adding its files and a section to `index.html`.
     #[arg(long)]
     pub scales: bool,
-    /// CSR simulations per window for the K envelope test of `--scales`.
-    #[arg(long, default_value_t = 199, value_name = "N", value_parser = count::<usize>, allow_negative_numbers = true)]
+    /// CSR simulations per window for the K envelope test of `--scales`, as `scales --sims`
+    /// (default by the one rule of every command: 999 where the p-value is the result, 99
+    /// where simulations screen windows or distances at α).
+    #[arg(long, default_value_t = SCREEN_SIMS, value_name = "N", value_parser = count::<usize>, allow_negative_numbers = true)]
     pub scales_sims: usize,
     /// Largest distance of `--scales` (default: a quarter of the shorter
     /// side of the bounding rectangle of the window where that side is smallest).
     #[arg(long, value_name = "R", allow_hyphen_values = true)]
     pub scales_rmax: Option<f64>,
-    /// No progress bar.
-    #[arg(long, short)]
-    pub quiet: bool,
+    #[command(flatten)]
+    pub quiet: Quiet,
     #[command(flatten)]
     pub output: OutArgs,
+}
+
+/// `-q`/`--quiet`, one meaning in every command that has it (`audit`,
+/// `scales`, `density`, `sites`): only the running commentary goes.
+#[derive(Debug, Clone, Copy, Args)]
+pub struct Quiet {
+    /// No progress bar and no forecast of the run's time; the reading line, warnings, results
+    /// and the closing `wrote … to DIR` line still print, and errors always do.
+    #[arg(long, short)]
+    pub quiet: bool,
 }
 
 /// The value parser of every count and seed option: a whole number of 0

@@ -12,9 +12,7 @@ use patternproof::cost::audit as simulation;
 use patternproof::options::{AuditOptions, ScalesOptions, WindowOptions};
 use patternproof::words;
 use patternproof_report::matrix::{self, VerdictMatrix};
-use patternproof_report::{
-    AuditReport, OutputFolder, Plane, RenderChoices, RunContext, audit_folder, table,
-};
+use patternproof_report::{AuditReport, Plane, RenderChoices, RunContext, audit_folder, table};
 
 /// Run the command.
 pub fn run(a: &AuditArgs) -> Result<(), Failure> {
@@ -56,12 +54,12 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
     };
     // One set of windows for the sweep and, with --scales, for K.
     let frame = patternproof::frame(&input, &options.windows)?;
-    let report = patternproof::audit_in(&input, &frame, &options, &Progress::new(a.quiet))?;
+    let report = patternproof::audit_in(&input, &frame, &options, &Progress::new(a.quiet.quiet))?;
     let scales = match &scales_options {
         Some(scales_options) => Some(scales_cmd::compute(
             &ScalesJob::from_frame(&input, &frame),
             scales_options,
-            a.quiet,
+            a.quiet.quiet,
             "--scales-sims",
         )?),
         None => None,
@@ -91,7 +89,7 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
     let folder = audit_folder(&report, plane, &choices, &context)?;
     a.output.write(&folder)?;
 
-    print_summary(&report, &a.output.out, &folder);
+    print_summary(&report);
     if let Some(k) = &scales {
         println!("\nRipley's K across the same windows (--scales):");
         print!(
@@ -99,6 +97,7 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
             patternproof_report::scales::terminal_text(&k.run, &k.notes)
         );
     }
+    println!("\n{}", crate::common::wrote_line(&folder, &a.output.out));
     Ok(())
 }
 
@@ -130,12 +129,12 @@ fn check_budget(
         && let Some(trial) = simulation::trial_seconds(&data.points, 0.2, 64)
     {
         let seconds = |sims: usize| trial * sims as f64 * windows as f64 / threads as f64;
-        budget::check_time("--sims", a.sims, seconds, threads, a.quiet)?;
+        budget::check_time("--sims", a.sims, seconds, threads, a.quiet.quiet)?;
     }
     Ok(())
 }
 
-fn print_summary(report: &AuditReport, out: &std::path::Path, folder: &OutputFolder) {
+fn print_summary(report: &AuditReport) {
     for w in &report.input.warnings {
         eprintln!("patternproof: warning: {w}");
     }
@@ -163,9 +162,4 @@ fn print_summary(report: &AuditReport, out: &std::path::Path, folder: &OutputFol
     for c in &report.summary.cautions {
         println!("{}", matrix::paragraph(c, width, "caution: ", "  "));
     }
-    println!(
-        "\nwrote {} to {}",
-        folder.names().collect::<Vec<_>>().join(", "),
-        out.display()
-    );
 }

@@ -6,12 +6,20 @@ use crate::args::InputArgs;
 use crate::fail::Failure;
 use patternproof::Dataset;
 use patternproof::options::{GpkgChoice, LoadOptions, parse_filter};
-use patternproof_report::html;
+use patternproof_report::{OutputFolder, html};
+use std::path::Path;
 
 /// The command line as typed, quoted where needed, for the report's page.
+/// The program is named `patternproof` whatever path it was started by,
+/// so a page names no folder of the machine it was made on and every
+/// command's page begins alike.
 pub fn command_line() -> String {
-    std::env::args_os()
-        .map(|s| html::shell_quote(&s.to_string_lossy()))
+    std::iter::once("patternproof".to_string())
+        .chain(
+            std::env::args_os()
+                .skip(1)
+                .map(|s| html::shell_quote(&s.to_string_lossy())),
+        )
         .collect::<Vec<_>>()
         .join(" ")
 }
@@ -106,5 +114,43 @@ impl Screen {
     /// The width to lay text out in.
     pub fn layout_width(&self) -> usize {
         self.width.unwrap_or(PIPED_WIDTH)
+    }
+}
+
+/// The closing line of every command that writes a report folder:
+/// `wrote a, b, c to DIR`, naming the files at the top of the folder in
+/// the order they were made and each sub-folder once (`figures/`, or
+/// `site/*/` for a folder of folders).
+pub fn wrote_line(folder: &OutputFolder, out: &Path) -> String {
+    let mut shown: Vec<String> = Vec::new();
+    for name in folder.names() {
+        let entry = match name.split_once('/') {
+            None => name.to_string(),
+            Some((top, rest)) if rest.contains('/') => format!("{top}/*/"),
+            Some((top, _)) => format!("{top}/"),
+        };
+        if !shown.contains(&entry) {
+            shown.push(entry);
+        }
+    }
+    format!("wrote {} to {}", shown.join(", "), out.display())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_closing_line_names_top_files_and_each_sub_folder_once() {
+        let mut folder = OutputFolder::default();
+        folder.add("sites.csv", Vec::new());
+        folder.add("index.html", Vec::new());
+        folder.add("site/a/report.json", Vec::new());
+        folder.add("site/b/report.json", Vec::new());
+        folder.add("figures/one.png", Vec::new());
+        assert_eq!(
+            wrote_line(&folder, Path::new("out")),
+            "wrote sites.csv, index.html, site/*/, figures/ to out"
+        );
     }
 }

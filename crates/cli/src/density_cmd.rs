@@ -7,7 +7,6 @@ use clap::Args;
 use patternproof::options::DensityConfig as Config;
 use patternproof_report::RunContext;
 use patternproof_report::density::RunInfo;
-use patternproof_report::html::shell_quote;
 
 /// `patternproof density`.
 #[derive(Debug, Args)]
@@ -44,7 +43,7 @@ pub struct DensityArgs {
         allow_hyphen_values = true
     )]
     pub levels: Vec<String>,
-    /// Edge handlings: none, uniform (divide by the kernel mass inside the window
+    /// Edge handlings to sweep: none, uniform (divide by the kernel mass inside the window
     /// at each cell), diggle (weight each point by it).
     #[arg(
         long,
@@ -52,13 +51,14 @@ pub struct DensityArgs {
         default_value = "none,uniform",
         value_name = "LIST"
     )]
-    pub edge: Vec<String>,
-    /// Reference surface, `KERNEL:BANDWIDTH[:EDGE]` (default edge: the first of --edge).
+    pub edges: Vec<String>,
+    /// Reference surface, `KERNEL:BANDWIDTH[:EDGE]` (default edge: the first of --edges).
     #[arg(long, default_value = "gaussian:scott", value_name = "K:B")]
     pub reference: String,
-    /// Print nothing but errors.
-    #[arg(long, short)]
-    pub quiet: bool,
+    // `-q`: density shows no progress bar and no forecast, so it changes
+    // nothing here; taken so that every command accepts it with one meaning.
+    #[command(flatten)]
+    pub quiet: crate::args::Quiet,
     #[command(flatten)]
     pub output: crate::args::OutArgs,
 }
@@ -70,7 +70,7 @@ fn parse_config(a: &DensityArgs, unit: &str) -> Result<Config, Failure> {
         bandwidths: &a.bandwidths,
         cell: a.cell,
         levels: &a.levels,
-        edges: &a.edge,
+        edges: &a.edges,
         reference: &a.reference,
     };
     Ok(patternproof::words::density(&words, unit)?)
@@ -85,23 +85,15 @@ pub fn run(a: &DensityArgs) -> Result<(), Failure> {
         )));
     }
     let data = crate::common::load(&a.input)?;
-    if !a.quiet {
-        crate::common::print_reading(&data);
-    }
+    crate::common::print_reading(&data);
     let config = parse_config(a, &data.unit)?;
     let points_name = a.input.points.display().to_string();
-    let input = patternproof::Input::from_dataset(&data);
+    let input = patternproof::Input::checksummed(&data)?;
     let patternproof::DensityResult {
         analysis,
         window_source: source,
         window_area: area,
     } = patternproof::density(&input, &config)?;
-    let mut command = vec!["patternproof".to_string()];
-    command.extend(
-        std::env::args_os()
-            .skip(1)
-            .map(|s| shell_quote(&s.to_string_lossy())),
-    );
     let info = RunInfo {
         points_file: points_name.clone(),
         n_read: data.n_read,
@@ -111,19 +103,18 @@ pub fn run(a: &DensityArgs) -> Result<(), Failure> {
         window_source: source,
         window_area: area,
         warnings: data.warnings.clone(),
+        inputs: input.digests.clone(),
     };
     let context = RunContext {
-        command_line: command.join(" "),
+        command_line: crate::common::command_line(),
         ..RunContext::default()
     };
     let folder = patternproof_report::density::folder(&analysis, &info, &context)?;
     a.output.write(&folder)?;
-    if !a.quiet {
-        for w in info.warnings.iter().chain(&analysis.warnings) {
-            eprintln!("patternproof: warning: {w}");
-        }
-        println!("{}", analysis.verdict.sentence);
-        println!("report: {}", a.output.out.display());
+    for w in info.warnings.iter().chain(&analysis.warnings) {
+        eprintln!("patternproof: warning: {w}");
     }
+    println!("{}", analysis.verdict.sentence);
+    println!("{}", crate::common::wrote_line(&folder, &a.output.out));
     Ok(())
 }

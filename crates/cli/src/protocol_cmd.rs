@@ -4,7 +4,9 @@
 use crate::args::count;
 use crate::fail::Failure;
 use clap::{Args, Subcommand};
-use patternproof::options::{Adjust, Check, Edge, PROTOCOL_SCHEMA as SCHEMA, Protocol, WindowRule};
+use patternproof::options::{
+    Adjust, Check, Edge, PROTOCOL_SCHEMA as SCHEMA, Protocol, TEST_SIMS, WindowRule,
+};
 use std::path::{Path, PathBuf};
 
 /// `patternproof protocol`.
@@ -37,8 +39,9 @@ pub struct NewArgs {
     /// Two-sided significance level.
     #[arg(long, default_value_t = 0.05, allow_negative_numbers = true)]
     pub alpha: f64,
-    /// CSR simulations per site.
-    #[arg(long, default_value_t = 999, value_parser = count::<usize>, allow_negative_numbers = true)]
+    /// CSR simulations per site (default by the one rule of every command: 999 where the
+    /// p-value is the result, 99 where simulations screen windows or distances at α).
+    #[arg(long, default_value_t = TEST_SIMS, value_parser = count::<usize>, allow_negative_numbers = true)]
     pub sims: usize,
     /// Seed; each site's streams derive from it and the site's name.
     #[arg(long, default_value_t = 1, value_parser = count::<u64>, allow_negative_numbers = true)]
@@ -52,7 +55,7 @@ pub struct NewArgs {
     /// Guard width for `border` (default: each site's mean nearest-neighbour distance).
     #[arg(long, value_name = "W", allow_negative_numbers = true)]
     pub guard: Option<f64>,
-    /// Concavity of the concave hull.
+    /// Concavity of the concave hull (smaller cuts deeper into the gaps between points).
     #[arg(long, default_value_t = 2.0, allow_negative_numbers = true)]
     pub concavity: f64,
     /// Free text: who fixed the protocol, when, why.

@@ -4,11 +4,11 @@
 //! The flags and the run function live here together; the checks are in
 //! the `patternproof-recheck` crate.
 
-use crate::args::CoordsArg;
+use crate::args::CoordArgs;
 use crate::fail::Failure;
 use clap::Args;
 use patternproof::options::{
-    CoordChoice, Figures, LoadOptions, Problem, Quantity, parse_count, parse_figure as parse,
+    Figures, LoadOptions, Problem, Quantity, parse_count, parse_figure as parse,
 };
 use std::path::PathBuf;
 
@@ -43,18 +43,25 @@ pub struct RecheckArgs {
     /// The reported p is one-sided (the tail in the direction of the departure).
     #[arg(long)]
     pub one_sided: bool,
-    /// The points, to find which window and edge handling reproduce the figures.
+    /// The points, to find which window and edge handling reproduce the figures: CSV, GeoJSON
+    /// or GeoPackage (.gpkg), as the other commands read them.
     #[arg(long, value_name = "FILE")]
     pub points: Option<PathBuf>,
-    /// A study-area boundary (GeoJSON Polygon/MultiPolygon or WKT); repeat for several.
+    /// A study-area boundary (GeoJSON Polygon/MultiPolygon, WKT or GeoPackage); repeat for several.
     #[arg(long = "boundary", value_name = "FILE", requires = "points")]
     pub boundaries: Vec<PathBuf>,
-    /// How to read the points' coordinates.
-    #[arg(long, value_enum, default_value_t = CoordsArg::Auto)]
-    pub coords: CoordsArg,
-    /// Name of the unit of projected coordinates.
-    #[arg(long, default_value = "m")]
-    pub unit: String,
+    /// GeoPackage point layer to read (needed when the file holds more than one feature layer).
+    #[arg(long, value_name = "NAME", requires = "points")]
+    pub layer: Option<String>,
+    /// GeoPackage polygon layer of the `--boundary` GeoPackage files.
+    #[arg(long, value_name = "NAME", requires = "points")]
+    pub boundary_layer: Option<String>,
+    /// Keep only the points whose column (CSV, GeoPackage) or property (GeoJSON) FIELD equals
+    /// VALUE as text (e.g. `--where year=2024`).
+    #[arg(long = "where", value_name = "FIELD=VALUE", requires = "points")]
+    pub filter: Option<String>,
+    #[command(flatten)]
+    pub coords: CoordArgs,
     /// Remove points that repeat an earlier point exactly before matching n.
     #[arg(long, requires = "points")]
     pub drop_duplicates: bool,
@@ -102,13 +109,16 @@ pub fn run(a: &RecheckArgs) -> Result<(), Failure> {
     let f = figures(a)?;
     let data = match &a.points {
         Some(path) => {
-            let coords = CoordChoice::from(a.coords);
             let options = LoadOptions {
-                coords,
-                unit: a.unit.clone(),
+                coords: a.coords.choice(),
+                unit: a.coords.unit.clone(),
                 drop_duplicates: a.drop_duplicates,
                 field: None,
-                gpkg: Default::default(),
+                gpkg: crate::common::gpkg_choice(
+                    a.layer.clone(),
+                    a.boundary_layer.clone(),
+                    a.filter.as_deref(),
+                )?,
             };
             let data = patternproof::load(path, &a.boundaries, &options)?;
             crate::common::print_reading(&data);

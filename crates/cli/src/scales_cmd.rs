@@ -5,7 +5,7 @@
 //! The flags and the run function live here together; the estimators and
 //! the test are in the `patternproof-scales` crate.
 
-use crate::args::{InputArgs, OutArgs, count};
+use crate::args::{InputArgs, OutArgs, Quiet, count};
 use crate::budget;
 use crate::common::load;
 use crate::fail::Failure;
@@ -13,9 +13,10 @@ use crate::progress::Progress;
 use crate::window_args::WindowArgs;
 use clap::Args;
 use patternproof::cost::scales as memory;
-use patternproof::options::ScalesOptions;
+use patternproof::options::{SCREEN_SIMS, ScalesOptions};
 use patternproof::words;
 use patternproof::{ScalesJob, ScalesResult, WindowOptions};
+use patternproof_report::RunContext;
 
 /// `patternproof scales`.
 ///
@@ -52,8 +53,10 @@ pub struct ScalesArgs {
     /// Number of distances on the grid r_max·k/steps, k = 1..steps.
     #[arg(long, default_value_t = 50, value_parser = count::<usize>, allow_negative_numbers = true)]
     pub steps: usize,
-    /// CSR simulations per window for the envelope test (0: no test).
-    #[arg(long, default_value_t = 99, value_parser = count::<usize>, allow_negative_numbers = true)]
+    /// CSR simulations per window for the envelope test; 0: no test (default by the one rule
+    /// of every command: 999 where the p-value is the result, 99 where simulations screen
+    /// windows or distances at α).
+    #[arg(long, default_value_t = SCREEN_SIMS, value_parser = count::<usize>, allow_negative_numbers = true)]
     pub sims: usize,
     /// Seed of every random stream (printed in the report).
     #[arg(long, default_value_t = 1, value_parser = count::<u64>, allow_negative_numbers = true)]
@@ -61,9 +64,8 @@ pub struct ScalesArgs {
     /// Significance level of the global test.
     #[arg(long, default_value_t = 0.05, allow_hyphen_values = true)]
     pub alpha: f64,
-    /// No progress bar.
-    #[arg(long, short)]
-    pub quiet: bool,
+    #[command(flatten)]
+    pub quiet: Quiet,
     #[command(flatten)]
     pub output: OutArgs,
 }
@@ -94,15 +96,24 @@ pub fn run(a: &ScalesArgs) -> Result<(), Failure> {
     };
     let windows = budget::outlined_windows(buffers.len(), data.boundaries.len());
     check_memory("--sims", &options, data.points.len(), windows, 0)?;
-    let input = patternproof::Input::from_dataset(&data);
+    let input = patternproof::Input::checksummed(&data)?;
     let windows = WindowOptions {
         buffers,
         area: None,
         concavity,
     };
     let job = ScalesJob::prepare(&input, &windows)?;
-    let ScalesResult { run, notes } = compute(&job, &options, a.quiet, "--sims")?;
-    let folder = patternproof_report::scales::folder(&run)?;
+    let ScalesResult { run, notes } = compute(&job, &options, a.quiet.quiet, "--sims")?;
+    let source = patternproof_report::scales::Source {
+        input: &input.summary,
+        digests: &input.digests,
+        notes: &notes,
+    };
+    let context = RunContext {
+        command_line: crate::common::command_line(),
+        ..RunContext::default()
+    };
+    let folder = patternproof_report::scales::folder(&run, source, &context)?;
     a.output.write(&folder)?;
 
     for w in &data.warnings {
@@ -112,11 +123,7 @@ pub fn run(a: &ScalesArgs) -> Result<(), Failure> {
         "{}",
         patternproof_report::scales::terminal_text(&run, &notes)
     );
-    println!(
-        "\nwrote {} to {}",
-        folder.names().collect::<Vec<_>>().join(", "),
-        a.output.out.display()
-    );
+    println!("\n{}", crate::common::wrote_line(&folder, &a.output.out));
     Ok(())
 }
 

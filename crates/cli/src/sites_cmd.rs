@@ -1,6 +1,6 @@
 //! `patternproof sites`: one locked protocol over many sites.
 
-use crate::args::{CoordArgs, OutArgs, count};
+use crate::args::{CoordArgs, OutArgs, Quiet, count};
 use crate::budget;
 use crate::fail::Failure;
 use crate::progress::Progress;
@@ -8,7 +8,7 @@ use clap::Args;
 use patternproof::Dataset;
 use patternproof::cost::audit as simulation;
 use patternproof::options::SitesOptions as RunOptions;
-use patternproof::options::{LoadOptions, Protocol};
+use patternproof::options::{LoadOptions, Protocol, SCREEN_SIMS};
 use patternproof::{Site, SitesSource};
 use patternproof::{SiteInput, SiteRun, sites_document as document};
 use patternproof_report::sites::SiteInputs;
@@ -51,16 +51,16 @@ pub struct SitesArgs {
     /// Remove points that repeat an earlier point of the same site exactly.
     #[arg(long)]
     pub drop_duplicates: bool,
-    /// Simulations per window in each site's window-sensitivity sweep (the
-    /// protocol window always gets the protocol's number).
-    #[arg(long, default_value_t = 99, value_parser = count::<usize>, allow_negative_numbers = true)]
+    /// Simulations per window in each site's window-sensitivity sweep; the protocol window
+    /// always gets the protocol's number (default by the one rule of every command: 999 where
+    /// the p-value is the result, 99 where simulations screen windows or distances at α).
+    #[arg(long, default_value_t = SCREEN_SIMS, value_parser = count::<usize>, allow_negative_numbers = true)]
     pub sweep_sims: usize,
     /// Leave the point maps out of the per-site reports.
     #[arg(long)]
     pub no_map: bool,
-    /// No progress bar and no forecast of the run's time.
-    #[arg(long, short)]
-    pub quiet: bool,
+    #[command(flatten)]
+    pub quiet: Quiet,
     #[command(flatten)]
     pub output: OutArgs,
 }
@@ -92,8 +92,8 @@ pub fn run(a: &SitesArgs) -> Result<(), Failure> {
     let opts = RunOptions {
         sweep_sims: a.sweep_sims,
     };
-    check_budget(&inputs, &protocol, opts, a.quiet)?;
-    let runs = patternproof::sites(&loaded, &protocol, opts, &Progress::new(a.quiet))?;
+    check_budget(&inputs, &protocol, opts, a.quiet.quiet)?;
+    let runs = patternproof::sites(&loaded, &protocol, opts, &Progress::new(a.quiet.quiet))?;
     let folder = outputs(a, &protocol, sites, datasets, &runs)?;
     a.output.write(&folder)?;
 
@@ -128,10 +128,7 @@ pub fn run(a: &SitesArgs) -> Result<(), Failure> {
     for n in &doc.notes {
         println!("  caution: {n}");
     }
-    println!(
-        "wrote sites.csv, sites.md, sites.json, sites.svg, index.html and site/*/ to {}",
-        a.output.out.display()
-    );
+    println!("{}", crate::common::wrote_line(&folder, &a.output.out));
     Ok(())
 }
 

@@ -19,7 +19,7 @@ pub struct WindowArgs {
         allow_hyphen_values = true
     )]
     pub buffers: Vec<String>,
-    /// Concavity of the concave hull (geo's parameter; smaller cuts deeper).
+    /// Concavity of the concave hull (smaller cuts deeper into the gaps between points).
     #[arg(long, default_value_t = 2.0, allow_negative_numbers = true)]
     pub concavity: f64,
 }

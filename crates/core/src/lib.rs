@@ -17,6 +17,7 @@
 //! | [`guard_zone`] | moments of the guard-zone (border) test |
 //! | [`toroidal`] | nearest-neighbour distances on a torus |
 //! | [`monte_carlo`] | rank p-values and quantiles for simulation tests |
+//! | [`default_sims`] | the one rule for how many simulations a run makes by default |
 //! | [`numbers`] | numbers for people: the one formatter of every table, page and sentence |
 //! | [`order`] | the canonical point order that makes every sum independent of the input's row order |
 //!
@@ -27,6 +28,7 @@ pub mod call;
 pub mod clark_evans;
 pub mod close_pairs;
 pub mod curve_tree;
+pub mod default_sims;
 pub mod donnelly;
 pub mod flip;
 pub mod grid_nearest;

@@ -115,8 +115,8 @@ impl Dataset {
             )?;
             warnings.extend(g.warnings);
             let layer = match &options.gpkg.filter {
-                Some(f) => format!("layer `{}`, {} = {}", g.layer, f.field, f.value),
-                None => format!("layer `{}`", g.layer),
+                Some(f) => format!("layer \"{}\", {} = {}", g.layer, f.field, f.value),
+                None => format!("layer \"{}\"", g.layer),
             };
             (g.raw, g.unit, g.srs, Some(layer))
         } else {

@@ -229,7 +229,7 @@ fn decide(
         system,
         unit: None,
         warning: None,
-        basis: Basis::stated(format!("layer `{}` is in {}", layer.name, srs.label())),
+        basis: Basis::stated(format!("layer \"{}\" is in {}", layer.name, srs.label())),
     };
     let undefined = srs.definition.trim().eq_ignore_ascii_case("undefined");
     if srs.srs_id == -1
@@ -239,13 +239,13 @@ fn decide(
             system: CoordSystem::Projected,
             unit: None,
             warning: Some(format!(
-                "{}: layer `{}` is in the undefined Cartesian system (srs_id {}); coordinates are read as planar in --unit",
+                "{}: layer \"{}\" is in the undefined Cartesian system (srs_id {}); coordinates are read as planar in --unit",
                 path.display(),
                 layer.name,
                 srs.srs_id
             )),
             basis: Basis::inferred(format!(
-                "layer `{}` is in the undefined Cartesian system (srs_id {})",
+                "layer \"{}\" is in the undefined Cartesian system (srs_id {})",
                 layer.name, srs.srs_id
             )),
         });
@@ -253,7 +253,7 @@ fn decide(
     if srs.srs_id == 0 {
         return Ok(Decision {
             basis: Basis::inferred(format!(
-                "layer `{}` is in the undefined geographic system (srs_id 0)",
+                "layer \"{}\" is in the undefined geographic system (srs_id 0)",
                 layer.name
             )),
             ..named(CoordSystem::LonLat)
@@ -407,7 +407,7 @@ pub fn read_points(
     let mut warnings: Vec<String> = decision.warning.into_iter().collect();
     if other_srs > 0 {
         warnings.push(format!(
-            "{}: {other_srs} feature(s) of layer `{}` carry another srs_id in their geometry header than the layer's {}; the layer's system is used",
+            "{}: {other_srs} feature(s) of layer \"{}\" carry another srs_id in their geometry header than the layer's {}; the layer's system is used",
             path.display(),
             layer.name,
             layer.srs_id

@@ -52,7 +52,7 @@ pub fn concavity(c: f64) -> Result<f64, Error> {
         Err(setting(
             format!("--concavity {c}"),
             "must be a positive number",
-            "leave it out for geo's default 2.0",
+            "give e.g. --concavity 2 (the default; smaller cuts deeper)",
         ))
     }
 }
@@ -235,7 +235,7 @@ pub fn density(w: &DensityWords<'_>, unit: &str) -> Result<crate::DensityConfig,
     for e in w.edges {
         let edge = DensityEdge::parse(e).ok_or_else(|| {
             bad(
-                "--edge",
+                "--edges",
                 format!("unknown edge handling {e:?}"),
                 "use none, uniform or diggle",
             )

@@ -187,3 +187,35 @@ fn a_progress_can_stop_a_long_run() {
         serde_json::to_string(&b).expect("json")
     );
 }
+
+/// The default simulation counts of every entry follow the one rule of
+/// `options::default_sims`: 999 where the p-value is the result (the
+/// audit), 99 where simulations screen (the K envelopes, the sites'
+/// sweeps), so a front end that takes the defaults agrees with the CLI.
+#[test]
+fn default_simulation_counts_follow_the_rule() {
+    use patternproof::options::{SCREEN_SIMS, ScalesOptions, TEST_SIMS};
+    assert_eq!((TEST_SIMS, SCREEN_SIMS), (999, 99));
+    assert_eq!(AuditOptions::default().sims, TEST_SIMS);
+    assert_eq!(ScalesOptions::default().sims, SCREEN_SIMS);
+    assert_eq!(SitesOptions::default().sweep_sims, SCREEN_SIMS);
+}
+
+/// The density page's provenance needs the input checksums: a loaded
+/// file is hashed by `Input::checksummed` (the SHA-256 of the demo track,
+/// recomputed with sha2), and `Input::from_dataset` takes none.
+#[test]
+fn checksummed_input_names_the_bytes_it_was_read_from() {
+    use sha2::Digest;
+    let track = repo().join("demo-data/marsh-hare-track.csv");
+    let data =
+        patternproof::load(&track, &[], &LoadOptions::default()).expect("the demo track loads");
+    let input = Input::checksummed(&data).expect("the track is hashed");
+    let want: String = sha2::Sha256::digest(std::fs::read(&track).expect("the track reads"))
+        .iter()
+        .map(|b| format!("{b:02x}"))
+        .collect();
+    assert_eq!(input.digests.len(), 1);
+    assert_eq!(input.digests[0].sha256, want);
+    assert!(Input::from_dataset(&data).digests.is_empty());
+}

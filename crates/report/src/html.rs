@@ -6,7 +6,7 @@
 //! hostile name shows as text and never runs. [`escape`] does the same for
 //! the hand-built SVG pictures.
 
-use crate::document::AuditReport;
+use crate::document::{AuditReport, FileDigest, InputSummary};
 use crate::numbers::{fixed, p_value, percent, sig};
 use crate::page::{page, prose, trusted_svg};
 use crate::table::{call_symbol, call_word, flip_lines};
@@ -87,28 +87,7 @@ pub fn index_html(
         }
 
         h2 id="input" { "Input" }
-        table {
-            tr { th { "points file" } td { code { (i.points_file) } } }
-            tr {
-                th { "points" }
-                td {
-                    (i.n) " analysed of " (i.n_read) " read; " (i.duplicates) " duplicate(s) "
-                    (if i.duplicates_dropped { "removed" } else { "kept" })
-                }
-            }
-            tr { th { "coordinates" } td { (i.coords) } }
-            tr {
-                th { "projection" }
-                td { (i.projection.as_deref().unwrap_or("none (planar input)")) }
-            }
-            tr { th { "unit" } td { (u) " (areas in " (u) "²)" } }
-            @for b in &i.boundaries {
-                tr { th { "boundary" } td { code { (b.name) } " from " code { (b.file) } } }
-            }
-            @for w in &i.warnings {
-                tr { th { "warning" } td { (prose(w)) } }
-            }
-        }
+        (input_table(i))
 
         @for p in pictures {
             h2 { (prose(&p.title)) }
@@ -204,15 +183,7 @@ pub fn index_html(
             }
         }
 
-        h2 id="provenance" { "Provenance" }
-        table {
-            tr { th { "input file" } th { "SHA-256" } }
-            @for d in &report.provenance.inputs {
-                tr { td { code { (d.file) } } td { code { (d.sha256) } } }
-            }
-        }
-        p { "Command line:" }
-        pre { (provenance.command_line) }
+        (provenance_block(&report.provenance.inputs, &provenance.command_line))
         p {
             "Protocol: "
             (provenance.protocol.as_deref().unwrap_or("none (choices made on the command line)"))
@@ -227,6 +198,54 @@ pub fn index_html(
         }
     };
     page(&format!("patternproof audit of {}", i.points_file), body)
+}
+
+/// The input table of a page: the points file, how many points were
+/// analysed, how the coordinates were read, the unit, the boundaries and
+/// the warnings (the audit's and the K audit's pages).
+pub fn input_table(i: &InputSummary) -> Markup {
+    let u = i.unit.as_str();
+    html! {
+        table {
+            tr { th { "points file" } td { code { (i.points_file) } } }
+            tr {
+                th { "points" }
+                td {
+                    (i.n) " analysed of " (i.n_read) " read; " (i.duplicates) " duplicate(s) "
+                    (if i.duplicates_dropped { "removed" } else { "kept" })
+                }
+            }
+            tr { th { "coordinates" } td { (i.coords) } }
+            tr {
+                th { "projection" }
+                td { (i.projection.as_deref().unwrap_or("none (planar input)")) }
+            }
+            tr { th { "unit" } td { (u) " (areas in " (u) "²)" } }
+            @for b in &i.boundaries {
+                tr { th { "boundary" } td { code { (b.name) } " from " code { (b.file) } } }
+            }
+            @for w in &i.warnings {
+                tr { th { "warning" } td { (prose(w)) } }
+            }
+        }
+    }
+}
+
+/// The provenance heading every page ends with: the SHA-256 of each input
+/// file, so a reader can tell which bytes the page was made from, and the
+/// command line as typed.
+pub fn provenance_block(inputs: &[FileDigest], command_line: &str) -> Markup {
+    html! {
+        h2 id="provenance" { "Provenance" }
+        table {
+            tr { th { "input file" } th { "SHA-256" } }
+            @for d in inputs {
+                tr { td { code { (d.file) } } td { code { (d.sha256) } } }
+            }
+        }
+        p { "Command line:" }
+        pre { (command_line) }
+    }
 }
 
 /// An anchor id of letters, digits and `-` only.

@@ -41,7 +41,7 @@ impl Default for ScalesOptions {
             tested: vec![Correction::Isotropic],
             rmax: None,
             steps: 50,
-            sims: 99,
+            sims: patternproof_core::default_sims::SCREEN_SIMS,
             seed: 1,
             alpha: 0.05,
         }

@@ -116,6 +116,16 @@ pub struct RunOptions {
     pub sweep_sims: usize,
 }
 
+impl Default for RunOptions {
+    /// A screening sweep: [`SCREEN_SIMS`](patternproof_core::default_sims::SCREEN_SIMS)
+    /// per window, by the one rule of `patternproof_core::default_sims`.
+    fn default() -> Self {
+        Self {
+            sweep_sims: patternproof_core::default_sims::SCREEN_SIMS,
+        }
+    }
+}
+
 /// The seed of a site's streams: from the protocol seed and the site's
 /// name only.
 pub fn site_seed(seed: u64, name: &str) -> u64 {

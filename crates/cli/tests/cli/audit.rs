@@ -805,21 +805,46 @@ fn every_command_says_how_it_read_the_points() {
             assert_eq!(json["schema"], "patternproof.recheck/2");
         }
     }
-    let o = bin()
-        .args([
+    // `-q` means what it means in every command (issue 22): no progress
+    // bar and no forecast. A misreading is never silent, so the reading
+    // line stays, and density, which shows neither, prints what it prints
+    // without `-q`.
+    let density = |quiet: bool, folder: &str| {
+        let mut args = vec![
             "density",
             meadow,
             "--kernels",
             "gaussian",
             "--bandwidths",
             "scott",
-            "--quiet",
-            "--out",
-        ])
-        .arg(out("q"))
-        .output()
-        .unwrap();
-    assert!(o.status.success() && o.stderr.is_empty() && o.stdout.is_empty());
+        ];
+        if quiet {
+            args.push("--quiet");
+        }
+        let o = bin()
+            .args(&args)
+            .arg("--out")
+            .arg(out(folder))
+            .output()
+            .unwrap();
+        assert!(o.status.success(), "{}", stderr(&o));
+        (stdout(&o).replace(&out(folder), "OUT"), stderr(&o))
+    };
+    let (quiet_out, quiet_err) = density(true, "q");
+    let (loud_out, loud_err) = density(false, "l");
+    assert_eq!(quiet_out, loud_out);
+    assert_eq!(quiet_err, loud_err);
+    assert!(
+        quiet_err.starts_with("patternproof: reading "),
+        "{quiet_err}"
+    );
+    assert_eq!(
+        quiet_out.lines().last(),
+        Some(
+            "wrote density.json, isopleths.geojson, reference.tif, surfaces.svg, areas.svg, index.html to OUT"
+        ),
+        "{quiet_out}"
+    );
 }
 
 /// Issue 20: `--sims 1000000000` used to run for ever, its kept results

@@ -21,7 +21,7 @@ fn density_on_the_demo_track() {
         "gaussian,quartic,uniform",
         "--bandwidths",
         "scott,lcv,2x",
-        "--edge",
+        "--edges",
         "none,diggle",
         "--quiet",
         "--out",
@@ -78,6 +78,39 @@ fn density_on_the_demo_track() {
     }
     let html = std::fs::read_to_string(out.join("index.html")).expect("html");
     assert!(html.contains("id=\"density\"") && html.contains("personal data"));
+    // The provenance of every page: the SHA-256 of the input (recomputed
+    // here with sha2, a general-purpose library) and the command line.
+    let digest =
+        crate::util::sha256_hex(&crate::util::repo().join("demo-data/marsh-hare-track.csv"));
+    assert!(
+        html.contains(&format!(
+            "<tr><td><code>{}</code></td><td><code>{digest}</code></td></tr>",
+            track()
+        )),
+        "the input's SHA-256"
+    );
+    assert!(
+        html.contains("<pre>patternproof density "),
+        "the command line"
+    );
+    // -q means what it means everywhere: no progress bar and no forecast,
+    // but the reading line, the verdict and the closing line still print.
+    assert!(
+        stderr(&o).contains("patternproof: reading "),
+        "{}",
+        stderr(&o)
+    );
+    let printed = crate::util::stdout(&o);
+    let lines: Vec<&str> = printed.lines().collect();
+    assert_eq!(lines.len(), 2, "{printed}");
+    assert_eq!(lines[0], sentence);
+    assert_eq!(
+        lines[1],
+        format!(
+            "wrote density.json, isopleths.geojson, reference.tif, surfaces.svg, areas.svg, index.html to {}",
+            out.display()
+        )
+    );
     let gj: serde_json::Value =
         serde_json::from_str(&std::fs::read_to_string(out.join("isopleths.geojson")).expect("gj"))
             .expect("parse");
@@ -97,7 +130,7 @@ fn bad_density_input_exits_2() {
         (vec!["--kernels", "triweight"], "--kernels"),
         (vec!["--bandwidths", "wide"], "--bandwidths"),
         (vec!["--levels", "120"], "--levels"),
-        (vec!["--edge", "mirror"], "--edge"),
+        (vec!["--edges", "mirror"], "--edges"),
         (vec!["--reference", "gaussian"], "--reference"),
         (vec!["--cell", "0"], "--cell"),
     ] {
@@ -157,7 +190,7 @@ fn isopleths_in_small_units_keep_their_shape() {
             "gaussian",
             "--bandwidths",
             "scott",
-            "--edge",
+            "--edges",
             "none",
             "--quiet",
             "--out",

@@ -84,10 +84,134 @@ fn projected_layer_and_boundary_give_the_csv_and_wkt_report() {
         g["input"]["points_file"]
             .as_str()
             .unwrap()
-            .contains("layer `plots_utm`"),
+            .ends_with("survey.gpkg (layer \"plots_utm\")"),
         "{}",
         g["input"]["points_file"]
     );
+}
+
+/// Issue 22: the layer is named in quotes, not Markdown backticks, in the
+/// reading line and in the page (a code element holds the whole label).
+#[test]
+fn the_layer_is_named_without_backticks() {
+    let dir = tmp();
+    let out = dir.path().join("g");
+    let o_str = out.display().to_string();
+    let survey = fixture("survey.gpkg");
+    let o = run(&[
+        "audit",
+        &survey,
+        "--layer",
+        "plots_utm",
+        "--sims",
+        "0",
+        "--quiet",
+        "--out",
+        &o_str,
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let err = stderr(&o);
+    assert!(
+        err.contains(&format!(
+            "patternproof: reading {survey} as projected coordinates in m (layer \"plots_utm\" is in EPSG:32633 (WGS 84 / UTM zone 33N))"
+        )),
+        "{err}"
+    );
+    let page = std::fs::read_to_string(out.join("index.html")).unwrap();
+    assert!(
+        page.contains(&format!(
+            "<code>{survey} (layer &quot;plots_utm&quot;)</code>"
+        )),
+        "the page names the layer in quotes"
+    );
+    assert!(!page.contains('`'), "no raw backtick on the page");
+}
+
+/// `recheck --points` reads a GeoPackage layer and boundary layer as the
+/// other commands do: the same comparison rows as the same data given as
+/// CSV and WKT, and the figures of the boundary window's plain row are
+/// attributed to it.
+#[test]
+fn recheck_reads_geopackage_layers() {
+    let survey = fixture("survey.gpkg");
+    let recheck = |extra: &[&str]| -> Value {
+        let mut args = vec!["recheck", "--n", "40", "--ratio", "1.0", "--json"];
+        args.extend_from_slice(extra);
+        let o = run(&args);
+        assert!(o.status.success(), "{args:?}: {}", stderr(&o));
+        serde_json::from_slice(&o.stdout).unwrap()
+    };
+    let g = recheck(&[
+        "--points",
+        &survey,
+        "--layer",
+        "plots_utm",
+        "--boundary",
+        &survey,
+        "--boundary-layer",
+        "area_utm",
+    ]);
+    let c = recheck(&[
+        "--points",
+        &fixture("plots_utm.csv"),
+        "--boundary",
+        &fixture("area_utm.wkt"),
+    ]);
+    let rows = |v: &Value| v["points"]["rows"].clone();
+    assert!(!rows(&g).as_array().unwrap().is_empty());
+    assert_eq!(rows(&g), rows(&c));
+    assert_eq!(g["matches"], c["matches"]);
+    // The boundary window's plain row, printed to three decimals, is
+    // reproduced by that window.
+    let boundary = g["points"]["rows"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|r| r["window"] == "boundary" && r["edge"] == "none")
+        .expect("a boundary row")
+        .clone();
+    let ratio = format!("{:.3}", boundary["ratio"].as_f64().unwrap());
+    let n = boundary["n_used"].as_u64().unwrap().to_string();
+    let mut args = vec!["recheck", "--n", &n, "--ratio", &ratio, "--json"];
+    args.extend_from_slice(&[
+        "--points",
+        &survey,
+        "--layer",
+        "plots_utm",
+        "--boundary",
+        &survey,
+        "--boundary-layer",
+        "area_utm",
+    ]);
+    let o = run(&args);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let v: Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert!(
+        v["matches"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .any(|m| m["window"] == "boundary" && m["edge"] == "none"),
+        "{}",
+        v["matches"]
+    );
+    // Without --layer the file's several layers stop the run (exit 2), and
+    // --layer without --points is refused by the parser.
+    let o = run(&[
+        "recheck", "--n", "40", "--ratio", "1.0", "--points", &survey,
+    ]);
+    assert_eq!(o.status.code(), Some(2), "{}", stderr(&o));
+    assert!(stderr(&o).contains("--layer"), "{}", stderr(&o));
+    let o = run(&[
+        "recheck",
+        "--n",
+        "40",
+        "--ratio",
+        "1.0",
+        "--layer",
+        "plots_utm",
+    ]);
+    assert_eq!(o.status.code(), Some(2), "{}", stderr(&o));
 }
 
 #[test]

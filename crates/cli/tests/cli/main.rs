@@ -9,6 +9,7 @@ mod audit;
 mod bad_inputs;
 mod density;
 mod glance;
+mod flags;
 mod gpkg;
 mod output_folder;
 mod pictures;

@@ -246,18 +246,18 @@ fn index_html_is_self_contained() {
     }
     // Provenance: the digest of the points file (SHA-256 of the bytes,
     // recomputed here with sha2, a general-purpose library).
-    use sha2::Digest;
-    let bytes = std::fs::read(demo("meadow-burrows.csv")).expect("demo");
-    let hex: String = sha2::Sha256::digest(&bytes)
-        .iter()
-        .map(|b| format!("{b:02x}"))
-        .collect();
+    let hex = crate::util::sha256_hex(Path::new(&demo("meadow-burrows.csv")));
     assert!(html.contains(&hex));
     assert_eq!(
         json(&out)["provenance"]["inputs"][0]["sha256"],
         hex.as_str()
     );
     assert!(html.contains("--sims 199"), "the command line");
+    // The program by its name, not by the path it was started from.
+    assert!(
+        html.contains("<pre>patternproof audit "),
+        "the command line"
+    );
     assert!(!html.contains("run at"), "no time without --stamp");
     // The personal-data caution and the map switch are stated.
     assert!(html.contains("personal data") && html.contains("--no-map"));

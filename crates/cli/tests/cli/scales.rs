@@ -51,9 +51,63 @@ fn demo_run_writes_the_folder_and_the_verdict() {
         "scales.md",
         "scales.svg",
         "corrections.svg",
+        "index.html",
     ] {
         assert!(out.join(f).is_file(), "{f} missing");
     }
+    assert_eq!(
+        stdout.lines().last(),
+        Some(
+            format!(
+                "wrote scales.json, scales.csv, scales.md, scales.svg, corrections.svg, index.html to {}",
+                out.display()
+            )
+            .as_str()
+        )
+    );
+    // The page: the one layout, well-formed, self-contained, with the
+    // SHA-256 of both inputs (sha2, recomputed here) and the command line.
+    let page = std::fs::read_to_string(out.join("index.html")).unwrap();
+    let doc = roxmltree::Document::parse_with_options(
+        &page,
+        roxmltree::ParsingOptions {
+            allow_dtd: true,
+            ..Default::default()
+        },
+    )
+    .expect("index.html is well-formed XML");
+    for tag in ["script", "img", "link", "iframe"] {
+        assert!(
+            !doc.descendants().any(|n| n.has_tag_name(tag)),
+            "<{tag}> in index.html"
+        );
+    }
+    for id in ["input", "scales", "corrections", "provenance"] {
+        assert!(
+            doc.descendants().any(|n| n.attribute("id") == Some(id)),
+            "section {id}"
+        );
+    }
+    let root = repo();
+    for file in [
+        "demo-data/meadow-burrows.csv",
+        "demo-data/meadow-boundary.geojson",
+    ] {
+        let path = root.join(file);
+        let digest = crate::util::sha256_hex(&path);
+        assert!(
+            page.contains(&format!(
+                "<tr><td><code>{}</code></td><td><code>{digest}</code></td></tr>",
+                path.display()
+            )),
+            "the SHA-256 of {file}"
+        );
+    }
+    assert!(
+        page.contains("<pre>patternproof scales "),
+        "the command line"
+    );
+    assert!(page.contains(" · seed 1"), "the seed");
     let v: serde_json::Value =
         serde_json::from_slice(&std::fs::read(out.join("scales.json")).unwrap()).unwrap();
     assert_eq!(v["schema"], "patternproof.scales/2");
@@ -97,6 +151,84 @@ fn demo_run_writes_the_folder_and_the_verdict() {
     assert!(verdict.starts_with("clustered"), "{verdict}");
     let boundary = &v["windows"][4]["tests"][0];
     assert_abs_diff_eq!(boundary["p"].as_f64().unwrap(), 0.05, epsilon = 1e-12);
+}
+
+/// `audit --scales` and `scales` with the same settings (simulations,
+/// seed, r_max, steps: both at their defaults but the simulations, kept
+/// small here) give the same K audit of the demo: the same windows, the
+/// same departure bands and test values, the same verdict.
+#[test]
+fn audit_scales_and_scales_give_the_same_bands() {
+    let dir = tmp();
+    let root = repo();
+    let alone = dir.path().join("alone");
+    let o = bin()
+        .arg("scales")
+        .arg(root.join("demo-data/meadow-burrows.csv"))
+        .arg("--boundary")
+        .arg(root.join("demo-data/meadow-boundary.geojson"))
+        .args(["--sims", "19", "--seed", "3", "--quiet", "--out"])
+        .arg(&alone)
+        .output()
+        .unwrap();
+    assert!(o.status.success(), "{}", stderr(&o));
+    let joint = dir.path().join("joint");
+    let o = bin()
+        .arg("audit")
+        .arg(root.join("demo-data/meadow-burrows.csv"))
+        .arg("--boundary")
+        .arg(root.join("demo-data/meadow-boundary.geojson"))
+        .args([
+            "--sims",
+            "0",
+            "--seed",
+            "3",
+            "--scales",
+            "--scales-sims",
+            "19",
+            "--quiet",
+            "--out",
+        ])
+        .arg(&joint)
+        .output()
+        .unwrap();
+    assert!(o.status.success(), "{}", stderr(&o));
+    let read = |dir: &Path| -> serde_json::Value {
+        serde_json::from_slice(&std::fs::read(dir.join("scales.json")).unwrap()).unwrap()
+    };
+    let (a, j) = (read(&alone), read(&joint));
+    assert_eq!(a["windows"].as_array().unwrap().len(), 7);
+    for key in ["rmax", "r", "sims", "seed", "alpha", "verdicts"] {
+        assert_eq!(a[key], j[key], "{key}");
+    }
+    let bands = |v: &serde_json::Value| -> Vec<(String, serde_json::Value, serde_json::Value)> {
+        v["windows"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|w| {
+                (
+                    w["id"].as_str().unwrap().to_string(),
+                    w["bands"].clone(),
+                    w["tests"].clone(),
+                )
+            })
+            .collect()
+    };
+    let (ba, bj) = (bands(&a), bands(&j));
+    assert_eq!(ba, bj);
+    // Real bands: the boundary window departs (the burrows are clustered).
+    let boundary = ba.iter().find(|(id, _, _)| id == "boundary").unwrap();
+    assert!(
+        !boundary.1[0].as_array().unwrap().is_empty(),
+        "{:?}",
+        boundary.1
+    );
+    assert_eq!(
+        boundary.1[0][0]["direction"], "clustered",
+        "{:?}",
+        boundary.1
+    );
 }
 
 #[test]

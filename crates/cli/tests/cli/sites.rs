@@ -179,6 +179,20 @@ fn demo_plots_flag_the_window_sensitive_ones() {
     assert!(out.join("sites.svg").exists());
     // sites.svg and each tested site's three pictures, legends off the data.
     assert_eq!(crate::pictures::check_folder(&out), 1 + 5 * 3);
+    // The closing line of every folder-writing command: the files at the
+    // top, in the order they were made, and the folder of site folders.
+    let printed = stdout(&o);
+    assert_eq!(
+        printed.lines().last(),
+        Some(
+            format!(
+                "wrote sites.json, sites.csv, sites.md, sites.svg, index.html, protocol.json, site/*/ to {}",
+                out.display()
+            )
+            .as_str()
+        ),
+        "{printed}"
+    );
     assert!(
         !out.join("site/plot-f").exists(),
         "no sweep for a site too small to test"

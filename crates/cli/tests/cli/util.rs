@@ -72,3 +72,14 @@ pub fn assert_rel(what: &str, got: f64, want: f64, rel: f64) {
         "{what}: got {got}, want {want}, relative error {err:e} > {rel:e}"
     );
 }
+
+/// SHA-256 of a file, lower-case hex (computed with sha2, a
+/// general-purpose library), to compare with a page's provenance.
+pub fn sha256_hex(p: &Path) -> String {
+    use sha2::Digest;
+    let bytes = std::fs::read(p).unwrap_or_else(|e| panic!("{}: {e}", p.display()));
+    sha2::Sha256::digest(&bytes)
+        .iter()
+        .map(|b| format!("{b:02x}"))
+        .collect()
+}

@@ -6,7 +6,8 @@ pub mod geotiff;
 pub mod plot;
 
 use crate::OutputFolder;
-use crate::html::escape;
+use crate::document::FileDigest;
+use crate::html::{escape, provenance_block};
 use crate::numbers::sig;
 use crate::page::page;
 use crate::run::{RenderError, RunContext};
@@ -37,6 +38,9 @@ pub struct RunInfo {
     pub window_area: f64,
     /// Warnings from loading.
     pub warnings: Vec<String>,
+    /// SHA-256 of every input file, for the page's provenance (as the
+    /// audit's page gives them); empty when the points were in memory.
+    pub inputs: Vec<FileDigest>,
 }
 
 fn surface_json(s: &Surface, cell_area: f64) -> Value {
@@ -330,9 +334,9 @@ pub fn index_html(
                 li { code { "reference.tif" } ": the reference surface, GeoTIFF, density per unit²" }
                 li { code { "surfaces.svg" } ", " code { "areas.svg" } ": the pictures" }
             }
-            h3 { "Command" }
-            pre { (run.command_line) }
         }
+        (provenance_block(&info.inputs, &run.command_line))
+        p { "patternproof " (env!("CARGO_PKG_VERSION")) " · density schema " (SCHEMA) }
     };
     page("patternproof density", body)
 }

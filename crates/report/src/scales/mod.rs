@@ -1,6 +1,6 @@
 //! The outputs of a K audit (`scales`, `audit --scales`): `scales.json`,
-//! `scales.csv`, `scales.md`, the two pictures, the page section and the
-//! terminal lines.
+//! `scales.csv`, `scales.md`, the two pictures, the page section, the
+//! `index.html` of `scales` and the terminal lines.
 //!
 //! | module | writes |
 //! |---|---|
@@ -11,8 +11,12 @@ pub mod plot;
 pub mod text;
 
 use crate::OutputFolder;
+use crate::document::{FileDigest, InputSummary};
+use crate::html::{input_table, provenance_block};
 use crate::numbers::trimmed;
-use crate::run::RenderError;
+use crate::page::{page, prose, trusted_svg};
+use crate::run::{RenderError, RunContext};
+use maud::html;
 use patternproof_scales::ScalesRun;
 use std::fmt::Write as _;
 
@@ -35,11 +39,75 @@ pub fn add_files(folder: &mut OutputFolder, run: &ScalesRun) -> Result<(), Rende
     Ok(())
 }
 
-/// The folder of `patternproof scales`.
-pub fn folder(run: &ScalesRun) -> Result<OutputFolder, RenderError> {
+/// What the page of `patternproof scales` says about where the run came
+/// from, beside the run itself.
+#[derive(Debug, Clone, Copy)]
+pub struct Source<'a> {
+    /// The input as the audit's page describes it.
+    pub input: &'a InputSummary,
+    /// SHA-256 of every input file.
+    pub digests: &'a [FileDigest],
+    /// Why windows were left out of the sweep.
+    pub notes: &'a [String],
+}
+
+/// The folder of `patternproof scales`: the K files and `index.html`.
+pub fn folder(
+    run: &ScalesRun,
+    source: Source<'_>,
+    context: &RunContext,
+) -> Result<OutputFolder, RenderError> {
     let mut folder = OutputFolder::default();
     add_files(&mut folder, run)?;
+    folder.add("index.html", index_html(run, source, context).into_bytes());
     Ok(folder)
+}
+
+/// The `index.html` of `patternproof scales`, in the one layout of
+/// [`crate::page`]: the job, the input, the K section the audit's page
+/// also carries, both pictures, and the provenance (input checksums, the
+/// command line, the seed). Self-contained: inline SVG, no script.
+pub fn index_html(run: &ScalesRun, source: Source<'_>, context: &RunContext) -> String {
+    let i = source.input;
+    let provenance = context.provenance();
+    let scales_svg = plot::scales_svg(run);
+    let corrections_svg = plot::corrections_svg(run);
+    let body = html! {
+        h1 { "Does the claim at a given distance survive the choice of study area?" }
+        p.job {
+            "Ripley's K audit of " code { (i.points_file) } ": " (i.n) " points, "
+            (run.windows.len()) " windows × " (run.corrections.len()) " edge corrections, "
+            (run.sims) " CSR simulations per window, α = " (run.alpha.to_string()) "."
+        }
+        h2 id="input" { "Input" }
+        (input_table(i))
+        h2 id="scales" { "Ripley's K and L across the windows" }
+        (text::html_section(run, scales_svg.as_deref()))
+        @if !source.notes.is_empty() {
+            p { "Windows of the sweep:" }
+            ul {
+                @for n in source.notes {
+                    li { (prose(n)) }
+                }
+            }
+        }
+        @if let Some(svg) = &corrections_svg {
+            h2 id="corrections" { "The corrections side by side" }
+            figure {
+                (trusted_svg(svg))
+                figcaption { "Does the edge correction change the curve? One panel per correction, L(r) − r of every window." }
+            }
+        }
+        (provenance_block(source.digests, &provenance.command_line))
+        p {
+            "patternproof " (env!("CARGO_PKG_VERSION")) " · scales schema " (run.schema)
+            " · seed " (run.seed)
+            @if let Some(t) = &provenance.stamp {
+                " · run at " (t)
+            }
+        }
+    };
+    page(&format!("patternproof scales of {}", i.points_file), body)
 }
 
 /// The terminal text of a K audit (every line ends in a newline): the
