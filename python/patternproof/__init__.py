@@ -352,6 +352,26 @@ class _Document:
     def _table_rows(self) -> list:
         return []
 
+    def write_report(self, dir: PathLike, *, force: bool = False) -> List[str]:
+        """Write the report folder the command line writes for the same
+        run, all or nothing; the page names this Python call as its
+        command. ``force`` replaces an earlier report there (only one this
+        tool wrote). Returns the file names.
+
+        >>> import tempfile, os
+        >>> s = scales("demo-data/meadow-burrows.csv", ["demo-data/meadow-boundary.geojson"], sims=19, steps=5)
+        >>> "index.html" in s.write_report(os.path.join(tempfile.mkdtemp(), "k"))
+        True
+        """
+        folder = getattr(self, "_folder", None)
+        if folder is None:
+            raise SettingError(
+                f"this {type(self).__name__} has no report folder to write (only audit, scales "
+                "and density results have one)"
+            )
+        target = os.fspath(dir)
+        return folder.write(target, bool(force), f"{self._call}.write_report({target!r}) in Python")
+
     def table(self) -> Any:
         """The result's rows as an Arrow table, one column per key of the
         rows (the document's names and values; nested values as JSON
@@ -719,12 +739,15 @@ def audit(
     _warn(warnings)
     result = AuditResult(text, warnings)
     result._folder = folder
-    result._call = (
-        f"patternproof.audit({os.fspath(points)!r}, …)"
-        if isinstance(points, (str, os.PathLike))
-        else "patternproof.audit(<points in memory>, …)"
-    )
+    result._call = _call_words("audit", points)
     return result
+
+
+def _call_words(function: str, points: Any) -> str:
+    """How a report's page names the Python call that made it."""
+    if isinstance(points, (str, os.PathLike)):
+        return f"patternproof.{function}({os.fspath(points)!r}, …)"
+    return f"patternproof.{function}(<points in memory>, …)"
 
 
 def recheck(
@@ -812,7 +835,7 @@ def scales(
     >>> s.schema
     'patternproof.scales/2'
     """
-    text, notes, warnings = _native.scales(
+    text, notes, warnings, folder = _native.scales(
         _points(points, coords),
         _boundaries(boundaries),
         coords,
@@ -830,7 +853,10 @@ def scales(
         _number("alpha", alpha),
     )
     _warn(warnings)
-    return ScalesResult(text, notes, warnings)
+    result = ScalesResult(text, notes, warnings)
+    result._folder = folder
+    result._call = _call_words("scales", points)
+    return result
 
 
 def density(
@@ -858,7 +884,7 @@ def density(
     >>> len(d.surfaces)
     2
     """
-    text, warnings = _native.density(
+    text, warnings, folder = _native.density(
         _points(points, coords),
         _boundaries(boundaries),
         coords,
@@ -873,7 +899,10 @@ def density(
         reference,
     )
     _warn(warnings)
-    return DensityResult(text, warnings)
+    result = DensityResult(text, warnings)
+    result._folder = folder
+    result._call = _call_words("density", points)
+    return result
 
 
 class SiteRun:

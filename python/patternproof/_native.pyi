@@ -25,6 +25,12 @@ def audit(
     area: Optional[float],
 ) -> Tuple[str, List[str], AuditFolder]: ...
 
+class ScalesFolder:
+    def write(self, dir: str, force: bool, command_line: str) -> List[str]: ...
+
+class DensityFolder:
+    def write(self, dir: str, force: bool, command_line: str) -> List[str]: ...
+
 class AuditFolder:
     def glance_html(self) -> str: ...
     def write(
@@ -62,7 +68,7 @@ def scales(
     sims: int,
     seed: int,
     alpha: float,
-) -> Tuple[str, List[str], List[str]]: ...
+) -> Tuple[str, List[str], List[str], ScalesFolder]: ...
 def density(
     points: Points,
     boundaries: Sequence[Boundary],
@@ -76,7 +82,7 @@ def density(
     levels: Sequence[str],
     edges: Sequence[str],
     reference: str,
-) -> Tuple[str, List[str]]: ...
+) -> Tuple[str, List[str], DensityFolder]: ...
 
 class SiteRunHandle:
     def row_json(self) -> str: ...

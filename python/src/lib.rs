@@ -134,10 +134,7 @@ impl AuditFolder {
         picture_window: Option<String>,
         command_line: String,
     ) -> Result<Vec<String>, Error> {
-        use patternproof_report::{
-            FolderError, Plane, RenderChoices, RenderError, RunContext, WriteOptions, audit_folder,
-            write_folder,
-        };
+        use patternproof_report::{Plane, RenderChoices, RenderError, RunContext, audit_folder};
         let projection = match self.projection {
             Some((lon0, lat0)) => Some(
                 patternproof::Projection::centred_at(lon0, lat0).ok_or_else(|| {
@@ -180,24 +177,106 @@ impl AuditFolder {
             ),
             e => Error::Internal(e.to_string()),
         })?;
-        let options = if force {
-            WriteOptions::FORCE
-        } else {
-            WriteOptions::KEEP
-        };
-        match write_folder(dir, &folder, options) {
-            Ok(_) => Ok(folder.names().map(str::to_string).collect()),
-            Err(FolderError::BadName(n)) => Err(Error::Internal(format!(
-                "the report has a file named `{n}`, which is not a plain relative path"
-            ))),
-            Err(e) => {
-                let text = e.to_string();
-                let (what, hint) = text
-                    .split_once("\n  what to do: ")
-                    .unwrap_or((text.as_str(), "choose another folder, or pass force=True"));
-                Err(setting("", what, hint))
-            }
+        write_out(dir, &folder, force)
+    }
+}
+
+/// Write `folder` into `dir` all or nothing, as the command line does
+/// (`force` replaces only a folder this tool wrote). Returns the names.
+fn write_out(
+    dir: &std::path::Path,
+    folder: &patternproof_report::OutputFolder,
+    force: bool,
+) -> Result<Vec<String>, Error> {
+    use patternproof_report::{FolderError, WriteOptions, write_folder};
+    let options = if force {
+        WriteOptions::FORCE
+    } else {
+        WriteOptions::KEEP
+    };
+    match write_folder(dir, folder, options) {
+        Ok(_) => Ok(folder.names().map(str::to_string).collect()),
+        Err(FolderError::BadName(n)) => Err(Error::Internal(format!(
+            "the report has a file named `{n}`, which is not a plain relative path"
+        ))),
+        Err(e) => {
+            let text = e.to_string();
+            let (what, hint) = text
+                .split_once("\n  what to do: ")
+                .unwrap_or((text.as_str(), "choose another folder, or pass force=True"));
+            Err(setting("", what, hint))
         }
+    }
+}
+
+/// What the folder of `scales` needs besides `scales.json`.
+#[pyclass(module = "patternproof._native", frozen)]
+pub struct ScalesFolder {
+    run: patternproof::ScalesRun,
+    summary: patternproof::InputSummary,
+    digests: Vec<patternproof::FileDigest>,
+    notes: Vec<String>,
+}
+
+#[pymethods]
+impl ScalesFolder {
+    /// Write the folder `patternproof scales --out DIR` writes, all or
+    /// nothing; returns the names of the files written.
+    #[pyo3(signature = (dir, force, command_line))]
+    fn write(
+        &self,
+        py: Python<'_>,
+        dir: PathBuf,
+        force: bool,
+        command_line: String,
+    ) -> PyResult<Vec<String>> {
+        py.detach(|| {
+            let source = patternproof_report::scales::Source {
+                input: &self.summary,
+                digests: &self.digests,
+                notes: &self.notes,
+            };
+            let run = patternproof_report::RunContext {
+                command_line,
+                ..patternproof_report::RunContext::default()
+            };
+            let folder = patternproof_report::scales::folder(&self.run, source, &run)
+                .map_err(|e| Error::Internal(e.to_string()))?;
+            write_out(&dir, &folder, force)
+        })
+        .map_err(to_py)
+    }
+}
+
+/// What the folder of `density` needs besides `density.json`.
+#[pyclass(module = "patternproof._native", frozen)]
+pub struct DensityFolder {
+    analysis: patternproof::DensityAnalysis,
+    info: patternproof_report::density::RunInfo,
+}
+
+#[pymethods]
+impl DensityFolder {
+    /// Write the folder `patternproof density --out DIR` writes, all or
+    /// nothing; returns the names of the files written.
+    #[pyo3(signature = (dir, force, command_line))]
+    fn write(
+        &self,
+        py: Python<'_>,
+        dir: PathBuf,
+        force: bool,
+        command_line: String,
+    ) -> PyResult<Vec<String>> {
+        py.detach(|| {
+            let run = patternproof_report::RunContext {
+                command_line,
+                ..patternproof_report::RunContext::default()
+            };
+            let folder = patternproof_report::density::folder(&self.analysis, &self.info, &run)
+                .map_err(|e| Error::Internal(e.to_string()))?;
+            write_out(&dir, &folder, force)
+        })
+        .map_err(to_py)
     }
 }
 
@@ -351,40 +430,48 @@ fn scales(
     sims: usize,
     seed: u64,
     alpha: f64,
-) -> PyResult<(String, Vec<String>, Vec<String>)> {
+) -> PyResult<(String, Vec<String>, Vec<String>, ScalesFolder)> {
     let points = points_arg(points)?;
-    let run = move |stop: &StopFlag| -> Result<(String, Vec<String>, Vec<String>), Error> {
-        let buffers = options::buffers(&buffers)?;
-        let concavity = options::concavity(concavity)?;
-        let mut corrections = options::corrections("--edges", &edges)?;
-        let tested = options::corrections("--test-edges", &test_edges)?;
-        for &t in &tested {
-            if !corrections.contains(&t) {
-                corrections.push(t);
+    let run =
+        move |stop: &StopFlag| -> Result<(String, Vec<String>, Vec<String>, ScalesFolder), Error> {
+            let buffers = options::buffers(&buffers)?;
+            let concavity = options::concavity(concavity)?;
+            let mut corrections = options::corrections("--edges", &edges)?;
+            let tested = options::corrections("--test-edges", &test_edges)?;
+            for &t in &tested {
+                if !corrections.contains(&t) {
+                    corrections.push(t);
+                }
             }
-        }
-        let alpha = options::alpha(alpha)?;
-        let rmax = options::rmax(rmax)?;
-        let steps = options::steps(steps)?;
-        let reading = reading(&coords, &unit, drop_duplicates, gpkg)?;
-        let (input, data) = inputs::input(points, boundary_args(boundaries)?, &reading)?;
-        let options = ScalesOptions {
-            corrections,
-            tested,
-            rmax,
-            steps,
-            sims,
-            seed,
-            alpha,
+            let alpha = options::alpha(alpha)?;
+            let rmax = options::rmax(rmax)?;
+            let steps = options::steps(steps)?;
+            let reading = reading(&coords, &unit, drop_duplicates, gpkg)?;
+            let (input, data) = inputs::input(points, boundary_args(boundaries)?, &reading)?;
+            let options = ScalesOptions {
+                corrections,
+                tested,
+                rmax,
+                steps,
+                sims,
+                seed,
+                alpha,
+            };
+            let windows = WindowOptions {
+                buffers,
+                area: None,
+                concavity,
+            };
+            let result = patternproof::scales(&input, &windows, &options, stop)?;
+            let text = json(&result.run)?;
+            let folder = ScalesFolder {
+                run: result.run,
+                summary: input.summary,
+                digests: input.digests,
+                notes: result.notes.clone(),
+            };
+            Ok((text, result.notes, data.warnings, folder))
         };
-        let windows = WindowOptions {
-            buffers,
-            area: None,
-            concavity,
-        };
-        let result = patternproof::scales(&input, &windows, &options, stop)?;
-        Ok((json(&result.run)?, result.notes, data.warnings))
-    };
     interruptible(py, run)
 }
 
@@ -407,9 +494,9 @@ fn density(
     levels: Vec<String>,
     edges: Vec<String>,
     reference: String,
-) -> PyResult<Document> {
+) -> PyResult<(String, Vec<String>, DensityFolder)> {
     let points = points_arg(points)?;
-    let run = move || -> Result<Document, Error> {
+    let run = move || -> Result<(String, Vec<String>, DensityFolder), Error> {
         if boundaries.len() > 1 {
             return Err(setting(
                 "--boundary",
@@ -441,7 +528,7 @@ fn density(
             window_source: result.window_source.clone(),
             window_area: result.window_area,
             warnings: data.warnings.clone(),
-            inputs: Vec::new(),
+            inputs: input.digests.clone(),
         };
         let mut text = json(&patternproof_report::density::document(
             &result.analysis,
@@ -450,7 +537,11 @@ fn density(
         text.push('\n');
         let mut warnings = data.warnings;
         warnings.extend(result.analysis.warnings.iter().cloned());
-        Ok((text, warnings))
+        let folder = DensityFolder {
+            analysis: result.analysis,
+            info,
+        };
+        Ok((text, warnings, folder))
     };
     py.detach(run).map_err(to_py)
 }
@@ -614,6 +705,8 @@ fn plan_sites(
 fn _native(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(audit, m)?)?;
     m.add_class::<AuditFolder>()?;
+    m.add_class::<ScalesFolder>()?;
+    m.add_class::<DensityFolder>()?;
     m.add_function(wrap_pyfunction!(recheck, m)?)?;
     m.add_function(wrap_pyfunction!(scales, m)?)?;
     m.add_function(wrap_pyfunction!(density, m)?)?;

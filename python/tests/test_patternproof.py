@@ -89,6 +89,41 @@ def test_write_report_writes_the_cli_folder(tmp_path):
     assert not (tmp_path / "other").exists()
 
 
+def _same_folder(cli_dir, py_dir, names):
+    """Every file the command line wrote, byte for byte, but the page's
+    command line (and the marker listing the files)."""
+    made = sorted(p.name for p in py_dir.iterdir())
+    assert made == sorted(p.name for p in cli_dir.iterdir())
+    assert sorted(names) == sorted(n for n in made if n != ".patternproof")
+    strip = lambda page: re.sub(r"<pre>[^<]*</pre>", "<pre></pre>", page)
+    for name in made:
+        a = (cli_dir / name).read_bytes()
+        b = (py_dir / name).read_bytes()
+        if name == ".patternproof":
+            continue
+        if name == "index.html":
+            assert strip(a.decode()) == strip(b.decode())
+            assert "write_report(" in b.decode()
+            continue
+        assert a == b, name
+
+
+def test_scales_and_density_write_the_cli_folders(tmp_path):
+    args = [POINTS, "--boundary", BOUNDARY, "--sims", "19", "--steps", "5", "--quiet"]
+    cli("scales", *args, "--out", str(tmp_path / "k-cli"))
+    k = patternproof.scales(POINTS, [BOUNDARY], sims=19, steps=5)
+    _same_folder(tmp_path / "k-cli", tmp_path / "k-py", k.write_report(tmp_path / "k-py"))
+    cli("density", POINTS, "--boundary", BOUNDARY, "--kernels", "gaussian", "--bandwidths", "scott",
+        "--out", str(tmp_path / "d-cli"))
+    d = patternproof.density(POINTS, [BOUNDARY], kernels="gaussian", bandwidths="scott")
+    _same_folder(tmp_path / "d-cli", tmp_path / "d-py", d.write_report(tmp_path / "d-py"))
+    with pytest.raises(patternproof.SettingError):
+        d.write_report(tmp_path / "d-py")
+    with pytest.raises(patternproof.SettingError) as e:
+        patternproof.recheck("64", ratio="0.71").write_report(tmp_path / "r")
+    assert "no report folder" in str(e.value)
+
+
 def test_audit_json_is_the_cli_report_json(tmp_path):
     cli("audit", POINTS, "--boundary", BOUNDARY, "--out", str(tmp_path / "r"), "--quiet")
     expected = (tmp_path / "r" / "report.json").read_text()

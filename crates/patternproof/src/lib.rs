@@ -96,6 +96,7 @@ pub use sites::{
 
 pub use patternproof_audit::window::WindowOptions;
 pub use patternproof_audit::{AuditOptions, BufferRule, Edge};
+pub use patternproof_density::Analysis as DensityAnalysis;
 pub use patternproof_density::Config as DensityConfig;
 pub use patternproof_density::bandwidth::BandwidthSpec;
 pub use patternproof_density::edge::DensityEdge;
