@@ -6,6 +6,7 @@ use crate::common::{command_line, load, print_reading};
 use crate::fail::Failure;
 use crate::progress::Progress;
 use crate::scales_cmd;
+use crate::terminal::{self, say};
 use patternproof::Dataset;
 use patternproof::ScalesJob;
 use patternproof::cost::audit as simulation;
@@ -95,7 +96,7 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
         println!("\nRipley's K across the same windows (--scales):");
         print!(
             "{}",
-            patternproof_report::scales::terminal_text(&k.run, &k.notes)
+            patternproof_report::scales::terminal_text(&k.run, &k.notes, terminal::stdout_width())
         );
     }
     Ok(())
@@ -138,21 +139,34 @@ fn print_summary(report: &AuditReport, out: &std::path::Path, folder: &OutputFol
     for w in &report.input.warnings {
         eprintln!("patternproof: warning: {w}");
     }
-    println!("{}", table::terminal_table(report, None));
+    let width = terminal::stdout_width();
+    print!("{}", table::terminal_table(report, width));
     for n in &report.window_notes {
-        println!("note: {n}");
+        say(&format!("note: {n}"), width, "", "  ");
     }
     println!("\nWhere the call flips:");
     for line in table::flip_lines(report) {
-        println!("  {line}");
+        say(&line, width, "  ", "    ");
     }
-    println!("\nVerdict: {}.", report.summary.verdict);
+    println!();
+    say(
+        &format!("Verdict: {}.", report.summary.verdict),
+        width,
+        "",
+        "  ",
+    );
     for c in &report.summary.cautions {
-        println!("  caution: {c}");
+        say(&format!("caution: {c}"), width, "  ", "    ");
     }
-    println!(
-        "\nwrote {} to {}",
-        folder.names().collect::<Vec<_>>().join(", "),
-        out.display()
+    println!();
+    say(
+        &format!(
+            "wrote {} to {}",
+            folder.names().collect::<Vec<_>>().join(", "),
+            out.display()
+        ),
+        width,
+        "",
+        "  ",
     );
 }

@@ -122,8 +122,17 @@ pub fn run(a: &DensityArgs) -> Result<(), Failure> {
         for w in info.warnings.iter().chain(&analysis.warnings) {
             eprintln!("patternproof: warning: {w}");
         }
-        println!("{}", analysis.verdict.sentence);
-        println!("report: {}", a.output.out.display());
+        let width = crate::terminal::stdout_width();
+        print!(
+            "{}",
+            patternproof_report::density::terminal_text(&analysis, width)
+        );
+        crate::terminal::say(
+            &format!("report: {}", a.output.out.display()),
+            width,
+            "",
+            "  ",
+        );
     }
     Ok(())
 }

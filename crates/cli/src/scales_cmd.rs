@@ -108,14 +108,21 @@ pub fn run(a: &ScalesArgs) -> Result<(), Failure> {
     for w in &data.warnings {
         eprintln!("patternproof: warning: {w}");
     }
+    let width = crate::terminal::stdout_width();
     print!(
         "{}",
-        patternproof_report::scales::terminal_text(&run, &notes)
+        patternproof_report::scales::terminal_text(&run, &notes, width)
     );
-    println!(
-        "\nwrote {} to {}",
-        folder.names().collect::<Vec<_>>().join(", "),
-        a.output.out.display()
+    println!();
+    crate::terminal::say(
+        &format!(
+            "wrote {} to {}",
+            folder.names().collect::<Vec<_>>().join(", "),
+            a.output.out.display()
+        ),
+        width,
+        "",
+        "  ",
     );
     Ok(())
 }

@@ -15,3 +15,4 @@ mod reference;
 mod report;
 mod scales;
 mod sites;
+mod terminal;
