@@ -73,7 +73,7 @@ pub fn call_symbol(c: Option<Call>) -> &'static str {
 
 /// The terminal table, laid out for `width` columns (`None`: piped, in
 /// the fixed 100-column layout) by [`terminal_layout`](crate::terminal_layout):
-/// every column when they fit; else without d̄ and E[d], then without
+/// every column when they fit; else without d̄ and `E[d]`, then without
 /// the area and z, keeping window, edge, n, R, p, the call and the
 /// false-alarm rate (which fit 80 columns), each time with a line saying
 /// that `verdict.md` and `verdict.csv` hold the full table. No cell is

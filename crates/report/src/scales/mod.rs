@@ -45,7 +45,7 @@ pub fn folder(run: &ScalesRun) -> Result<OutputFolder, RenderError> {
 /// The terminal text of a K audit (every line ends in a newline): the
 /// grid, the per-window table, the sweep's `notes`, skipped windows, the
 /// verdicts and the cautions, laid out for `width` columns (`None`:
-/// piped, 100 columns) by [`terminal_layout`]: the distance bands wrap
+/// piped, 100 columns) by [`terminal_layout`](crate::terminal_layout): the distance bands wrap
 /// between words, and the n, MAD T and ERL p columns go, in that order
 /// from the last, when they do not fit (`scales.md` has them all).
 pub fn terminal_text(run: &ScalesRun, notes: &[String], width: Option<u16>) -> String {
