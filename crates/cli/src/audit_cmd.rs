@@ -2,10 +2,11 @@
 
 use crate::args::AuditArgs;
 use crate::budget;
-use crate::common::{Screen, command_line, load, print_reading};
+use crate::common::{command_line, load, print_reading};
 use crate::fail::Failure;
 use crate::progress::Progress;
 use crate::scales_cmd;
+use crate::terminal::{self, say};
 use patternproof::Dataset;
 use patternproof::ScalesJob;
 use patternproof::cost::audit as simulation;
@@ -94,7 +95,7 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
         println!("\nRipley's K across the same windows (--scales):");
         print!(
             "{}",
-            patternproof_report::scales::terminal_text(&k.run, &k.notes)
+            patternproof_report::scales::terminal_text(&k.run, &k.notes, terminal::stdout_width())
         );
     }
     println!("\n{}", crate::common::wrote_line(&folder, &a.output.out));
@@ -138,28 +139,30 @@ fn print_summary(report: &AuditReport) {
     for w in &report.input.warnings {
         eprintln!("patternproof: warning: {w}");
     }
-    let screen = Screen::stdout();
+    let width = terminal::stdout_width();
     print!(
         "{}",
-        VerdictMatrix::new(report).terminal(screen.layout_width(), screen.colour)
+        VerdictMatrix::new(report).terminal(terminal::layout_width(width), terminal::colour())
     );
-    let width = screen.layout_width();
-    let verdict = format!("Verdict: {}.", report.summary.verdict);
-    println!("\n{}", matrix::paragraph(&verdict, width, "", "  "));
-    println!(
-        "{}\n",
-        matrix::paragraph(&matrix::counts_line(report), width, "  ", "  ")
+    println!();
+    say(
+        &format!("Verdict: {}.", report.summary.verdict),
+        width,
+        "",
+        "  ",
     );
-    println!("{}", table::terminal_table(report, None));
+    say(&matrix::counts_line(report), width, "  ", "  ");
+    println!();
+    print!("{}", table::terminal_table(report, width));
     for n in &report.window_notes {
-        println!("{}", matrix::paragraph(n, width, "note: ", "  "));
+        say(&format!("note: {n}"), width, "", "  ");
     }
     println!("\nWhere the call flips:");
     for line in table::flip_lines(report) {
-        println!("{}", matrix::paragraph(&line, width, "  ", "    "));
+        say(&line, width, "  ", "    ");
     }
     println!();
     for c in &report.summary.cautions {
-        println!("{}", matrix::paragraph(c, width, "caution: ", "  "));
+        say(&format!("caution: {c}"), width, "", "  ");
     }
 }

@@ -77,46 +77,6 @@ pub fn gpkg_choice(
     })
 }
 
-/// Where stdout goes, for choosing a layout: a terminal of some width, or
-/// a pipe or file (a fixed layout, the same on every machine).
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub struct Screen {
-    /// Columns of the terminal; `None` when stdout is not a terminal.
-    pub width: Option<usize>,
-    /// Colours may be used (a terminal, and `NO_COLOR` not set).
-    pub colour: bool,
-}
-
-/// The layout width of piped output (fits a 100-column viewer).
-pub const PIPED_WIDTH: usize = 100;
-
-impl Screen {
-    /// Look at stdout.
-    pub fn stdout() -> Screen {
-        use std::io::IsTerminal;
-        let out = std::io::stdout();
-        if !out.is_terminal() {
-            return Screen {
-                width: None,
-                colour: false,
-            };
-        }
-        let width = terminal_size::terminal_size_of(&out)
-            .map(|(w, _)| usize::from(w.0))
-            .filter(|&w| w > 0)
-            .unwrap_or(80);
-        Screen {
-            width: Some(width),
-            colour: std::env::var_os("NO_COLOR").is_none_or(|v| v.is_empty()),
-        }
-    }
-
-    /// The width to lay text out in.
-    pub fn layout_width(&self) -> usize {
-        self.width.unwrap_or(PIPED_WIDTH)
-    }
-}
-
 /// The closing line of every command that writes a report folder:
 /// `wrote a, b, c to DIR`, naming the files at the top of the folder in
 /// the order they were made and each sub-folder once (`figures/`, or

@@ -114,7 +114,16 @@ pub fn run(a: &DensityArgs) -> Result<(), Failure> {
     for w in info.warnings.iter().chain(&analysis.warnings) {
         eprintln!("patternproof: warning: {w}");
     }
-    println!("{}", analysis.verdict.sentence);
-    println!("{}", crate::common::wrote_line(&folder, &a.output.out));
+    let width = crate::terminal::stdout_width();
+    print!(
+        "{}",
+        patternproof_report::density::terminal_text(&analysis, width)
+    );
+    crate::terminal::say(
+        &crate::common::wrote_line(&folder, &a.output.out),
+        width,
+        "",
+        "  ",
+    );
     Ok(())
 }

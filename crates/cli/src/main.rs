@@ -18,6 +18,7 @@ mod protocol_cmd;
 mod recheck_cmd;
 mod scales_cmd;
 mod sites_cmd;
+mod terminal;
 mod window_args;
 
 use clap::Parser;

@@ -138,7 +138,10 @@ pub fn run(a: &RecheckArgs) -> Result<(), Failure> {
             .map_err(|e| Failure::Internal(format!("could not write the JSON: {e}")))?;
         println!("{text}");
     } else {
-        print!("{}", patternproof_report::recheck::text(&result, None));
+        print!(
+            "{}",
+            patternproof_report::recheck::text(&result, crate::terminal::stdout_width())
+        );
     }
     Ok(())
 }

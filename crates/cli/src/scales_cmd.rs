@@ -119,11 +119,18 @@ pub fn run(a: &ScalesArgs) -> Result<(), Failure> {
     for w in &data.warnings {
         eprintln!("patternproof: warning: {w}");
     }
+    let width = crate::terminal::stdout_width();
     print!(
         "{}",
-        patternproof_report::scales::terminal_text(&run, &notes)
+        patternproof_report::scales::terminal_text(&run, &notes, width)
     );
-    println!("\n{}", crate::common::wrote_line(&folder, &a.output.out));
+    println!();
+    crate::terminal::say(
+        &crate::common::wrote_line(&folder, &a.output.out),
+        width,
+        "",
+        "  ",
+    );
     Ok(())
 }
 

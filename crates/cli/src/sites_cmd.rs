@@ -98,37 +98,30 @@ pub fn run(a: &SitesArgs) -> Result<(), Failure> {
     a.output.write(&folder)?;
 
     let doc = document(&runs, &protocol, a.sweep_sims);
-    println!(
-        "protocol {} (SHA-256 {})",
-        a.protocol.display(),
-        doc.protocol_sha256
+    let width = crate::terminal::stdout_width();
+    crate::terminal::say(
+        &format!(
+            "protocol {} (SHA-256 {})",
+            a.protocol.display(),
+            doc.protocol_sha256
+        ),
+        width,
+        "",
+        "  ",
     );
-    for r in &doc.sites {
-        let what = match (&r.reason, r.ratio) {
-            (Some(why), _) => format!("not tested: {why}"),
-            (None, Some(ratio)) => format!(
-                "R = {ratio:.3}, adjusted p = {}, {}{}",
-                r.p_adjusted
-                    .map_or("—".into(), patternproof_report::numbers::p_value),
-                patternproof_report::table::call_word(r.call),
-                if r.window_sensitive == Some(true) {
-                    "; WINDOW-SENSITIVE"
-                } else {
-                    ""
-                }
-            ),
-            _ => String::new(),
-        };
-        println!("  {}: {what}", r.site);
-    }
-    println!(
-        "\n{}.",
-        patternproof_report::sites::files::summary_line(&doc)
+    print!(
+        "{}",
+        patternproof_report::sites::terminal::terminal_text(&doc, width)
     );
     for n in &doc.notes {
-        println!("  caution: {n}");
+        crate::terminal::say(&format!("caution: {n}"), width, "  ", "    ");
     }
-    println!("{}", crate::common::wrote_line(&folder, &a.output.out));
+    crate::terminal::say(
+        &crate::common::wrote_line(&folder, &a.output.out),
+        width,
+        "",
+        "  ",
+    );
     Ok(())
 }
 

@@ -12,6 +12,7 @@
 //! | [`document`] | the versioned `report.json` document (schema in `docs/report-schema.md`) |
 //! | [`numbers`] | rounding for human readers (JSON keeps full precision) |
 //! | [`table`] | `verdict.csv` and the terminal table |
+//! | [`terminal_layout`] | how every command's terminal tables and sentences fit the terminal (or 100 columns when piped) without splitting a number |
 //! | [`markdown`] | `verdict.md` |
 //! | [`markdown_escape`] | escaping of user strings in every Markdown file |
 //! | [`methods`] | the methods paragraph for a manuscript |
@@ -59,6 +60,7 @@ pub mod sensitivity_plot;
 pub mod simulation_plot;
 pub mod sites;
 pub mod table;
+pub mod terminal_layout;
 pub mod window_map;
 pub mod windows_gpkg;
 

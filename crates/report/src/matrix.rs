@@ -132,8 +132,14 @@ impl VerdictMatrix {
             self.terminal_with(CellStyle::Symbols, colour)
         };
         let key = self.legend(!fits);
+        let columns = u16::try_from(width).unwrap_or(u16::MAX);
         for line in key.lines() {
-            s.push_str(&paragraph(line, width, "", "  "));
+            s.push_str(&crate::terminal_layout::wrap(
+                &plain(line),
+                Some(columns),
+                "",
+                "  ",
+            ));
             s.push('\n');
         }
         s
@@ -206,13 +212,13 @@ impl VerdictMatrix {
     /// The key under the terminal matrix.
     fn legend(&self, symbols_only: bool) -> String {
         let mut s = String::from(if symbols_only {
-            "◆ clustered  ◇ dispersed  ○ not significant"
+            "◆ clustered, ◇ dispersed, ○ not significant"
         } else {
-            "◆ clustered  ◇ dispersed  ○ n.s. = not significant"
+            "◆ clustered, ◇ dispersed, ○ n.s. = not significant"
         });
         s.push_str(&format!(" at α = {}", self.alpha));
         if self.cells.iter().flatten().any(Option::is_none) {
-            s.push_str("  · not run");
+            s.push_str("; · not run");
         }
         s.push('\n');
         if self.any_inflated() {
@@ -393,19 +399,6 @@ pub fn strip_ansi(s: &str) -> String {
         }
     }
     out
-}
-
-/// A paragraph for a terminal of `width` columns: backtick spans lose
-/// their backticks, and lines break between words (a terminal's own
-/// wrapping would cut a number or a word in two). `first` starts the
-/// first line, `rest` indents the others.
-pub fn paragraph(text: &str, width: usize, first: &str, rest: &str) -> String {
-    let text = plain(text);
-    let options = textwrap::Options::new(width.max(20))
-        .initial_indent(first)
-        .subsequent_indent(rest)
-        .break_words(false);
-    textwrap::fill(&text, options)
 }
 
 /// Text for a terminal: backtick spans lose their backticks (the page

@@ -2,27 +2,19 @@
 //! intervals, the readings tried, the windows (with points) and the
 //! verdict line.
 
-use comfy_table::{Cell, CellAlignment, ContentArrangement, Table, presets};
+use crate::terminal_layout::{Column, Grid, wrap};
 use patternproof_recheck::Recheck;
 use patternproof_recheck::explain::Kind;
 use patternproof_recheck::interval::{Interval, number};
 use patternproof_recheck::reported::Quantity;
 
-fn table(width: Option<u16>) -> Table {
-    let mut t = Table::new();
-    t.load_preset(presets::UTF8_BORDERS_ONLY);
-    t.set_content_arrangement(ContentArrangement::Dynamic);
-    match width {
-        Some(w) => {
-            t.set_width(w);
-        }
-        None => {
-            if t.width().is_none() {
-                t.set_width(120);
-            }
-        }
-    }
-    t
+/// Where every column of the tables can be read when some are left out.
+const ELSEWHERE: &str = "the output of `--json`";
+
+/// Append `text` wrapped to `width`, with its indents, and a newline.
+fn say(out: &mut String, text: &str, width: Option<u16>, first: &str, rest: &str) {
+    out.push_str(&wrap(text, width, first, rest));
+    out.push('\n');
 }
 
 fn unit_of(r: &Recheck, q: Quantity) -> String {
@@ -34,63 +26,79 @@ fn unit_of(r: &Recheck, q: Quantity) -> String {
     }
 }
 
-/// The whole report as text, `width` columns wide when known.
+/// The whole report as text, laid out for `width` columns (`None`:
+/// piped, 100 columns) by [`terminal_layout`](crate::terminal_layout):
+/// explanations wrap between words, and the windows table drops d̄ and
+/// E, then the area and z, then n when they do not fit, never cutting a
+/// number.
 pub fn text(r: &Recheck, width: Option<u16>) -> String {
     let mut out = String::new();
     let f = &r.reported;
     let figs: Vec<String> = std::iter::once(format!("n = {}", f.n))
         .chain(f.figures.iter().map(|x| x.quoted()))
         .collect();
-    out.push_str(&format!("Reported: {}", figs.join(", ")));
+    let mut reported = format!("Reported: {}", figs.join(", "));
     if f.has(Quantity::P) {
-        out.push_str(if f.one_sided {
+        reported.push_str(if f.one_sided {
             " (p declared one-sided)"
         } else {
             " (p read as two-sided or one-sided)"
         });
     }
-    out.push('\n');
+    say(&mut out, &reported, width, "", "  ");
     let ranges: Vec<String> = f
         .figures
         .iter()
         .map(|x| format!("{} in {}", x.quantity.symbol(), x.interval))
         .collect();
     if !ranges.is_empty() {
-        out.push_str(&format!("Rounding ranges: {}\n", ranges.join(", ")));
+        say(
+            &mut out,
+            &format!("Rounding ranges: {}", ranges.join(", ")),
+            width,
+            "",
+            "  ",
+        );
     }
     out.push('\n');
 
-    let mut t = table(width);
-    t.set_header(vec![
-        "check",
-        "reported",
-        "recomputed",
-        "result",
-        "explanation",
-    ]);
+    let mut t = Grid::new(
+        vec![
+            Column::prose("check"),
+            Column::text("reported"),
+            Column::prose("recomputed"),
+            Column::text("result"),
+            Column::prose("explanation"),
+        ],
+        1,
+        ELSEWHERE,
+    );
     for c in &r.checks {
-        t.add_row(vec![
-            Cell::new(&c.name),
-            Cell::new(c.reported.clone().unwrap_or_else(|| "—".into())),
-            Cell::new(&c.recomputed_text),
-            Cell::new(c.status()),
-            Cell::new(match &c.condition {
+        t.push(vec![
+            c.name.clone(),
+            c.reported.clone().unwrap_or_else(|| "—".into()),
+            c.recomputed_text.clone(),
+            c.status().to_string(),
+            match &c.condition {
                 Some(cond) => format!("{} (only if {cond})", c.detail),
                 None => c.detail.clone(),
-            }),
+            },
         ]);
     }
     if r.checks.is_empty() {
-        t.add_row(vec![
-            "—",
-            "—",
-            "—",
-            "cannot tell",
-            "no two figures are related by what was given",
-        ]);
+        t.push(
+            [
+                "—",
+                "—",
+                "—",
+                "cannot tell",
+                "no two figures are related by what was given",
+            ]
+            .map(String::from)
+            .to_vec(),
+        );
     }
-    out.push_str(&t.to_string());
-    out.push('\n');
+    out.push_str(&t.render(width));
 
     out.push_str("\nImplied by all figures together (no edge correction):\n");
     match &r.implied {
@@ -105,22 +113,36 @@ pub fn text(r: &Recheck, width: Option<u16>) -> String {
                 } else {
                     format!("{iv}{}", unit_of(r, q))
                 };
-                out.push_str(&format!(
-                    "  {} ({}{given}): {words}\n",
-                    q.symbol(),
-                    label(q)
-                ));
+                say(
+                    &mut out,
+                    &format!("{} ({}{given}): {words}", q.symbol(), label(q)),
+                    width,
+                    "  ",
+                    "    ",
+                );
             }
         }
-        None => out.push_str("  nothing: the figures contradict each other (see the checks)\n"),
+        None => say(
+            &mut out,
+            "nothing: the figures contradict each other (see the checks)",
+            width,
+            "  ",
+            "    ",
+        ),
     }
     if r.implied.is_none()
         && let Some(a) = r.implied_area
     {
-        out.push_str(&format!(
-            "  the area from D with R or E alone: {a}{}\n",
-            unit_of(r, Quantity::Area)
-        ));
+        say(
+            &mut out,
+            &format!(
+                "the area from D with R or E alone: {a}{}",
+                unit_of(r, Quantity::Area)
+            ),
+            width,
+            "  ",
+            "    ",
+        );
     }
 
     if !r.explanations.is_empty() {
@@ -132,9 +154,21 @@ pub fn text(r: &Recheck, width: Option<u16>) -> String {
                 _ if e.fits => "fits",
                 _ => "no",
             };
-            out.push_str(&format!("  [{mark}] {}\n", e.detail));
+            say(
+                &mut out,
+                &format!("[{mark}] {}", e.detail),
+                width,
+                "  ",
+                "    ",
+            );
             if let Some(p) = e.plausibility.as_ref().filter(|_| e.fits) {
-                out.push_str(&format!("      {}; {}\n", p.why, p.ask));
+                say(
+                    &mut out,
+                    &format!("{}; {}", p.why, p.ask),
+                    width,
+                    "      ",
+                    "      ",
+                );
             }
         }
         let slips: Vec<_> = r
@@ -145,72 +179,97 @@ pub fn text(r: &Recheck, width: Option<u16>) -> String {
         if !slips.is_empty() {
             out.push_str("Where the disagreement may sit:\n");
             for e in slips {
-                out.push_str(&format!("  - {}\n", e.detail));
+                say(&mut out, &e.detail, width, "  - ", "    ");
             }
         }
     }
 
     if let Some(p) = &r.points {
         let u = &p.unit;
-        out.push_str(&format!(
-            "\nWindows of the points ({} points; no simulations):\n",
-            p.points
-        ));
-        let mut t = table(width);
-        t.set_header(vec![
-            "window".to_string(),
-            "edge".into(),
-            "n".into(),
-            format!("area {u}²"),
-            format!("D {u}"),
-            format!("E {u}"),
-            "R".into(),
-            "z".into(),
-            "p".into(),
-            "reproduces?".into(),
-        ]);
+        out.push('\n');
+        say(
+            &mut out,
+            &format!(
+                "Windows of the points ({} points; no simulations):",
+                p.points
+            ),
+            width,
+            "",
+            "  ",
+        );
+        let area = format!("area {u}²");
+        let mean = format!("D {u}");
+        let expected = format!("E {u}");
+        let mut t = Grid::new(
+            vec![
+                Column::text("window"),
+                Column::text("edge"),
+                Column::number("n").rank(1),
+                Column::number(&area).short(&format!("area\n{u}²")).rank(2),
+                Column::number(&mean).rank(3),
+                Column::number(&expected).rank(3),
+                Column::number("R"),
+                Column::number("z").rank(2),
+                Column::number("p"),
+                Column::prose("reproduces?").bare(),
+            ],
+            2,
+            ELSEWHERE,
+        );
         for row in &p.rows {
             let n = match row.focal {
                 Some(m) => format!("{m}/{}", row.n_used),
                 None => row.n_used.to_string(),
             };
-            let right = |s: String| Cell::new(s).set_alignment(CellAlignment::Right);
-            t.add_row(vec![
-                Cell::new(&row.window),
-                Cell::new(&row.edge),
-                right(n),
-                right(number(row.area)),
-                right(row.mean_nn.map_or("—".into(), number)),
-                right(row.expected_nn.map_or("—".into(), number)),
-                right(row.ratio.map_or("—".into(), |x| format!("{x:.3}"))),
-                right(row.z.map_or("—".into(), |x| format!("{x:.2}"))),
-                right(row.p.map_or("—".into(), number)),
-                Cell::new(if row.matches {
+            t.push(vec![
+                row.window.clone(),
+                row.edge.clone(),
+                n,
+                number(row.area),
+                row.mean_nn.map_or("—".into(), number),
+                row.expected_nn.map_or("—".into(), number),
+                row.ratio.map_or("—".into(), |x| format!("{x:.3}")),
+                row.z.map_or("—".into(), |x| format!("{x:.2}")),
+                row.p.map_or("—".into(), number),
+                if row.matches {
                     match row.tail {
                         Some(tl) => format!("yes (p {})", tl.as_str()),
                         None => "yes".into(),
                     }
                 } else {
                     format!("no ({} off)", row.mismatched.join(", "))
-                }),
+                },
             ]);
         }
-        out.push_str(&t.to_string());
-        out.push('\n');
-        out.push_str(&format!("{}\n", capitalise(&p.summary)));
+        out.push_str(&t.render(width));
+        say(&mut out, &capitalise(&p.summary), width, "", "  ");
     }
 
-    out.push_str(&format!("\nVerdict: {}\n", r.verdict));
+    out.push('\n');
+    say(
+        &mut out,
+        &format!("Verdict: {}", r.verdict),
+        width,
+        "",
+        "  ",
+    );
     if r.explanations.is_empty() {
         for c in &r.consistent_if {
-            out.push_str(&format!(
-                "  {}: {}; {}\n",
-                c.condition, c.rating.why, c.rating.ask
-            ));
+            say(
+                &mut out,
+                &format!("{}: {}; {}", c.condition, c.rating.why, c.rating.ask),
+                width,
+                "  ",
+                "    ",
+            );
         }
     }
-    out.push_str(
-        "  a recheck shows whether the printed figures can come from one nearest-neighbour test; it does not show that the study area or the test was a good choice\n",
+    say(
+        &mut out,
+        "a recheck shows whether the printed figures can come from one nearest-neighbour test; it does not show that the study area or the test was a good choice",
+        width,
+        "  ",
+        "    ",
     );
     out
 }

@@ -3,7 +3,7 @@
 
 use crate::document::AuditReport;
 use crate::numbers::{fixed, full, opt, p_value, percent, sig};
-use comfy_table::{Cell, CellAlignment, ContentArrangement, Table, presets};
+use crate::terminal_layout::{Column, Grid};
 use patternproof_core::Call;
 use std::io;
 
@@ -71,28 +71,39 @@ pub fn call_symbol(c: Option<Call>) -> &'static str {
     }
 }
 
-/// The terminal table, sized to `width` columns when known.
+/// The terminal table, laid out for `width` columns (`None`: piped, in
+/// the fixed 100-column layout) by [`terminal_layout`](crate::terminal_layout):
+/// every column when they fit; else without d̄ and `E[d]`, then without
+/// the area and z, keeping window, edge, n, R, p, the call and the
+/// false-alarm rate (which fit 80 columns), each time with a line saying
+/// that `verdict.md` and `verdict.csv` hold the full table. No cell is
+/// ever wrapped. Ends with a newline.
 pub fn terminal_table(report: &AuditReport, width: Option<u16>) -> String {
     let u = &report.input.unit;
-    let mut t = Table::new();
-    t.load_preset(presets::UTF8_BORDERS_ONLY);
-    t.set_content_arrangement(ContentArrangement::Dynamic);
-    if let Some(w) = width {
-        t.set_width(w);
-    }
-    t.set_header(vec![
-        "window".to_string(),
-        "edge".into(),
-        "n".into(),
-        format!("area {u}²"),
-        format!("d̄ {u}"),
-        format!("E[d] {u}"),
-        "R".into(),
-        "z".into(),
-        "p".into(),
-        "call".into(),
-        "false alarms".into(),
-    ]);
+    let area_header = format!("area {u}²");
+    let mean_header = format!("d̄ {u}");
+    let expected_header = format!("E[d] {u}");
+    let mut grid = Grid::new(
+        vec![
+            Column::text("window"),
+            Column::text("edge"),
+            Column::number("n").rank(1),
+            Column::number(&area_header)
+                .short(&format!("area\n{u}²"))
+                .rank(2),
+            Column::number(&mean_header).rank(3),
+            Column::number(&expected_header).rank(3),
+            Column::number("R"),
+            Column::number("z").rank(2),
+            Column::number("p"),
+            Column::text("call").bare(),
+            Column::number("false alarms")
+                .short("false\nalarms")
+                .rank(1),
+        ],
+        2,
+        "verdict.md and verdict.csv",
+    );
     for r in &report.results {
         let area = report
             .windows
@@ -103,24 +114,21 @@ pub fn terminal_table(report: &AuditReport, width: Option<u16>) -> String {
         if let Some(f) = r.focal {
             n = format!("{f}/{n}");
         }
-        let row = vec![
-            Cell::new(&r.window),
-            Cell::new(r.edge.as_str()),
-            Cell::new(n).set_alignment(CellAlignment::Right),
-            Cell::new(opt(area, 4)).set_alignment(CellAlignment::Right),
-            Cell::new(opt(r.mean_nn, 4)).set_alignment(CellAlignment::Right),
-            Cell::new(opt(r.expected_nn, 4)).set_alignment(CellAlignment::Right),
-            Cell::new(r.ratio.map_or("—".into(), |x| fixed(x, 3)))
-                .set_alignment(CellAlignment::Right),
-            Cell::new(r.z.map_or("—".into(), |x| fixed(x, 2))).set_alignment(CellAlignment::Right),
-            Cell::new(r.p.map_or("—".into(), p_value)).set_alignment(CellAlignment::Right),
-            Cell::new(call_word(r.call)),
-            Cell::new(r.size_under_csr.map_or("—".into(), percent))
-                .set_alignment(CellAlignment::Right),
-        ];
-        t.add_row(row);
+        grid.push(vec![
+            r.window.clone(),
+            r.edge.as_str().to_string(),
+            n,
+            opt(area, 4),
+            opt(r.mean_nn, 4),
+            opt(r.expected_nn, 4),
+            r.ratio.map_or("—".into(), |x| fixed(x, 3)),
+            r.z.map_or("—".into(), |x| fixed(x, 2)),
+            r.p.map_or("—".into(), p_value),
+            call_word(r.call).to_string(),
+            r.size_under_csr.map_or("—".into(), percent),
+        ]);
     }
-    t.to_string()
+    grid.render(width)
 }
 
 /// The flip statement in words, one line per analytic edge handling.

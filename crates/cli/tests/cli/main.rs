@@ -18,3 +18,4 @@ mod reference;
 mod report;
 mod scales;
 mod sites;
+mod terminal;

@@ -341,6 +341,15 @@ pub fn index_html(
     page("patternproof density", body)
 }
 
+/// What `density` prints: the verdict sentence, wrapped between words
+/// to `width` columns (`None`: piped, 100 columns), with a newline. The
+/// figures behind it are in `density.json` and `index.html`.
+pub fn terminal_text(a: &Analysis, width: Option<u16>) -> String {
+    let mut s = crate::terminal_layout::wrap(&a.verdict.sentence, width, "", "  ");
+    s.push('\n');
+    s
+}
+
 /// Every output file.
 pub fn folder(a: &Analysis, info: &RunInfo, run: &RunContext) -> Result<OutputFolder, RenderError> {
     let mut f = OutputFolder::default();

@@ -16,9 +16,9 @@ use crate::html::{input_table, provenance_block};
 use crate::numbers::trimmed;
 use crate::page::{page, prose, trusted_svg};
 use crate::run::{RenderError, RunContext};
+use crate::terminal_layout::{Column, Grid, wrap};
 use maud::html;
 use patternproof_scales::ScalesRun;
-use std::fmt::Write as _;
 
 /// The files of a K audit: scales.json, scales.csv, scales.md and the
 /// two pictures.
@@ -112,48 +112,74 @@ pub fn index_html(run: &ScalesRun, source: Source<'_>, context: &RunContext) -> 
 
 /// The terminal text of a K audit (every line ends in a newline): the
 /// grid, the per-window table, the sweep's `notes`, skipped windows, the
-/// verdicts and the cautions.
-pub fn terminal_text(run: &ScalesRun, notes: &[String]) -> String {
+/// verdicts and the cautions, laid out for `width` columns (`None`:
+/// piped, 100 columns) by [`terminal_layout`](crate::terminal_layout): the distance bands wrap
+/// between words, and the n, MAD T and ERL p columns go, in that order
+/// from the last, when they do not fit (`scales.md` has them all).
+pub fn terminal_text(run: &ScalesRun, notes: &[String], width: Option<u16>) -> String {
     let mut s = String::new();
-    let _ = writeln!(
-        s,
-        "L(r) − r up to {} {} ({} steps; {}), {} CSR simulations per window, seed {}:",
-        trimmed(run.rmax, 3),
-        run.unit,
-        run.r.len(),
-        run.rmax_rule,
-        run.sims,
-        run.seed
+    let say = |s: &mut String, text: String, first: &str, rest: &str| {
+        s.push_str(&wrap(&text, width, first, rest));
+        s.push('\n');
+    };
+    say(
+        &mut s,
+        format!(
+            "L(r) − r up to {} {} ({} steps; {}), {} CSR simulations per window, seed {}:",
+            trimmed(run.rmax, 3),
+            run.unit,
+            run.r.len(),
+            run.rmax_rule,
+            run.sims,
+            run.seed
+        ),
+        "",
+        "  ",
     );
-    let _ = writeln!(
-        s,
-        "{:<14} {:>5}  {:<11} {:>9} {:>7} {:>7}  bands outside the MAD envelope",
-        "window", "n", "correction", "MAD T", "MAD p", "ERL p"
+    let mut grid = Grid::new(
+        vec![
+            Column::text("window"),
+            Column::number("n").rank(1),
+            Column::text("correction"),
+            Column::number("MAD T").rank(2),
+            Column::number("MAD p"),
+            Column::number("ERL p").rank(1),
+            Column::prose("bands outside the MAD envelope"),
+        ],
+        1,
+        "scales.md",
     );
     for r in text::table_rows(run) {
-        let _ = writeln!(
-            s,
-            "{:<14} {:>5}  {:<11} {:>9} {:>7} {:>7}  {}",
-            r[0], r[1], r[2], r[3], r[4], r[5], r[6]
-        );
+        grid.push(r.to_vec());
     }
+    s.push_str(&grid.render(width));
     for n in notes {
-        let _ = writeln!(s, "note: {n}");
+        say(&mut s, format!("note: {n}"), "", "  ");
     }
     for k in &run.skipped {
-        let _ = writeln!(s, "skipped {}: {}", k.window, k.reason);
+        say(
+            &mut s,
+            format!("skipped {}: {}", k.window, k.reason),
+            "",
+            "  ",
+        );
     }
     for v in &run.verdicts {
-        let _ = writeln!(
-            s,
-            "\nVerdict ({} correction, MAD test at α = {}): {}.",
-            v.correction.as_str(),
-            run.alpha,
-            v.sentence
+        s.push('\n');
+        say(
+            &mut s,
+            format!(
+                "Verdict ({} correction, MAD test at α = {}): {}.",
+                v.correction.as_str(),
+                run.alpha,
+                v.sentence
+            ),
+            "",
+            "  ",
         );
     }
     for c in &run.cautions {
-        let _ = writeln!(s, "  caution: {c}");
+        say(&mut s, format!("caution: {c}"), "  ", "    ");
     }
     s
 }

@@ -7,10 +7,12 @@
 //! | [`files`] | `sites.json`, `sites.csv`, `sites.md` and the summary line |
 //! | [`forest`] | `sites.svg`, the site-by-site picture of R and its interval |
 //! | [`page`] | `index.html` of the run |
+//! | [`terminal`] | the table, summary and cautions printed on the terminal |
 
 pub mod files;
 pub mod forest;
 pub mod page;
+pub mod terminal;
 
 use crate::OutputFolder;
 use crate::audit_folder::{Plane, RenderChoices, audit_folder};
