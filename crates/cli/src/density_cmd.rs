@@ -119,11 +119,7 @@ pub fn run(a: &DensityArgs) -> Result<(), Failure> {
         "{}",
         patternproof_report::density::terminal_text(&analysis, width)
     );
-    crate::terminal::say(
-        &crate::common::wrote_line(&folder, &a.output.out),
-        width,
-        "",
-        "  ",
-    );
+    // One line, never wrapped: the folder's path is copied from it.
+    println!("{}", crate::common::wrote_line(&folder, &a.output.out));
     Ok(())
 }

@@ -125,12 +125,8 @@ pub fn run(a: &ScalesArgs) -> Result<(), Failure> {
         patternproof_report::scales::terminal_text(&run, &notes, width)
     );
     println!();
-    crate::terminal::say(
-        &crate::common::wrote_line(&folder, &a.output.out),
-        width,
-        "",
-        "  ",
-    );
+    // One line, never wrapped: the folder's path is copied from it.
+    println!("{}", crate::common::wrote_line(&folder, &a.output.out));
     Ok(())
 }
 

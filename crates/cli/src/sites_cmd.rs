@@ -116,12 +116,8 @@ pub fn run(a: &SitesArgs) -> Result<(), Failure> {
     for n in &doc.notes {
         crate::terminal::say(&format!("caution: {n}"), width, "  ", "    ");
     }
-    crate::terminal::say(
-        &crate::common::wrote_line(&folder, &a.output.out),
-        width,
-        "",
-        "  ",
-    );
+    // One line, never wrapped: the folder's path is copied from it.
+    println!("{}", crate::common::wrote_line(&folder, &a.output.out));
     Ok(())
 }
 

@@ -288,5 +288,8 @@ fn layer_names_reach_the_pictures_without_backticks() {
     assert!(o.status.success(), "{}", stderr(&o));
     assert_eq!(check_folder(&out), 3);
     let t = texts(&read(&out.join("sensitivity.svg")));
-    assert!(t.iter().any(|x| x.contains("(layer ‘plots_utm’)")), "{t:?}");
+    assert!(
+        t.iter().any(|x| x.contains("(layer \"plots_utm\")")),
+        "{t:?}"
+    );
 }
