@@ -116,8 +116,8 @@ pub fn run(a: &DensityArgs) -> Result<(), Failure> {
         command_line: command.join(" "),
         ..RunContext::default()
     };
-    let folder = patternproof_report::density::folder(&analysis, &info, &context)?;
-    a.output.write(&folder)?;
+    let mut folder = patternproof_report::density::folder(&analysis, &info, &context)?;
+    a.output.write(&mut folder)?;
     if !a.quiet {
         for w in info.warnings.iter().chain(&analysis.warnings) {
             eprintln!("patternproof: warning: {w}");

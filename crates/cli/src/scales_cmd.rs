@@ -102,8 +102,8 @@ pub fn run(a: &ScalesArgs) -> Result<(), Failure> {
     };
     let job = ScalesJob::prepare(&input, &windows)?;
     let ScalesResult { run, notes } = compute(&job, &options, a.quiet, "--sims")?;
-    let folder = patternproof_report::scales::folder(&run)?;
-    a.output.write(&folder)?;
+    let mut folder = patternproof_report::scales::folder(&run)?;
+    a.output.write(&mut folder)?;
 
     for w in &data.warnings {
         eprintln!("patternproof: warning: {w}");
