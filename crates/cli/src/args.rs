@@ -6,6 +6,7 @@ use crate::interrupt;
 use crate::window_args::WindowArgs;
 use clap::{Args, Parser, Subcommand, ValueEnum};
 use patternproof::options::{CoordChoice, SCREEN_SIMS, TEST_SIMS};
+use patternproof::words::{self, PictureFormat};
 use patternproof_report::{FolderError, OutputFolder, WriteOptions, write_folder};
 use std::path::PathBuf;
 
@@ -119,6 +120,41 @@ pub struct OutArgs {
     /// Report folder (written whole or not at all).
     #[arg(long, value_name = "DIR")]
     pub out: PathBuf,
+    /// Picture formats: svg (always written), png, pdf; `--figures
+    /// svg,png,pdf` adds NAME.png (at --dpi) and NAME.pdf (fonts
+    /// embedded) beside each NAME.svg.
+    #[arg(long, value_delimiter = ',', default_value = "svg", value_name = "LIST", value_parser = picture_format)]
+    pub figures: Vec<PictureFormat>,
+    /// Resolution of the PNG pictures of `--figures`, in dots per inch (72 to 600).
+    #[arg(long, default_value_t = 300, value_name = "N", value_parser = dpi)]
+    pub dpi: u32,
+}
+
+/// A word of `--figures`, checked by the facade's `words` (as the Python
+/// package checks it); clap adds the flag and the value to the message.
+fn picture_format(text: &str) -> Result<PictureFormat, String> {
+    words::picture_format(text).map_err(|e| refusal_text(&e))
+}
+
+/// `--dpi`: a whole number within the facade's `words::DPI_RANGE`.
+fn dpi(text: &str) -> Result<u32, String> {
+    let (low, high) = words::DPI_RANGE;
+    let n = text.trim().parse::<u32>().map_err(|_| {
+        format!(
+            "not a whole number of dots per inch\n  what to do: give a resolution from {low} to {high}, e.g. --dpi 300"
+        )
+    })?;
+    words::dpi(n).map_err(|e| refusal_text(&e))
+}
+
+/// What is wrong and what to do, without the subject clap names itself.
+fn refusal_text(e: &patternproof::Error) -> String {
+    match e {
+        patternproof::Error::Refused { what, hint, .. } => {
+            format!("{what}\n  what to do: {hint}")
+        }
+        e => e.to_string(),
+    }
 }
 
 impl OutArgs {
@@ -126,7 +162,11 @@ impl OutArgs {
     /// `--force`, a folder that is not a report) is bad input. A signal
     /// during the write leaves the old report or the new one, whole, and
     /// ends the program after saying which.
-    pub fn write(&self, folder: &OutputFolder) -> Result<(), Failure> {
+    ///
+    /// The print copies of `--figures` are added to `folder` first, so it
+    /// lists every file written.
+    pub fn write(&self, folder: &mut OutputFolder) -> Result<(), Failure> {
+        crate::figures::add_copies(folder, &self.figures, self.dpi)?;
         let (result, signal) = interrupt::hold(|stop| {
             write_folder(
                 &self.out,

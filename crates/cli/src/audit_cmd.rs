@@ -87,8 +87,8 @@ pub fn run(a: &AuditArgs) -> Result<(), Failure> {
             .map(|f| f as &(dyn Fn(f64, f64) -> _ + Sync)),
         srs: &srs,
     };
-    let folder = audit_folder(&report, plane, &choices, &context)?;
-    a.output.write(&folder)?;
+    let mut folder = audit_folder(&report, plane, &choices, &context)?;
+    a.output.write(&mut folder)?;
 
     print_summary(&report);
     if let Some(k) = &scales {

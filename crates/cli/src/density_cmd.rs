@@ -109,8 +109,8 @@ pub fn run(a: &DensityArgs) -> Result<(), Failure> {
         command_line: crate::common::command_line(),
         ..RunContext::default()
     };
-    let folder = patternproof_report::density::folder(&analysis, &info, &context)?;
-    a.output.write(&folder)?;
+    let mut folder = patternproof_report::density::folder(&analysis, &info, &context)?;
+    a.output.write(&mut folder)?;
     for w in info.warnings.iter().chain(&analysis.warnings) {
         eprintln!("patternproof: warning: {w}");
     }

@@ -12,6 +12,7 @@ mod budget;
 mod common;
 mod density_cmd;
 mod fail;
+mod figures;
 mod interrupt;
 mod progress;
 mod protocol_cmd;

@@ -113,8 +113,8 @@ pub fn run(a: &ScalesArgs) -> Result<(), Failure> {
         command_line: crate::common::command_line(),
         ..RunContext::default()
     };
-    let folder = patternproof_report::scales::folder(&run, source, &context)?;
-    a.output.write(&folder)?;
+    let mut folder = patternproof_report::scales::folder(&run, source, &context)?;
+    a.output.write(&mut folder)?;
 
     for w in &data.warnings {
         eprintln!("patternproof: warning: {w}");

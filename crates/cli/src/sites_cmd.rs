@@ -94,8 +94,8 @@ pub fn run(a: &SitesArgs) -> Result<(), Failure> {
     };
     check_budget(&inputs, &protocol, opts, a.quiet.quiet)?;
     let runs = patternproof::sites(&loaded, &protocol, opts, &Progress::new(a.quiet.quiet))?;
-    let folder = outputs(a, &protocol, sites, datasets, &runs)?;
-    a.output.write(&folder)?;
+    let mut folder = outputs(a, &protocol, sites, datasets, &runs)?;
+    a.output.write(&mut folder)?;
 
     let doc = document(&runs, &protocol, a.sweep_sims);
     let width = crate::terminal::stdout_width();

@@ -304,3 +304,90 @@ pub fn density(w: &DensityWords<'_>, unit: &str) -> Result<crate::DensityConfig,
         unit: unit.to_string(),
     })
 }
+
+/// A picture format of `--figures`: the SVG every report has, and the
+/// print copies a journal may ask for.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum PictureFormat {
+    /// The SVG itself (always written; embedded in `index.html`).
+    Svg,
+    /// A PNG at `--dpi` dots per inch.
+    Png,
+    /// A vector PDF with its font embedded.
+    Pdf,
+}
+
+impl PictureFormat {
+    /// The file extension, which is also the word for it.
+    pub fn extension(self) -> &'static str {
+        match self {
+            PictureFormat::Svg => "svg",
+            PictureFormat::Png => "png",
+            PictureFormat::Pdf => "pdf",
+        }
+    }
+}
+
+/// One word of `--figures svg,png,pdf`.
+pub fn picture_format(word: &str) -> Result<PictureFormat, Error> {
+    let w = word.trim();
+    [PictureFormat::Svg, PictureFormat::Png, PictureFormat::Pdf]
+        .into_iter()
+        .find(|f| f.extension().eq_ignore_ascii_case(w))
+        .ok_or_else(|| {
+            setting(
+                "--figures",
+                format!("`{w}` is not a picture format"),
+                "choose from svg, png, pdf (svg is always written), e.g. --figures svg,png,pdf",
+            )
+        })
+}
+
+/// The resolutions `--dpi` accepts, in dots per inch: from a screen's to
+/// twice what journals ask of halftones; beyond that a PNG of a report
+/// picture runs into hundreds of megabytes.
+pub const DPI_RANGE: (u32, u32) = (72, 600);
+
+/// `--dpi`, the resolution of the PNG copies.
+pub fn dpi(dpi: u32) -> Result<u32, Error> {
+    let (low, high) = DPI_RANGE;
+    if (low..=high).contains(&dpi) {
+        Ok(dpi)
+    } else {
+        Err(setting(
+            format!("--dpi {dpi}"),
+            format!("the resolution must lie between {low} and {high} dots per inch"),
+            "use e.g. --dpi 300 (what most journals ask for), or 600 for line art",
+        ))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn picture_formats_are_read_and_refused_with_the_flag() {
+        assert_eq!(picture_format(" PNG ").ok(), Some(PictureFormat::Png));
+        assert_eq!(picture_format("pdf").ok(), Some(PictureFormat::Pdf));
+        let e = picture_format("tiff").expect_err("not a format");
+        assert_eq!(e.kind(), crate::ErrorKind::Refused(Refusal::Setting));
+        let text = e.to_string();
+        assert!(
+            text.starts_with("--figures: `tiff` is not a picture format"),
+            "{text}"
+        );
+        assert!(text.contains("choose from svg, png, pdf"), "{text}");
+    }
+
+    #[test]
+    fn dpi_is_bounded() {
+        assert_eq!(dpi(72).ok(), Some(72));
+        assert_eq!(dpi(600).ok(), Some(600));
+        for bad in [0, 71, 601, 100_000] {
+            let e = dpi(bad).expect_err("out of range");
+            assert_eq!(e.kind(), crate::ErrorKind::Refused(Refusal::Setting));
+            assert!(e.to_string().starts_with(&format!("--dpi {bad}: ")));
+        }
+    }
+}

@@ -68,6 +68,12 @@ impl OutputFolder {
         self.files.iter().map(|(n, _)| n.as_str())
     }
 
+    /// Names and contents added so far, in order (e.g. to add print
+    /// copies of the pictures before the folder is written).
+    pub fn files(&self) -> impl Iterator<Item = (&str, &[u8])> {
+        self.files.iter().map(|(n, c)| (n.as_str(), c.as_slice()))
+    }
+
     /// The description of the deepest described sub-folder holding `name`.
     fn part_of(&self, name: &str) -> Option<&str> {
         self.parts

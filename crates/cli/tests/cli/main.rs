@@ -8,6 +8,7 @@ mod util;
 mod audit;
 mod bad_inputs;
 mod density;
+mod figures;
 mod flags;
 mod glance;
 mod gpkg;
