@@ -328,5 +328,7 @@ fn audit_in_an_80_column_terminal() {
             assert!(piped_tokens.contains(&t), "{t:?} cut?\n{text}");
         }
     }
-    assert!(widest_line(&piped_text) <= PIPED_COLUMNS, "{piped_text}");
+    for line in piped_text.lines().filter(|l| !l.starts_with("wrote ")) {
+        assert!(widest_line(line) <= PIPED_COLUMNS, "{line}\n{piped_text}");
+    }
 }
