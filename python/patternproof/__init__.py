@@ -64,6 +64,9 @@ __all__ = [
     "density",
     "sites",
     "plan_sites",
+    "protocol",
+    "read_protocol",
+    "StudyProtocol",
     "AuditResult",
     "RecheckResult",
     "ScalesResult",
@@ -948,6 +951,87 @@ class SitePlan:
     def run_all(self) -> SitesResult:
         """Run every site (in parallel) and adjust across them."""
         return SitesResult(self._native.run_all(), self.warnings)
+
+
+class StudyProtocol:
+    """A study protocol: the locked choices of a multi-site study
+    (``protocol.json``, written by :meth:`write` exactly as
+    ``patternproof protocol new --out FILE`` writes it).
+
+    >>> p = protocol(window="hull+1nn", sims=99)
+    >>> p.sha256 == protocol(window="hull+1nn", sims=99).sha256
+    True
+    """
+
+    def __init__(self, text: str, sha256: str, lines: Sequence[str]) -> None:
+        self._text = text
+        #: SHA-256 of the choices: the protocol's identity.
+        self.sha256 = sha256
+        #: The choices in words, one per line.
+        self.lines = tuple(lines)
+
+    def to_json(self) -> str:
+        """The file text."""
+        return self._text
+
+    def to_dict(self) -> dict:
+        """The file as plain Python values."""
+        return json.loads(self._text)
+
+    def write(self, path: PathLike) -> str:
+        """Write the protocol file; an existing file is never replaced
+        (keep the old protocol as the record of what was fixed). Returns
+        the path written."""
+        target = os.fspath(path)
+        try:
+            with open(target, "x", encoding="utf-8") as f:
+                f.write(self._text)
+        except FileExistsError:
+            raise SettingError(
+                f"{target}: the file exists; a protocol is not overwritten\n"
+                "  what to do: choose a new name (keep the old protocol as the record of what was fixed)"
+            ) from None
+        return target
+
+    def __repr__(self) -> str:
+        return f"<StudyProtocol {self.sha256[:12]}: {'; '.join(self.lines)}>"
+
+
+def protocol(
+    *,
+    window: str = "hull+1nn",
+    edge: str = "simulation",
+    alpha: float = 0.05,
+    sims: int = 999,
+    seed: int = 1,
+    adjust: str = "holm",
+    min_n: int = 10,
+    guard: Optional[float] = None,
+    concavity: float = 2.0,
+    note: Optional[str] = None,
+) -> StudyProtocol:
+    """A new study protocol with ``protocol new``'s defaults, checked in
+    its words (``SettingError``)."""
+    return StudyProtocol(
+        *_native.protocol(
+            str(window),
+            str(edge),
+            float(_number("alpha", alpha)),
+            _count("sims", sims),
+            _count("seed", seed),
+            str(adjust),
+            _count("min_n", min_n),
+            _number("guard", guard),
+            float(_number("concavity", concavity)),
+            note,
+        )
+    )
+
+
+def read_protocol(path: PathLike) -> StudyProtocol:
+    """A protocol file, checked: ``ProtocolError`` when its choices were
+    changed after it was written (as ``protocol show`` refuses it)."""
+    return StudyProtocol(*_native.read_protocol(os.fspath(path)))
 
 
 def plan_sites(

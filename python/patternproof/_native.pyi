@@ -120,3 +120,17 @@ class ArrowTable:
     @property
     def column_names(self) -> List[str]: ...
     def __arrow_c_stream__(self, requested_schema: Any = None) -> Any: ...
+
+def protocol(
+    window: str,
+    edge: str,
+    alpha: float,
+    sims: int,
+    seed: int,
+    adjust: str,
+    min_n: int,
+    guard: Optional[float],
+    concavity: float,
+    note: Optional[str],
+) -> Tuple[str, str, List[str]]: ...
+def read_protocol(path: str) -> Tuple[str, str, List[str]]: ...

@@ -700,11 +700,61 @@ fn plan_sites(
     py.detach(run).map_err(to_py)
 }
 
+/// What a protocol gives Python: the file text, its SHA-256 and the
+/// choices in words.
+type ProtocolParts = (String, String, Vec<String>);
+
+fn protocol_parts(p: &Protocol) -> ProtocolParts {
+    (p.to_file_text(), p.sha256(), p.describe())
+}
+
+/// A new study protocol, checked as `protocol new` checks it.
+#[pyfunction]
+#[pyo3(signature = (window, edge, alpha, sims, seed, adjust, min_n, guard, concavity, note))]
+#[allow(clippy::too_many_arguments)]
+fn protocol(
+    window: String,
+    edge: String,
+    alpha: f64,
+    sims: usize,
+    seed: u64,
+    adjust: String,
+    min_n: usize,
+    guard: Option<f64>,
+    concavity: f64,
+    note: Option<String>,
+) -> PyResult<ProtocolParts> {
+    let p = options::protocol(&options::ProtocolWords {
+        window: &window,
+        edge: &edge,
+        alpha,
+        sims,
+        seed,
+        adjust: &adjust,
+        min_n,
+        guard,
+        concavity,
+        note: note.as_deref(),
+    })
+    .map_err(to_py)?;
+    Ok(protocol_parts(&p))
+}
+
+/// A protocol file, refused when its choices were changed after it was
+/// written (`protocol show`).
+#[pyfunction]
+fn read_protocol(path: PathBuf) -> PyResult<ProtocolParts> {
+    let p = patternproof::read_verified(&path).map_err(to_py)?;
+    Ok(protocol_parts(&p))
+}
+
 /// The module.
 #[pymodule]
 fn _native(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(audit, m)?)?;
     m.add_class::<AuditFolder>()?;
+    m.add_function(wrap_pyfunction!(protocol, m)?)?;
+    m.add_function(wrap_pyfunction!(read_protocol, m)?)?;
     m.add_class::<ScalesFolder>()?;
     m.add_class::<DensityFolder>()?;
     m.add_function(wrap_pyfunction!(recheck, m)?)?;

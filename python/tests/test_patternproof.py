@@ -504,3 +504,27 @@ def test_ctrl_c_stops_a_long_run_and_leaves_nothing_running():
     assert threading.active_count() == 1
     # The engine is ready for the next call.
     assert patternproof.audit(POINTS, [BOUNDARY], sims=19).n == 143
+
+
+def test_a_protocol_is_the_cli_protocol_file(tmp_path):
+    cli("protocol", "new", "--window", "boundary", "--sims", "199", "--adjust", "bh",
+        "--note", "meadow plots", "--out", str(tmp_path / "cli.json"))
+    p = patternproof.protocol(window="boundary", sims=199, adjust="bh", note="meadow plots")
+    written = p.write(tmp_path / "py.json")
+    assert Path(written).read_bytes() == (tmp_path / "cli.json").read_bytes()
+    assert patternproof.read_protocol(tmp_path / "cli.json").sha256 == p.sha256
+    assert p.to_dict()["window"] == {"rule": "boundary"}
+    with pytest.raises(patternproof.SettingError):
+        p.write(tmp_path / "py.json")
+    # Refused in the command line's words.
+    want = cli_error("protocol", "new", "--window", "hull+x", "--out", str(tmp_path / "x.json"))
+    with pytest.raises(patternproof.SettingError) as e:
+        patternproof.protocol(window="hull+x")
+    assert str(e.value) == want
+    # A file edited after it was written is refused, as `protocol show` does.
+    edited = tmp_path / "edited.json"
+    edited.write_text((tmp_path / "cli.json").read_text().replace('"sims": 199', '"sims": 99'))
+    want = cli_error("protocol", "show", str(edited))
+    with pytest.raises(patternproof.ProtocolError) as e:
+        patternproof.read_protocol(edited)
+    assert str(e.value) == want

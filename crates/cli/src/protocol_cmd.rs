@@ -4,9 +4,7 @@
 use crate::args::count;
 use crate::fail::Failure;
 use clap::{Args, Subcommand};
-use patternproof::options::{
-    Adjust, Check, Edge, PROTOCOL_SCHEMA as SCHEMA, Protocol, TEST_SIMS, WindowRule,
-};
+use patternproof::options::{Check, TEST_SIMS};
 use std::path::{Path, PathBuf};
 
 /// `patternproof protocol`.
@@ -83,46 +81,18 @@ pub fn run(a: &ProtocolArgs) -> Result<(), Failure> {
 }
 
 fn new(a: &NewArgs) -> Result<(), Failure> {
-    let usage = |opt: &str, what: String, hint: &str| {
-        Failure::Input(format!("{opt}: {what}\n  what to do: {hint}"))
-    };
-    let window = WindowRule::parse(&a.window).map_err(|e| {
-        usage(
-            "--window",
-            e.to_string(),
-            "use hull, hull+25, hull+1nn, bbox, boundary or concave",
-        )
-    })?;
-    let edge = Edge::parse(&a.edge).ok_or_else(|| {
-        usage(
-            "--edge",
-            format!("`{}` is not an edge handling", a.edge),
-            "choose one of none, donnelly, border, toroidal, simulation",
-        )
-    })?;
-    let adjust = Adjust::parse(&a.adjust).ok_or_else(|| {
-        usage(
-            "--adjust",
-            format!("`{}` is not an adjustment", a.adjust),
-            "choose holm, bh or none",
-        )
-    })?;
-    let protocol = Protocol {
-        schema: SCHEMA.into(),
-        window,
-        edge,
+    let protocol = patternproof::words::protocol(&patternproof::words::ProtocolWords {
+        window: &a.window,
+        edge: &a.edge,
         alpha: a.alpha,
         sims: a.sims,
         seed: a.seed,
-        adjust,
+        adjust: &a.adjust,
         min_n: a.min_n,
         guard: a.guard,
         concavity: a.concavity,
-        note: a.note.clone(),
-    };
-    protocol
-        .validate()
-        .map_err(|e| Failure::Input(format!("protocol: {e}")))?;
+        note: a.note.as_deref(),
+    })?;
     if a.out.exists() {
         return Err(Failure::Input(format!(
             "{}: the file exists; a protocol is not overwritten\n  what to do: choose a new --out name (keep the old protocol as the record of what was fixed)",

@@ -391,3 +391,73 @@ mod tests {
         }
     }
 }
+
+/// The choices of `protocol new`, as words and numbers.
+#[derive(Debug, Clone)]
+pub struct ProtocolWords<'a> {
+    /// `--window`: hull, hull+D, hull+kNN, bbox, boundary, concave.
+    pub window: &'a str,
+    /// `--edge`: the one edge handling of the study.
+    pub edge: &'a str,
+    /// `--alpha`.
+    pub alpha: f64,
+    /// `--sims`.
+    pub sims: usize,
+    /// `--seed`.
+    pub seed: u64,
+    /// `--adjust`: holm, bh or none.
+    pub adjust: &'a str,
+    /// `--min-n`.
+    pub min_n: usize,
+    /// `--guard`.
+    pub guard: Option<f64>,
+    /// `--concavity`.
+    pub concavity: f64,
+    /// `--note`.
+    pub note: Option<&'a str>,
+}
+
+/// The protocol `protocol new` writes, checked: every word parsed and
+/// every choice in range ([`Protocol::validate`]), refused in the same
+/// words whichever front end asked.
+pub fn protocol(w: &ProtocolWords<'_>) -> Result<patternproof_protocol::Protocol, Error> {
+    use patternproof_protocol::{Adjust, Protocol, SCHEMA, WindowRule};
+    let window = WindowRule::parse(w.window).map_err(|e| {
+        setting(
+            "--window",
+            e.to_string(),
+            "use hull, hull+25, hull+1nn, bbox, boundary or concave",
+        )
+    })?;
+    let edge = Edge::parse(w.edge).ok_or_else(|| {
+        setting(
+            "--edge",
+            format!("`{}` is not an edge handling", w.edge),
+            "choose one of none, donnelly, border, toroidal, simulation",
+        )
+    })?;
+    let adjust = Adjust::parse(w.adjust).ok_or_else(|| {
+        setting(
+            "--adjust",
+            format!("`{}` is not an adjustment", w.adjust),
+            "choose holm, bh or none",
+        )
+    })?;
+    let protocol = Protocol {
+        schema: SCHEMA.into(),
+        window,
+        edge,
+        alpha: w.alpha,
+        sims: w.sims,
+        seed: w.seed,
+        adjust,
+        min_n: w.min_n,
+        guard: w.guard,
+        concavity: w.concavity,
+        note: w.note.map(str::to_string),
+    };
+    protocol
+        .validate()
+        .map_err(|e| setting("protocol", e.what, e.hint))?;
+    Ok(protocol)
+}
