@@ -228,7 +228,8 @@ def _table_points(points: Any, names: list, coords: str) -> bytes:
 
 def _arrow_points(points: Any, coords: str) -> bytes:
     """The x, y columns of any Arrow producer (``__arrow_c_stream__``:
-    pyarrow, polars, pandas, DuckDB), read by the native module without
+    pyarrow, polars, pandas, DuckDB; or one batch through
+    ``__arrow_c_array__``), read by the native module without
     numpy; names are chosen for ``coords`` as for other tables."""
     pairs = [tuple(p) for p in _COLUMNS.get(coords, ())]
     found, data, names = _native.arrow_points(points, pairs)
@@ -243,7 +244,8 @@ def _points(points: Any, coords: str = "auto") -> Union[str, bytes]:
     """A file path as text, or the coordinates as native f64 bytes x0 y0 x1 y1 …"""
     if isinstance(points, (str, os.PathLike)):
         return os.fspath(points)
-    if hasattr(points, "__arrow_c_stream__") and not isinstance(points, Mapping):
+    arrow = hasattr(points, "__arrow_c_stream__") or hasattr(points, "__arrow_c_array__")
+    if arrow and not isinstance(points, Mapping):
         return _arrow_points(points, coords)
     names = _column_names(points)
     if names is not None:

@@ -10,6 +10,7 @@
 
 use crate::errors::{setting, to_py};
 use arrow_array::cast::AsArray;
+use arrow_array::ffi::{FFI_ArrowArray, FFI_ArrowSchema, from_ffi};
 use arrow_array::ffi_stream::{FFI_ArrowArrayStream, RecordBatchStreamReader};
 use arrow_array::types::{
     Float32Type, Float64Type, Int8Type, Int16Type, Int32Type, Int64Type, UInt8Type, UInt16Type,
@@ -17,7 +18,7 @@ use arrow_array::types::{
 };
 use arrow_array::{
     Array, ArrayRef, BooleanArray, Float64Array, Int64Array, RecordBatch, RecordBatchIterator,
-    RecordBatchReader, StringArray,
+    RecordBatchReader, StringArray, make_array,
 };
 use arrow_schema::{ArrowError, DataType, Field, Schema};
 use pyo3::prelude::*;
@@ -52,6 +53,51 @@ fn stream_of(obj: &Bound<'_, PyAny>) -> PyResult<RecordBatchStreamReader> {
         .map_err(|e| arrow_error("points", e))
 }
 
+/// Read the one record batch (a struct array of named columns) an object
+/// offers through `__arrow_c_array__` (a pyarrow RecordBatch or
+/// StructArray, any producer of a single batch).
+fn batch_of(obj: &Bound<'_, PyAny>) -> PyResult<Box<dyn RecordBatchReader>> {
+    let pair = obj.call_method0("__arrow_c_array__")?;
+    let (schema, array): (Bound<'_, PyAny>, Bound<'_, PyAny>) = pair.extract()?;
+    let not_capsules = || {
+        pyerr(
+            "points",
+            "__arrow_c_array__() did not return two capsules",
+            "pass a pyarrow table, a polars or pandas data frame, or an (n, 2) array",
+        )
+    };
+    let schema = schema.cast::<PyCapsule>().map_err(|_| not_capsules())?;
+    let array = array.cast::<PyCapsule>().map_err(|_| not_capsules())?;
+    let schema_ptr = schema.pointer_checked(Some(c"arrow_schema"))?;
+    let array_ptr = array.pointer_checked(Some(c"arrow_array"))?;
+    // SAFETY: by the Arrow PyCapsule interface the capsules named
+    // `arrow_schema` and `arrow_array` point to an FFI_ArrowSchema and an
+    // FFI_ArrowArray. The schema is only borrowed (its capsule releases
+    // it); the array is moved out, leaving a released one behind for its
+    // capsule's destructor.
+    #[allow(unsafe_code)]
+    let data = unsafe {
+        let schema = &*schema_ptr.cast::<FFI_ArrowSchema>().as_ptr();
+        let array = FFI_ArrowArray::from_raw(array_ptr.cast::<FFI_ArrowArray>().as_ptr());
+        from_ffi(array, schema)
+    }
+    .map_err(|e| arrow_error("points", e))?;
+    let array = make_array(data);
+    let Some(columns) = array.as_struct_opt() else {
+        return Err(pyerr(
+            "points",
+            &format!(
+                "an Arrow array of {} has no named columns",
+                array.data_type()
+            ),
+            "pass a table or record batch with x, y (or lon, lat) columns",
+        ));
+    };
+    let batch = RecordBatch::from(columns.clone());
+    let schema = batch.schema();
+    Ok(Box::new(RecordBatchIterator::new([Ok(batch)], schema)))
+}
+
 fn arrow_error(what: &str, e: ArrowError) -> PyErr {
     pyerr(
         what,
@@ -73,7 +119,11 @@ pub fn arrow_points<'py>(
     obj: &Bound<'py, PyAny>,
     pairs: Vec<(String, String)>,
 ) -> PyResult<Found<'py>> {
-    let reader = stream_of(obj)?;
+    let reader: Box<dyn RecordBatchReader> = if obj.hasattr("__arrow_c_stream__")? {
+        Box::new(stream_of(obj)?)
+    } else {
+        batch_of(obj)?
+    };
     let schema = reader.schema();
     let names: Vec<String> = schema.fields().iter().map(|f| f.name().clone()).collect();
     let find = |want: &str| names.iter().position(|n| n.eq_ignore_ascii_case(want));

@@ -302,6 +302,35 @@ def test_any_arrow_producer_gives_the_numpy_report():
     assert patternproof.audit(_ArrowOnly(cm), coords="projected", sims=19).to_json() == from_cm
 
 
+class _ArrayOnly:
+    """One record batch offered through ``__arrow_c_array__`` alone."""
+
+    def __init__(self, array):
+        self._array = array
+
+    def __arrow_c_array__(self, requested_schema=None):
+        return self._array.__arrow_c_array__(requested_schema)
+
+
+def test_one_arrow_batch_or_struct_array_gives_the_numpy_report():
+    import pyarrow as pa
+
+    xy = np.array(demo_xy())
+    kwargs = dict(boundaries=[BOUNDARY], coords="projected", sims=99)
+    from_numpy = patternproof.audit(xy, **kwargs).to_json()
+    batch = pa.record_batch({"x": xy[:, 0], "y": xy[:, 1]})
+    struct = pa.StructArray.from_arrays([pa.array(xy[:, 0]), pa.array(xy[:, 1])], names=["lon_", "X"])
+    renamed = pa.StructArray.from_arrays([pa.array(xy[:, 0]), pa.array(xy[:, 1])], names=["X", "Y"])
+    assert patternproof.audit(_ArrayOnly(batch), **kwargs).to_json() == from_numpy
+    assert patternproof.audit(_ArrayOnly(renamed), **kwargs).to_json() == from_numpy
+    with pytest.raises(patternproof.SettingError) as e:
+        patternproof.audit(_ArrayOnly(struct), **kwargs)
+    assert "(it has lon_, X)" in str(e.value)
+    with pytest.raises(patternproof.SettingError) as e:
+        patternproof.audit(_ArrayOnly(pa.array(xy[:, 0])), **kwargs)
+    assert "an Arrow array of Float64 has no named columns" in str(e.value)
+
+
 def test_an_arrow_table_with_gaps_or_text_is_refused():
     import pyarrow as pa
 
