@@ -3,7 +3,7 @@
 //! pseudo-terminal and in a real headless browser at 1400 px. The last two
 //! leave their captures in `target/tmp/glance/` for a person to look at.
 
-use crate::util::{bin, read, repo_arg, stderr, stdout, tmp, under_ci};
+use crate::util::{bin, chromium, read, repo_arg, screenshot, stderr, stdout, tmp, under_ci};
 use serde_json::Value;
 use std::path::{Path, PathBuf};
 use std::process::Command;
@@ -240,14 +240,7 @@ fn an_80_column_terminal_shows_the_matrix_first() {
 /// sentence (its blue rule), before any picture.
 #[test]
 fn the_page_at_1400_px_shows_the_matrix_first() {
-    let Some(browser) = ["chromium", "chromium-browser"].into_iter().find(|b| {
-        Command::new(b)
-            .arg("--version")
-            .output()
-            .is_ok_and(|o| o.status.success())
-    }) else {
-        assert!(!under_ci(), "chromium is missing, and CI needs this test");
-        eprintln!("SKIPPED the_page_at_1400_px_shows_the_matrix_first: no chromium on PATH");
+    let Some(browser) = chromium("the_page_at_1400_px_shows_the_matrix_first") else {
         return;
     };
     let dir = tmp();
@@ -255,34 +248,10 @@ fn the_page_at_1400_px_shows_the_matrix_first() {
     let o = bin().args(demo_args(&out)).output().expect("runs");
     assert!(o.status.success(), "{}", stderr(&o));
     let png = captures().join("index-1400.png");
-    let _ = std::fs::remove_file(&png);
-    let o = Command::new(browser)
-        .args([
-            "--headless",
-            "--no-sandbox",
-            "--disable-gpu",
-            "--hide-scrollbars",
-            "--window-size=1400,700",
-        ])
-        .arg(format!("--screenshot={}", png.display()))
-        .arg(format!("file://{}", out.join("index.html").display()))
-        .output()
-        .expect("chromium runs");
-    assert!(png.exists(), "no screenshot: {}", stderr(&o));
-    let decoder = png::Decoder::new(std::io::BufReader::new(
-        std::fs::File::open(&png).expect("png"),
-    ));
-    let mut reader = decoder.read_info().expect("PNG header");
-    let mut buf = vec![0; reader.output_buffer_size().expect("size")];
-    let info = reader.next_frame(&mut buf).expect("PNG frame");
-    assert_eq!((info.width, info.height), (1400, 700));
-    let channels = info.color_type.samples();
-    let count = |rgb: [u8; 3]| {
-        buf[..info.buffer_size()]
-            .chunks(channels)
-            .filter(|px| px[..3] == rgb)
-            .count()
-    };
+    let (width, height, channels, buf) =
+        screenshot(browser, &out.join("index.html"), (1400, 700), &png);
+    assert_eq!((width, height), (1400, 700));
+    let count = |rgb: [u8; 3]| buf.chunks(channels).filter(|px| px[..3] == rgb).count();
     // The stylesheet's tints (page.rs): clustered, dispersed cells, the
     // verdict's rule. A cell of text is some 100 × 20 px.
     let clustered = count([0xfb, 0xe7, 0xbf]);

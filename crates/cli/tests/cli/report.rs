@@ -1,11 +1,11 @@
 //! The report a reviewer reads: pictures, `index.html`, determinism, the
 //! map switch, and a headless-browser rendering of the page.
 
-use crate::util::{bin, read, repo, repo_arg, stderr, tmp, under_ci};
+use crate::util::{bin, chromium, read, repo, repo_arg, screenshot, stderr, tmp};
 use patternproof_report::numbers::sig;
 use serde_json::Value;
 use std::path::Path;
-use std::process::{Command, Output};
+use std::process::Output;
 
 fn demo(name: &str) -> String {
     repo_arg(&format!("demo-data/{name}"))
@@ -408,49 +408,21 @@ fn no_map_and_stamp() {
 /// it was skipped.
 #[test]
 fn browser_renders_the_page() {
-    let Some(browser) = ["chromium", "chromium-browser"].into_iter().find(|b| {
-        Command::new(b)
-            .arg("--version")
-            .output()
-            .is_ok_and(|o| o.status.success())
-    }) else {
-        eprintln!(
-            "SKIPPED browser_renders_the_page: no chromium on PATH (install Debian's `chromium`; .ci/run does)"
-        );
-        let required = std::env::var_os("PATTERNPROOF_REQUIRE_BROWSER").is_some() || under_ci();
-        assert!(
-            !required,
-            "chromium is missing but this run requires the browser test (CI=true or PATTERNPROOF_REQUIRE_BROWSER)"
-        );
+    let Some(browser) = chromium("browser_renders_the_page") else {
         return;
     };
     let dir = tmp();
     let out = dir.path().join("r");
     demo_audit(&out, &[]);
-    let png = dir.path().join("page.png");
-    let o = Command::new(browser)
-        .args([
-            "--headless",
-            "--no-sandbox",
-            "--disable-gpu",
-            "--hide-scrollbars",
-            "--window-size=1100,1600",
-        ])
-        .arg(format!("--screenshot={}", png.display()))
-        .arg(format!("file://{}", out.join("index.html").display()))
-        .output()
-        .expect("chromium runs");
-    assert!(png.exists(), "no screenshot: {}", stderr(&o));
-    let decoder = png::Decoder::new(std::io::BufReader::new(
-        std::fs::File::open(&png).expect("png"),
-    ));
-    let mut reader = decoder.read_info().expect("PNG header");
-    let mut buf = vec![0; reader.output_buffer_size().expect("size")];
-    let info = reader.next_frame(&mut buf).expect("PNG frame");
-    assert_eq!((info.width, info.height), (1100, 1600));
-    let channels = info.color_type.samples();
+    let (width, height, channels, buf) = screenshot(
+        browser,
+        &out.join("index.html"),
+        (1100, 1600),
+        &dir.path().join("page.png"),
+    );
+    assert_eq!((width, height), (1100, 1600));
     let mut colours = std::collections::HashSet::new();
-    for px in buf[..info.buffer_size()].chunks(channels) {
+    for px in buf.chunks(channels) {
         colours.insert(px[..3.min(channels)].to_vec());
     }
     // A blank or error page has a handful of colours; text, tables and the

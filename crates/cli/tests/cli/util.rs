@@ -83,3 +83,58 @@ pub fn sha256_hex(p: &Path) -> String {
         .map(|b| format!("{b:02x}"))
         .collect()
 }
+
+/// Debian's headless Chromium, if it is on PATH. Without it a browser test
+/// fails under CI (`CI=true`, or `PATTERNPROOF_REQUIRE_BROWSER` set) and
+/// elsewhere says loudly that `test` was skipped (`None`).
+pub fn chromium(test: &str) -> Option<&'static str> {
+    let found = ["chromium", "chromium-browser"].into_iter().find(|b| {
+        Command::new(b)
+            .arg("--version")
+            .output()
+            .is_ok_and(|o| o.status.success())
+    });
+    if found.is_none() {
+        let required = std::env::var_os("PATTERNPROOF_REQUIRE_BROWSER").is_some() || under_ci();
+        assert!(
+            !required,
+            "chromium is missing but this run requires the browser test (CI=true or PATTERNPROOF_REQUIRE_BROWSER)"
+        );
+        eprintln!(
+            "SKIPPED {test}: no chromium on PATH (install Debian's `chromium`; .ci/run does)"
+        );
+    }
+    found
+}
+
+/// A screenshot of `page` at `width` × `height` pixels, written to `png`
+/// and decoded: its size, its samples per pixel and its pixels.
+pub fn screenshot(
+    browser: &str,
+    page: &Path,
+    (width, height): (u32, u32),
+    png: &Path,
+) -> (u32, u32, usize, Vec<u8>) {
+    let _ = std::fs::remove_file(png);
+    let o = Command::new(browser)
+        .args([
+            "--headless",
+            "--no-sandbox",
+            "--disable-gpu",
+            "--hide-scrollbars",
+        ])
+        .arg(format!("--window-size={width},{height}"))
+        .arg(format!("--screenshot={}", png.display()))
+        .arg(format!("file://{}", page.display()))
+        .output()
+        .expect("chromium runs");
+    assert!(png.exists(), "no screenshot: {}", stderr(&o));
+    let decoder = png::Decoder::new(std::io::BufReader::new(
+        std::fs::File::open(png).expect("png"),
+    ));
+    let mut reader = decoder.read_info().expect("PNG header");
+    let mut buf = vec![0; reader.output_buffer_size().expect("size")];
+    let info = reader.next_frame(&mut buf).expect("PNG frame");
+    buf.truncate(info.buffer_size());
+    (info.width, info.height, info.color_type.samples(), buf)
+}
