@@ -371,8 +371,8 @@ class _Document:
         folder = getattr(self, "_folder", None)
         if folder is None:
             raise SettingError(
-                f"this {type(self).__name__} has no report folder to write (only audit, scales "
-                "and density results have one)"
+                f"this {type(self).__name__} has no report folder to write (only audit, scales, "
+                "density and sites results have one)"
             )
         target = os.fspath(dir)
         return folder.write(target, bool(force), f"{self._call}.write_report({target!r}) in Python")
@@ -948,11 +948,17 @@ class SitePlan:
 
     def combine(self, runs: Sequence[SiteRun]) -> SitesResult:
         """Adjust the p-values of one run per site (in the order of :attr:`names`)."""
-        return SitesResult(self._native.combine([r._handle for r in runs]), self.warnings)
+        return self._result(*self._native.combine([r._handle for r in runs]))
 
     def run_all(self) -> SitesResult:
         """Run every site (in parallel) and adjust across them."""
-        return SitesResult(self._native.run_all(), self.warnings)
+        return self._result(*self._native.run_all())
+
+    def _result(self, text: str, folder: Any) -> SitesResult:
+        result = SitesResult(text, self.warnings)
+        result._folder = folder
+        result._call = "patternproof.sites(…)"
+        return result
 
 
 class StudyProtocol:

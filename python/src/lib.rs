@@ -552,7 +552,94 @@ fn density(
 struct SitePlan {
     loaded: LoadedSites,
     protocol: Protocol,
+    /// The protocol file, as the run's pages name it.
+    protocol_file: PathBuf,
     sweep_sims: usize,
+}
+
+/// An error while a folder is rendered: the facade's, or the renderer's
+/// (which only a bug can cause) as an internal one.
+struct Rendering(Error);
+
+impl From<patternproof_report::RenderError> for Rendering {
+    fn from(e: patternproof_report::RenderError) -> Self {
+        Rendering(Error::Internal(e.to_string()))
+    }
+}
+
+/// A finished `sites` run, ready to write the folder the command line
+/// writes: the plan it came from and every site's run.
+#[pyclass(module = "patternproof._native", frozen)]
+pub struct SitesFolder {
+    plan: Py<SitePlan>,
+    runs: Vec<SiteRun>,
+}
+
+#[pymethods]
+impl SitesFolder {
+    /// Write the folder `patternproof sites --out DIR` writes, all or
+    /// nothing; returns the names of the files written.
+    #[pyo3(signature = (dir, force, command_line))]
+    fn write(
+        &self,
+        py: Python<'_>,
+        dir: PathBuf,
+        force: bool,
+        command_line: String,
+    ) -> PyResult<Vec<String>> {
+        let plan = self.plan.borrow(py);
+        let plan: &SitePlan = &plan;
+        let runs = &self.runs;
+        py.detach(|| {
+            use patternproof_report::sites::StudySite;
+            use patternproof_report::{RenderChoices, RunContext};
+            let sites = &plan.loaded.sites;
+            let study: Vec<StudySite<'_>> = sites
+                .iter()
+                .map(|s| StudySite {
+                    input: &s.input,
+                    files: &s.files,
+                    data: s.data,
+                })
+                .collect();
+            let choices = RenderChoices {
+                picture_window: None,
+                no_map: false,
+                scales: None,
+            };
+            let context = RunContext {
+                command_line,
+                stamp: None,
+                protocol: Some(format!(
+                    "{} (SHA-256 {})",
+                    plan.protocol_file.display(),
+                    plan.protocol.sha256()
+                )),
+            };
+            let report_of = |i: usize| -> Result<patternproof::AuditReport, Rendering> {
+                patternproof::site_report(&sites[i], &runs[i], &plan.protocol)
+                    .map_err(Rendering)?
+                    .ok_or_else(|| {
+                        Rendering(Error::Internal(
+                            "a site without a sweep has no report".into(),
+                        ))
+                    })
+            };
+            let folder = patternproof_report::sites::study_folder(
+                runs,
+                &plan.protocol,
+                plan.sweep_sims,
+                &study,
+                &plan.loaded.datasets,
+                report_of,
+                &choices,
+                &context,
+            )
+            .map_err(|Rendering(e)| e)?;
+            write_out(&dir, &folder, force)
+        })
+        .map_err(to_py)
+    }
 }
 
 /// One site's run, before the adjustment across sites.
@@ -603,20 +690,24 @@ impl SitePlan {
 
     /// Adjust the p-values of runs (one per site, in run order) across
     /// sites and give `sites.json`.
-    fn combine(&self, runs: Vec<PyRef<'_, SiteRunHandle>>) -> PyResult<String> {
-        if runs.len() != self.loaded.sites.len() {
+    fn combine(
+        slf: PyRef<'_, Self>,
+        runs: Vec<PyRef<'_, SiteRunHandle>>,
+    ) -> PyResult<(String, SitesFolder)> {
+        let this: &SitePlan = &slf;
+        if runs.len() != this.loaded.sites.len() {
             return Err(to_py(setting(
                 "runs",
                 format!(
                     "{} run(s) for {} sites",
                     runs.len(),
-                    self.loaded.sites.len()
+                    this.loaded.sites.len()
                 ),
                 "give one run per site, in the order of the plan's names",
             )));
         }
         let mut runs: Vec<SiteRun> = runs.iter().map(|r| r.run.clone()).collect();
-        for (run, site) in runs.iter().zip(&self.loaded.sites) {
+        for (run, site) in runs.iter().zip(&this.loaded.sites) {
             if run.row.site != site.input.name {
                 return Err(to_py(setting(
                     "runs",
@@ -628,19 +719,35 @@ impl SitePlan {
                 )));
             }
         }
-        patternproof::adjust(&mut runs, &self.protocol);
-        sites_json(&runs, &self.protocol, self.sweep_sims).map_err(to_py)
+        patternproof::adjust(&mut runs, &this.protocol);
+        let text = sites_json(&runs, &this.protocol, this.sweep_sims).map_err(to_py)?;
+        Ok((
+            text,
+            SitesFolder {
+                plan: slf.into(),
+                runs,
+            },
+        ))
     }
 
     /// Run every site (in parallel) and give `sites.json`.
-    fn run_all(&self, py: Python<'_>) -> PyResult<String> {
+    fn run_all(slf: PyRef<'_, Self>, py: Python<'_>) -> PyResult<(String, SitesFolder)> {
+        let this: &SitePlan = &slf;
         let options = SitesOptions {
-            sweep_sims: self.sweep_sims,
+            sweep_sims: this.sweep_sims,
         };
-        interruptible(py, |stop| {
-            let runs = patternproof::sites(&self.loaded, &self.protocol, options, stop)?;
-            sites_json(&runs, &self.protocol, self.sweep_sims)
-        })
+        let (text, runs) = interruptible(py, |stop| {
+            let runs = patternproof::sites(&this.loaded, &this.protocol, options, stop)?;
+            let text = sites_json(&runs, &this.protocol, this.sweep_sims)?;
+            Ok((text, runs))
+        })?;
+        Ok((
+            text,
+            SitesFolder {
+                plan: slf.into(),
+                runs,
+            },
+        ))
     }
 }
 
@@ -694,6 +801,7 @@ fn plan_sites(
         Ok(SitePlan {
             loaded,
             protocol,
+            protocol_file,
             sweep_sims,
         })
     };
@@ -757,6 +865,7 @@ fn _native(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(read_protocol, m)?)?;
     m.add_class::<ScalesFolder>()?;
     m.add_class::<DensityFolder>()?;
+    m.add_class::<SitesFolder>()?;
     m.add_function(wrap_pyfunction!(recheck, m)?)?;
     m.add_function(wrap_pyfunction!(scales, m)?)?;
     m.add_function(wrap_pyfunction!(density, m)?)?;

@@ -90,10 +90,10 @@ def test_write_report_writes_the_cli_folder(tmp_path):
 
 
 def _same_folder(cli_dir, py_dir, names):
-    """Every file the command line wrote, byte for byte, but the page's
-    command line (and the marker listing the files)."""
-    made = sorted(p.name for p in py_dir.iterdir())
-    assert made == sorted(p.name for p in cli_dir.iterdir())
+    """Every file the command line wrote (sub-folders included), byte for
+    byte, but the pages' command line (and the marker listing the files)."""
+    made = sorted(str(p.relative_to(py_dir)) for p in py_dir.rglob("*") if p.is_file())
+    assert made == sorted(str(p.relative_to(cli_dir)) for p in cli_dir.rglob("*") if p.is_file())
     assert sorted(names) == sorted(n for n in made if n != ".patternproof")
     strip = lambda page: re.sub(r"<pre>[^<]*</pre>", "<pre></pre>", page)
     for name in made:
@@ -101,9 +101,10 @@ def _same_folder(cli_dir, py_dir, names):
         b = (py_dir / name).read_bytes()
         if name == ".patternproof":
             continue
-        if name == "index.html":
+        if name.endswith("index.html"):
             assert strip(a.decode()) == strip(b.decode())
-            assert "write_report(" in b.decode()
+            if "<pre>" in a.decode():
+                assert "write_report(" in b.decode(), name
             continue
         assert a == b, name
 
@@ -219,7 +220,11 @@ def test_sites_json_is_the_cli_sites_json(tmp_path):
     plan = patternproof.plan_sites(protocol, plots, **kwargs)
     runs = [plan.run_site(i) for i in range(len(plan.names))]
     assert [r.row["site"] for r in runs] == list(plan.names)
-    assert plan.combine(runs).to_json() == expected
+    combined = plan.combine(runs)
+    assert combined.to_json() == expected
+    # Both write the command line's folder, every site's folder included.
+    _same_folder(tmp_path / "s", tmp_path / "whole", whole.write_report(tmp_path / "whole"))
+    _same_folder(tmp_path / "s", tmp_path / "pieces", combined.write_report(tmp_path / "pieces"))
 
 
 # ------------------------------------------------------ in-memory inputs

@@ -11,8 +11,8 @@ use patternproof::options::SitesOptions as RunOptions;
 use patternproof::options::{LoadOptions, Protocol, SCREEN_SIMS};
 use patternproof::{Site, SitesSource};
 use patternproof::{SiteInput, SiteRun, sites_document as document};
-use patternproof_report::sites::SiteInputs;
-use patternproof_report::{OutputFolder, Plane, RenderChoices, RunContext};
+use patternproof_report::sites::StudySite;
+use patternproof_report::{OutputFolder, RenderChoices, RunContext};
 use std::path::PathBuf;
 
 /// `patternproof sites`.
@@ -235,38 +235,24 @@ fn outputs(
         stamp: None,
         protocol: Some(format!("{} (SHA-256 {hash})", a.protocol.display())),
     };
-    let unprojects: Vec<_> = datasets
+    let study: Vec<StudySite<'_>> = sites
         .iter()
-        .map(|d| {
-            d.projection
-                .as_ref()
-                .map(|p| move |x: f64, y: f64| p.inverse(x, y))
-        })
-        .collect();
-    let planes: Vec<_> = datasets.iter().map(|d| d.plane_srs()).collect();
-    let inputs: Vec<SiteInputs<'_>> = sites
-        .iter()
-        .map(|s| SiteInputs {
-            name: &s.input.name,
-            files: s.files.iter().map(|f| f.display().to_string()).collect(),
-            plane: Plane {
-                points: &s.input.points,
-                unproject: unprojects[s.data]
-                    .as_ref()
-                    .map(|f| f as &(dyn Fn(f64, f64) -> _ + Sync)),
-                srs: &planes[s.data],
-            },
+        .map(|s| StudySite {
+            input: &s.input,
+            files: &s.files,
+            data: s.data,
         })
         .collect();
     let report_of = |i: usize| -> Result<patternproof::AuditReport, Failure> {
         patternproof::site_report(&sites[i], &runs[i], protocol)?
             .ok_or_else(|| Failure::Internal("a site without a sweep has no report".into()))
     };
-    patternproof_report::sites::sites_folder(
+    patternproof_report::sites::study_folder(
         runs,
         protocol,
         a.sweep_sims,
-        &inputs,
+        &study,
+        datasets,
         report_of,
         &choices,
         &context,

@@ -18,10 +18,12 @@ use crate::OutputFolder;
 use crate::audit_folder::{Plane, RenderChoices, audit_folder};
 use crate::document::AuditReport;
 use crate::run::{RenderError, RunContext, bytes};
+use patternproof_io::Dataset;
 use patternproof_protocol::Protocol;
-use patternproof_sites::SiteRun;
 use patternproof_sites::folder_name::site_folders;
+use patternproof_sites::{SiteInput, SiteRun};
 use rayon::prelude::*;
+use std::path::PathBuf;
 
 /// What a site's own folder needs besides its audit report.
 #[derive(Clone)]
@@ -32,6 +34,62 @@ pub struct SiteInputs<'a> {
     pub files: Vec<String>,
     /// Its points and plane.
     pub plane: Plane<'a>,
+}
+
+/// One site of a study as it was loaded: its input, the files it was
+/// read from, and the index of the data set it came from.
+#[derive(Clone, Copy)]
+pub struct StudySite<'a> {
+    /// Name, points and boundary.
+    pub input: &'a SiteInput,
+    /// The files, as the user named them.
+    pub files: &'a [PathBuf],
+    /// Index into the data sets.
+    pub data: usize,
+}
+
+/// Every file of a `sites` run from the sites as loaded and the data sets
+/// they came from (each site's plane, and the way back to lon/lat, is its
+/// data set's): what the command line and the Python package write.
+/// `report_of(i)` makes the audit report of tested site `i`.
+#[allow(clippy::too_many_arguments)]
+pub fn study_folder<E>(
+    runs: &[SiteRun],
+    protocol: &Protocol,
+    sweep_sims: usize,
+    sites: &[StudySite<'_>],
+    datasets: &[Dataset],
+    report_of: impl Fn(usize) -> Result<AuditReport, E> + Sync,
+    choices: &RenderChoices,
+    run: &RunContext,
+) -> Result<OutputFolder, E>
+where
+    E: From<RenderError> + Send,
+{
+    let unprojects: Vec<_> = datasets
+        .iter()
+        .map(|d| {
+            d.projection
+                .as_ref()
+                .map(|p| move |x: f64, y: f64| p.inverse(x, y))
+        })
+        .collect();
+    let planes: Vec<_> = datasets.iter().map(|d| d.plane_srs()).collect();
+    let inputs: Vec<SiteInputs<'_>> = sites
+        .iter()
+        .map(|s| SiteInputs {
+            name: &s.input.name,
+            files: s.files.iter().map(|f| f.display().to_string()).collect(),
+            plane: Plane {
+                points: &s.input.points,
+                unproject: unprojects[s.data]
+                    .as_ref()
+                    .map(|f| f as &(dyn Fn(f64, f64) -> _ + Sync)),
+                srs: &planes[s.data],
+            },
+        })
+        .collect();
+    sites_folder(runs, protocol, sweep_sims, &inputs, report_of, choices, run)
 }
 
 /// One site's report folder, before it joins the run's folder.
