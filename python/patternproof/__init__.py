@@ -1019,7 +1019,11 @@ def protocol(
     note: Optional[str] = None,
 ) -> StudyProtocol:
     """A new study protocol with ``protocol new``'s defaults, checked in
-    its words (``SettingError``)."""
+    its words (``SettingError``).
+
+    >>> len(protocol(window="boundary", adjust="bh").sha256)
+    64
+    """
     return StudyProtocol(
         *_native.protocol(
             str(window),
@@ -1038,7 +1042,13 @@ def protocol(
 
 def read_protocol(path: PathLike) -> StudyProtocol:
     """A protocol file, checked: ``ProtocolError`` when its choices were
-    changed after it was written (as ``protocol show`` refuses it)."""
+    changed after it was written (as ``protocol show`` refuses it).
+
+    >>> import tempfile, os
+    >>> path = protocol(window="boundary").write(os.path.join(tempfile.mkdtemp(), "p.json"))
+    >>> read_protocol(path).sha256 == protocol(window="boundary").sha256
+    True
+    """
     return StudyProtocol(*_native.read_protocol(os.fspath(path)))
 
 
