@@ -166,18 +166,20 @@ where
                     + PathElement::new(vec![(-s, s), (s, -s)], style)),
             ),
             Shape::Square => area.draw(&(e + Rectangle::new([(-s, -s), (s, s)], style))),
-            Shape::Diamond => area.draw(
-                &(e + PathElement::new(
-                    vec![
-                        (0, -s - 1),
-                        (s + 1, 0),
-                        (0, s + 1),
-                        (-s - 1, 0),
-                        (0, -s - 1),
-                    ],
-                    style,
-                )),
-            ),
+            Shape::Diamond => {
+                let corners = vec![
+                    (0, -s - 1),
+                    (s + 1, 0),
+                    (0, s + 1),
+                    (-s - 1, 0),
+                    (0, -s - 1),
+                ];
+                if mark.filled {
+                    area.draw(&(e + Polygon::new(corners, style)))
+                } else {
+                    area.draw(&(e + PathElement::new(corners, style)))
+                }
+            }
         };
         drawn.ok()?;
     }

@@ -532,3 +532,62 @@ fn an_rmax_beyond_every_window_is_named() {
     assert_eq!(o.status.code(), Some(0));
     assert!(!caution(&near));
 }
+
+/// Issue 28: `scales.svg` in the project's own look. The band, the
+/// pointwise envelope, the centre and the observed curve in the palette,
+/// labelled in words; the distances where the curve leaves the global band
+/// are named on the panel, one label per stretch, recounted here from the
+/// `departure` arrays of `scales.json`.
+#[test]
+fn envelope_pictures_name_their_parts_and_their_departures() {
+    let dir = tmp();
+    let out = dir.path().join("k");
+    let o = scales(&["--sims", "19", "--steps", "20"], &out, "2");
+    assert!(o.status.success(), "{}", stderr(&o));
+    let svg = std::fs::read_to_string(out.join("scales.svg")).expect("scales.svg");
+    for words in [
+        "global band: the MAD test, α = 0.05",
+        "pointwise envelope, not a test",
+        "centre of 19 simulated curves",
+        "observed L(r) − r, isotropic correction",
+    ] {
+        assert!(svg.contains(words), "{words}");
+    }
+    // Band fill (light sky blue), band edges (blue), observed (vermillion).
+    for colour in [
+        "fill=\"#D4ECFA\"",
+        "stroke=\"#0072B2\"",
+        "stroke=\"#D55E00\"",
+    ] {
+        assert!(svg.contains(colour), "{colour}");
+    }
+    let doc: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("scales.json")).expect("json"))
+            .expect("parses");
+    let mut stretches = [0usize; 2];
+    for w in doc["windows"].as_array().expect("windows") {
+        let Some(t) = w["tests"].as_array().and_then(|t| t.first()) else {
+            continue;
+        };
+        let d: Vec<i64> = t["departure"]
+            .as_array()
+            .expect("departure")
+            .iter()
+            .map(|v| v.as_i64().expect("sign"))
+            .collect();
+        for (k, sign) in [1i64, -1].into_iter().enumerate() {
+            stretches[k] += d
+                .iter()
+                .enumerate()
+                .filter(|&(i, &s)| s == sign && (i == 0 || d[i - 1] != sign))
+                .count();
+        }
+    }
+    assert!(stretches[0] > 0, "the demo departs above the band");
+    assert_eq!(svg.matches("clustered, r ").count(), stretches[0]);
+    assert_eq!(svg.matches("regular, r ").count(), stretches[1]);
+    assert_eq!(
+        svg.contains("◆ above the global band: clustered at r"),
+        stretches[0] > 0
+    );
+}

@@ -1,9 +1,14 @@
 //! The SVG pictures.
 //!
 //! * `scales.svg` — one panel per window: the observed L̂ − r of the tested
-//!   correction, the global envelope band of the MAD test (shaded: this is
-//!   the test), the pointwise envelope (thin dashes, labelled "pointwise,
-//!   not a test") and the CSR line L − r = 0.
+//!   correction (vermillion), the global envelope band of the MAD test (a
+//!   sky-blue band with blue edges: this is the test), the pointwise
+//!   envelope (sky-blue dots, "pointwise envelope, not a test"), the centre
+//!   of the simulated curves (grey dashes) and the CSR line L − r = 0. Where
+//!   the observed curve leaves the band, each point carries the verdict's
+//!   symbol (◆ above: clustered, ◇ below: regular) and a bar along the top
+//!   or bottom of the panel names the stretch ("clustered, r 2–6 m"), so a
+//!   panel states its verdict without the legend.
 //! * `corrections.svg` — small multiples, one panel per correction, with
 //!   every window's L̂ − r: how far the choice of window moves the curve.
 //!
@@ -16,11 +21,12 @@
 //! Colours and dashes come from [`crate::palette`] (Okabe–Ito,
 //! each colour with its own dash pattern); no hot/cold colour convention.
 
-use crate::canvas::{self, Canvas, Entry, Swatch};
+use crate::canvas::{self, Canvas, Entry, Mark, Shape, Swatch};
 use crate::numbers::{p_value, trimmed};
 use crate::palette::{Ink, ink};
 use patternproof_scales::k_function::Correction;
 use patternproof_scales::scales::{ScalesRun, WindowScales};
+use patternproof_scales::verdict::{Band, Direction};
 use plotters::coord::types::RangedCoordf64;
 use plotters::prelude::*;
 
@@ -29,19 +35,53 @@ pub const WIDTH: u32 = 1000;
 /// Font size (plotters units, 1.24 per SVG pixel) of tick labels, axis
 /// names and legends: 14 is 11.3 pixels.
 const TEXT: u32 = 14;
-/// The band of the global envelope.
-const BAND: RGBColor = RGBColor(215, 215, 215);
-/// The pointwise envelope.
+/// The global envelope band, the MAD test itself: a light sky-blue fill
+/// with its edges drawn in blue, so it reads in grey as a framed band.
+const BAND: RGBColor = RGBColor(212, 236, 250);
+/// The edges of the global band.
+const BAND_EDGE: Ink = Ink {
+    colour: RGBColor(0, 114, 178),
+    width: 1,
+    dash: None,
+};
+/// The pointwise envelope: sky-blue dots (not a test).
 const THIN: Ink = Ink {
+    colour: RGBColor(86, 180, 233),
+    width: 2,
+    dash: Some((2, 4)),
+};
+/// The centre of the simulated curves.
+const CENTRE: Ink = Ink {
     colour: RGBColor(120, 120, 120),
     width: 1,
-    dash: Some((3, 3)),
+    dash: Some((8, 4)),
 };
 /// The CSR line.
 const ZERO: Ink = Ink {
-    colour: RGBColor(120, 120, 120),
+    colour: RGBColor(160, 160, 160),
     width: 1,
     dash: None,
+};
+/// The observed curve of the tested correction.
+const OBSERVED: Ink = Ink {
+    colour: RGBColor(213, 94, 0),
+    width: 3,
+    dash: None,
+};
+/// Distances where the observed curve lies above the global band: the
+/// verdict's symbol and colour for clustered (◆, orange).
+const ABOVE: Mark = Mark {
+    shape: Shape::Diamond,
+    colour: RGBColor(230, 159, 0),
+    filled: true,
+    size: 3,
+};
+/// Distances where it lies below: the verdict's ◇ in bluish green.
+const BELOW: Mark = Mark {
+    shape: Shape::Diamond,
+    colour: RGBColor(0, 158, 115),
+    filled: false,
+    size: 3,
 };
 
 /// The ink of a correction, the same in every picture.
@@ -169,11 +209,76 @@ fn window_panel(
                 .draw_series(std::iter::once(Polygon::new(band, BAND.filled())))
                 .ok()?;
         }
+        draw_line(&mut chart, points(r, &t.lo), BAND_EDGE)?;
+        draw_line(&mut chart, points(r, &t.hi), BAND_EDGE)?;
         draw_line(&mut chart, points(r, &t.pointwise_lo), THIN)?;
         draw_line(&mut chart, points(r, &t.pointwise_hi), THIN)?;
+        draw_line(&mut chart, points(r, &t.centre), CENTRE)?;
     }
     draw_line(&mut chart, vec![vec![(0.0, 0.0), (run.rmax, 0.0)]], ZERO)?;
-    draw_line(&mut chart, points(r, observed), correction_ink(correction))
+    draw_line(&mut chart, points(r, observed), OBSERVED)?;
+    let _ = correction;
+    if let Some(t) = test {
+        let bands = w.bands.first().map_or(&[][..], Vec::as_slice);
+        departures(&mut chart, run, observed, &t.departure, bands, (lo, hi))?;
+    }
+    Some(())
+}
+
+/// Mark the distances where the observed curve leaves the global band:
+/// the verdict's symbol on each such point of the curve, and a bar along
+/// the top (clustered) or bottom (regular) of the panel over each stretch,
+/// named ("clustered, r 2–6 m"), so the panel states its verdict without
+/// the legend.
+fn departures(
+    chart: &mut Chart<'_, '_>,
+    run: &ScalesRun,
+    observed: &[Option<f64>],
+    departure: &[i8],
+    bands: &[Band],
+    (lo, hi): (f64, f64),
+) -> Option<()> {
+    let inset = 0.04 * (hi - lo);
+    for (sign, mark) in [(1, ABOVE), (-1, BELOW)] {
+        let at: Vec<(f64, f64)> = run
+            .r
+            .iter()
+            .zip(observed)
+            .zip(departure)
+            .filter_map(|((x, y), d)| (*d == sign).then_some((*x, (*y)?)))
+            .collect();
+        canvas::marks(chart.plotting_area(), mark, at)?;
+    }
+    for band in bands {
+        let (mark, word, y, dy) = match band.direction {
+            Direction::Clustered => (ABOVE, "clustered", hi - inset, 6),
+            Direction::Regular => (BELOW, "regular", lo + inset, -22),
+        };
+        let bar = Ink {
+            colour: mark.colour,
+            width: 4,
+            dash: None,
+        };
+        draw_line(chart, vec![vec![(band.from, y), (band.to, y)]], bar)?;
+        let label = if band.from == band.to {
+            format!("{word}, r {} {}", trimmed(band.from, 3), run.unit)
+        } else {
+            format!(
+                "{word}, r {}–{} {}",
+                trimmed(band.from, 3),
+                trimmed(band.to, 3),
+                run.unit
+            )
+        };
+        let style = ("sans-serif", TEXT).into_font().color(&BLACK);
+        // Under the top bar, over the bottom one.
+        chart
+            .draw_series(std::iter::once(
+                EmptyElement::at((band.from, y)) + Text::new(label, (4, dy), style),
+            ))
+            .ok()?;
+    }
+    Some(())
 }
 
 /// One correction's panel: every window's L̂ − r, one ink per window.
@@ -261,18 +366,29 @@ pub fn scales_svg(run: &ScalesRun) -> Option<String> {
         }
     }
     let (lo, hi) = y_range(all.into_iter());
+    let departs = |sign: i8| {
+        run.windows
+            .iter()
+            .filter_map(|w| w.tests.first())
+            .any(|t| t.departure.contains(&sign))
+    };
+    // Room for the bars that name the departures, off the curves.
+    let room = 0.15 * (hi - lo);
+    let hi = if departs(1) { hi + room } else { hi };
+    let lo = if departs(-1) { lo - room } else { lo };
     let mut legend = Vec::new();
     if let Some(t) = run.windows.iter().find_map(|w| w.tests.first()) {
         legend.push(Entry::new(
             Swatch::Fill(BAND),
-            format!(
-                "global envelope band (MAD test, α = {}, {} simulations)",
-                t.alpha, t.sims
-            ),
+            format!("global band: the MAD test, α = {}", t.alpha),
         ));
         legend.push(Entry::new(
             Swatch::Line(THIN),
-            "pointwise envelope (not a test)",
+            "pointwise envelope, not a test",
+        ));
+        legend.push(Entry::new(
+            Swatch::Line(CENTRE),
+            format!("centre of {} simulated curves", t.sims),
         ));
     }
     legend.push(Entry::new(Swatch::Line(ZERO), "CSR: L(r) − r = 0"));
@@ -283,10 +399,22 @@ pub fn scales_svg(run: &ScalesRun) -> Option<String> {
         {
             shown.push(c);
             legend.push(Entry::new(
-                Swatch::Line(correction_ink(c)),
-                format!("observed, {} correction", c.as_str()),
+                Swatch::Line(OBSERVED),
+                format!("observed L(r) − r, {} correction", c.as_str()),
             ));
         }
+    }
+    if departs(1) {
+        legend.push(Entry::new(
+            Swatch::Mark(ABOVE),
+            "◆ above the global band: clustered at r",
+        ));
+    }
+    if departs(-1) {
+        legend.push(Entry::new(
+            Swatch::Mark(BELOW),
+            "◇ below the global band: regular at r",
+        ));
     }
     panel_grid(
         run.windows.len(),
