@@ -418,7 +418,7 @@ pub struct ProtocolWords<'a> {
 }
 
 /// The protocol `protocol new` writes, checked: every word parsed and
-/// every choice in range ([`Protocol::validate`]), refused in the same
+/// every choice in range ([`patternproof_protocol::Protocol::validate`]), refused in the same
 /// words whichever front end asked.
 pub fn protocol(w: &ProtocolWords<'_>) -> Result<patternproof_protocol::Protocol, Error> {
     use patternproof_protocol::{Adjust, Protocol, SCHEMA, WindowRule};
