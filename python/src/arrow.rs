@@ -133,21 +133,21 @@ pub fn arrow_points<'py>(
     else {
         return Ok((None, PyBytes::new(py, &[]), names));
     };
-    let mut out: Vec<f64> = Vec::new();
+    // Native f64 bytes, x0 y0 x1 y1 …, written once.
+    let mut out: Vec<u8> = Vec::new();
     let mut row = 0usize;
     for batch in reader {
         let batch = batch.map_err(|e| arrow_error("points", e))?;
         let xs = column_f64(batch.column(xi), &names[xi], row)?;
         let ys = column_f64(batch.column(yi), &names[yi], row)?;
-        out.reserve(2 * xs.len());
+        out.reserve(16 * xs.len());
         for (x, y) in xs.into_iter().zip(ys) {
-            out.push(x);
-            out.push(y);
+            out.extend_from_slice(&x.to_ne_bytes());
+            out.extend_from_slice(&y.to_ne_bytes());
         }
         row += batch.num_rows();
     }
-    let bytes: Vec<u8> = out.iter().flat_map(|v| v.to_ne_bytes()).collect();
-    Ok((Some(pair), PyBytes::new(py, &bytes), names))
+    Ok((Some(pair), PyBytes::new(py, &out), names))
 }
 
 /// One column as f64: floats as they are, integers widened (exact below

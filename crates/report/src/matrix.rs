@@ -49,13 +49,16 @@ pub const STYLE: &str = ".matrix td{white-space:nowrap;font-weight:bold}.matrix 
 pub const INFLATED_MARK: &str = "!";
 
 /// Symbol and short word of a call, as the matrix shows them.
+/// The symbol is the verdict table's (`table::call_symbol`), the same
+/// everywhere a call is drawn.
 fn cell_words(call: Option<Call>) -> (&'static str, &'static str) {
-    match call {
-        Some(Call::Clustered) => ("◆", "clustered"),
-        Some(Call::Dispersed) => ("◇", "dispersed"),
-        Some(Call::NotSignificant) => ("○", "n.s."),
-        None => ("—", "no test"),
-    }
+    let word = match call {
+        Some(Call::Clustered) => "clustered",
+        Some(Call::Dispersed) => "dispersed",
+        Some(Call::NotSignificant) => "n.s.",
+        None => "no test",
+    };
+    (crate::table::call_symbol(call), word)
 }
 
 /// The colour of a call in the terminal (24-bit), from the picture
